@@ -1,0 +1,60 @@
+"""photorx: optical-receiver design from the photodiode junction up.
+
+The public names are re-exported here (see ``__all__``); submodules are imported on
+first use so that ``import photorx`` stays fast and plotting libraries load only when
+a plot is drawn.
+"""
+
+from __future__ import annotations
+
+import importlib
+
+__version__ = "0.1.0"
+
+# public name -> module that owns it
+_EXPORTS = {
+    "DesignError": "photorx.errors",
+    "PhotorxWarning": "photorx.errors",
+    "ModelRangeWarning": "photorx.errors",
+    "thermal_voltage": "photorx.constants",
+    "material": "photorx.device.materials",
+    "Material": "photorx.device.materials",
+    "AbruptJunction": "photorx.device.junction",
+    "LinearlyGradedJunction": "photorx.device.junction",
+    "PinJunction": "photorx.device.junction",
+    "ParametricJunction": "photorx.device.junction",
+    "fit_parametric_junction": "photorx.device.junction",
+    "diffusion_capacitance": "photorx.device.junction",
+    "EquivalentCircuit": "photorx.device.equivalent_circuit",
+    "Photodiode": "photorx.device.photodiode",
+    "OpAmp": "photorx.circuit.amplifier",
+    "Tia": "photorx.circuit.tia",
+    "TiaMetrics": "photorx.circuit.metrics",
+    "design_feedback_capacitor": "photorx.circuit.feedback_design",
+    "PostFilter": "photorx.circuit.filters",
+    "NoiseSpectrum": "photorx.analysis.noise",
+    "Receiver": "photorx.analysis.receiver",
+    "ReceiverResult": "photorx.analysis.receiver",
+    "Budget": "photorx.views.tables",
+    "sweep": "photorx.analysis.sweep",
+    "optimize": "photorx.analysis.optimize",
+    "load_design": "photorx.designfile",
+    "save_design": "photorx.designfile",
+    "demo_receiver": "photorx.designfile",
+}
+
+__all__ = sorted(_EXPORTS) + ["__version__"]
+
+
+def __getattr__(name: str):
+    try:
+        module = _EXPORTS[name]
+    except KeyError:
+        raise AttributeError(f"module 'photorx' has no attribute {name!r}") from None
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value  # cache: later lookups skip __getattr__
+    return value
+
+
+def __dir__():
+    return sorted(set(globals()) | set(__all__))

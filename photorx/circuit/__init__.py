@@ -1,0 +1,1 @@
+"""photorx.circuit stage."""

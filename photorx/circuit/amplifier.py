@@ -1,0 +1,139 @@
+"""Voltage-feedback operational amplifier: open-loop gain, noise densities, input capacitance.
+
+Functional core: :func:`open_loop_gain` and :func:`voltage_noise_density` /
+:func:`current_noise_density` broadcast over frequency and every parameter.
+Shell: :class:`OpAmp`, a frozen dataclass that validates and routes calls.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .._validate import require_nonnegative, require_positive
+
+__all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_density"]
+
+
+def open_loop_gain(f, gbw, dc_gain, poles=()):
+    """Open-loop voltage gain of a dominant-pole amplifier with optional extra poles.
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0.
+    gbw : array_like
+        Gain-bandwidth product [Hz] (unity-gain frequency of the dominant-pole response).
+    dc_gain : array_like
+        DC open-loop gain A0 [V/V].
+    poles : sequence of array_like
+        Extra (non-dominant) pole frequencies [Hz].
+
+    Returns
+    -------
+    numpy.ndarray
+        Complex gain A(jf), positive real at DC (the inverting stage supplies the sign).
+
+    Notes
+    -----
+    A(s) = A0 / (1 + s/w_d) * prod_k 1/(1 + s/w_k), w_d = 2 pi GBW / A0.
+
+    References
+    ----------
+    .. [1] J. G. Graeme, *Photodiode Amplifiers: Op Amp Solutions*, McGraw-Hill, 1996, ch. 2.
+    """
+    s = 2j * np.pi * np.asarray(f, dtype=float)
+    gbw = np.asarray(gbw, dtype=float)
+    a0 = np.asarray(dc_gain, dtype=float)
+    a = a0 / (1.0 + s * a0 / (2 * np.pi * gbw))
+    for fp in poles:
+        a = a / (1.0 + s / (2 * np.pi * np.asarray(fp, dtype=float)))
+    return a
+
+
+def voltage_noise_density(f, white, corner):
+    """Amplifier input voltage noise density with a 1/f corner [V/rtHz].
+
+    e_n(f) = e_w * sqrt(1 + f_c / f). Common practice (Motchenbacher and Connelly,
+    *Low-Noise Electronic System Design*, 1993, ch. 1).
+    """
+    f = np.asarray(f, dtype=float)
+    with np.errstate(divide="ignore"):
+        return np.asarray(white, dtype=float) * np.sqrt(1.0 + np.asarray(corner, dtype=float) / f)
+
+
+def current_noise_density(f, white, corner):
+    """Amplifier input current noise density with a 1/f corner [A/rtHz]; same form as the voltage noise."""
+    return voltage_noise_density(f, white, corner)
+
+
+@dataclass(frozen=True)
+class OpAmp:
+    """A voltage-feedback amplifier used as a transimpedance stage (non-inverting input grounded).
+
+    Parameters
+    ----------
+    gbw : float
+        Gain-bandwidth product [Hz], > 0.
+    dc_gain : float
+        DC open-loop gain [V/V], > 1.
+    poles : tuple of float
+        Extra pole frequencies beyond the dominant one [Hz], each > 0.
+    voltage_noise : float
+        White input voltage noise density [V/rtHz], >= 0.
+    current_noise : float
+        White input current noise density [A/rtHz], >= 0.
+    voltage_noise_corner, current_noise_corner : float
+        1/f corner frequencies [Hz], >= 0 (0 = no 1/f noise).
+    input_capacitance : float
+        Common-mode plus differential input capacitance seen at the inverting input [F], >= 0.
+    output_swing : float
+        Largest output voltage magnitude before clipping [V], > 0.
+    """
+
+    gbw: float = 100e6
+    dc_gain: float = 1e5
+    poles: tuple = field(default_factory=tuple)
+    voltage_noise: float = 5e-9
+    current_noise: float = 1e-15
+    voltage_noise_corner: float = 0.0
+    current_noise_corner: float = 0.0
+    input_capacitance: float = 2e-12
+    output_swing: float = 2.0
+
+    def __post_init__(self):
+        set_ = object.__setattr__
+        set_(self, "gbw", require_positive("gbw", self.gbw, "Hz"))
+        set_(self, "dc_gain", require_positive("dc_gain", self.dc_gain, "V/V"))
+        poles = tuple(np.atleast_1d(np.asarray(self.poles, dtype=float)).tolist()) \
+            if np.ndim(self.poles) else ((float(self.poles),) if self.poles else ())
+        for p in poles:
+            require_positive("poles", p, "Hz")
+        set_(self, "poles", poles)
+        set_(self, "voltage_noise", require_nonnegative("voltage_noise", self.voltage_noise, "V/rtHz"))
+        set_(self, "current_noise", require_nonnegative("current_noise", self.current_noise, "A/rtHz"))
+        set_(self, "voltage_noise_corner",
+             require_nonnegative("voltage_noise_corner", self.voltage_noise_corner, "Hz"))
+        set_(self, "current_noise_corner",
+             require_nonnegative("current_noise_corner", self.current_noise_corner, "Hz"))
+        set_(self, "input_capacitance",
+             require_nonnegative("input_capacitance", self.input_capacitance, "F"))
+        set_(self, "output_swing", require_positive("output_swing", self.output_swing, "V"))
+
+    @property
+    def dominant_pole(self):
+        """Dominant pole frequency GBW/A0 [Hz]."""
+        return self.gbw / self.dc_gain
+
+    def gain(self, f):
+        """Open-loop gain A(jf), complex [V/V]; see :func:`open_loop_gain`."""
+        return open_loop_gain(f, self.gbw, self.dc_gain, self.poles)
+
+    def voltage_noise_density(self, f):
+        """Input voltage noise density at ``f`` [V/rtHz]."""
+        return voltage_noise_density(f, self.voltage_noise, self.voltage_noise_corner)
+
+    def current_noise_density(self, f):
+        """Input current noise density at ``f`` [A/rtHz]."""
+        return current_noise_density(f, self.current_noise, self.current_noise_corner)

@@ -1,0 +1,176 @@
+"""Transimpedance amplifier: loop gain, noise gain and closed-loop transimpedance.
+
+Circuit (common practice; Graeme, *Photodiode Amplifiers*, 1996, ch. 2-3)::
+
+              Cf
+         +----||----+
+         +---/\/\---+          Rf || Cf from the summing node (-) to the output
+         |   Rf     |
+    Rs   |  |\      |
+  --/\/\-+--|- \    |
+  |      |  |   >---+-- v_out
+ [Id,Cd, Cin|+ /
+  Rsh]   |  |/ (+ input grounded)
+  |      |
+  GND   GND
+
+Nodal analysis at the summing node with v_out = -A(s) v_n gives
+
+* feedback factor  beta = Yf / (Yf + Yin),   Yf = 1/Rf + s Cf,
+  Yin = 1/(Rs + Zd) + s Cin,   Zd = Rsh || 1/(s Cd)
+* loop gain        T = A beta
+* noise gain       1/beta = 1 + Yin/Yf  (gain from the amplifier's input voltage noise)
+* transimpedance   Zt = v_out / i_ph = Zf * Zd/(Zd + Rs) * T / (1 + T)
+
+with the photocurrent drawn out of the summing node so that Zt -> +Rf at DC for an
+ideal amplifier. Every function broadcasts over frequency and all parameters; pass
+``param[..., None]`` and a 1-D frequency grid to evaluate many designs at once.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .._validate import require_nonnegative, require_positive
+from .amplifier import OpAmp, open_loop_gain
+
+__all__ = [
+    "Tia",
+    "feedback_admittance",
+    "input_admittance",
+    "feedback_factor",
+    "loop_gain",
+    "noise_gain",
+    "closed_loop_factor",
+    "transimpedance",
+]
+
+
+def _s(f):
+    return 2j * np.pi * np.asarray(f, dtype=float)
+
+
+def feedback_admittance(f, rf, cf):
+    """Admittance of the feedback network Rf || Cf [S]: Yf = 1/Rf + j 2 pi f Cf."""
+    return 1.0 / np.asarray(rf, dtype=float) + _s(f) * np.asarray(cf, dtype=float)
+
+
+def input_admittance(f, cd, rsh, rs, cin):
+    """Admittance from the summing node to ground [S].
+
+    Yin = 1/(Rs + Zd) + j 2 pi f Cin with Zd = Rsh || 1/(j 2 pi f Cd).
+    ``rsh`` may be ``inf`` (no shunt path).
+    """
+    s = _s(f)
+    zd = 1.0 / (1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float))
+    return 1.0 / (np.asarray(rs, dtype=float) + zd) + s * np.asarray(cin, dtype=float)
+
+
+def feedback_factor(f, rf, cf, cd, rsh, rs, cin):
+    """Feedback factor beta = Yf / (Yf + Yin), complex, dimensionless."""
+    yf = feedback_admittance(f, rf, cf)
+    return yf / (yf + input_admittance(f, cd, rsh, rs, cin))
+
+
+def noise_gain(f, rf, cf, cd, rsh, rs, cin):
+    """Noise gain 1/beta = 1 + Yin/Yf, complex: the gain from the amplifier's input voltage noise
+    to the output for an ideal amplifier (the rising "en*C" term at high frequency)."""
+    return 1.0 + input_admittance(f, cd, rsh, rs, cin) / feedback_admittance(f, rf, cf)
+
+
+def loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+    """Loop gain T = A(jf) beta(jf), complex.
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz].
+    gbw, dc_gain, poles
+        Amplifier, see :func:`photorx.circuit.amplifier.open_loop_gain`.
+    rf, cf : array_like
+        Feedback resistance [ohm] and capacitance [F].
+    cd, rsh, rs : array_like
+        Photodiode capacitance [F], shunt [ohm] and series resistance [ohm].
+    cin : array_like
+        Amplifier input capacitance [F].
+    """
+    return open_loop_gain(f, gbw, dc_gain, poles) * feedback_factor(f, rf, cf, cd, rsh, rs, cin)
+
+
+def closed_loop_factor(t):
+    """T / (1 + T): how far the loop falls short of ideal feedback, complex."""
+    return t / (1.0 + t)
+
+
+def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+    """Closed-loop transimpedance v_out / i_ph [ohm], complex; +Rf at DC for an ideal amplifier.
+
+    Zt = Zf * Zd/(Zd + Rs) * T/(1 + T); see the module notes for the derivation.
+
+    References
+    ----------
+    .. [1] J. G. Graeme, *Photodiode Amplifiers: Op Amp Solutions*, McGraw-Hill, 1996, ch. 2.
+    .. [2] P. C. D. Hobbs, *Building Electro-Optical Systems*, 2nd ed., Wiley, 2009, ch. 18.
+    """
+    s = _s(f)
+    zf = 1.0 / feedback_admittance(f, rf, cf)
+    zd = 1.0 / (1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float))
+    divider = zd / (zd + np.asarray(rs, dtype=float))
+    t = loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    return zf * divider * closed_loop_factor(t)
+
+
+@dataclass(frozen=True)
+class Tia:
+    """A transimpedance stage: amplifier with feedback Rf || Cf.
+
+    Parameters
+    ----------
+    amp : OpAmp
+        The amplifier.
+    rf : float
+        Feedback resistance [ohm], > 0.
+    cf : float
+        Feedback capacitance [F], >= 0 (include the resistor's parasitic capacitance).
+    """
+
+    amp: OpAmp
+    rf: float = 10e3
+    cf: float = 0.5e-12
+
+    def __post_init__(self):
+        if not isinstance(self.amp, OpAmp):
+            from ..errors import DesignError
+
+            raise DesignError(f"amp must be an OpAmp, got {type(self.amp).__name__}", parameter="amp")
+        object.__setattr__(self, "rf", require_positive("rf", self.rf, "ohm"))
+        object.__setattr__(self, "cf", require_nonnegative("cf", self.cf, "F"))
+
+    # -- parameter routing ---------------------------------------------------------------
+    def _args(self, net):
+        a = self.amp
+        return dict(gbw=a.gbw, dc_gain=a.dc_gain, poles=a.poles, rf=self.rf, cf=self.cf,
+                    cd=net.capacitance, rsh=net.shunt_resistance, rs=net.series_resistance,
+                    cin=a.input_capacitance)
+
+    def _passive(self, net):
+        a = self._args(net)
+        return {k: a[k] for k in ("rf", "cf", "cd", "rsh", "rs", "cin")}
+
+    def transimpedance(self, f, net):
+        """Closed-loop transimpedance [ohm], complex; see :func:`transimpedance`."""
+        return transimpedance(f, **self._args(net))
+
+    def loop_gain(self, f, net):
+        """Loop gain A*beta, complex; see :func:`loop_gain`."""
+        return loop_gain(f, **self._args(net))
+
+    def noise_gain(self, f, net):
+        """Noise gain 1/beta, complex; see :func:`noise_gain`."""
+        return noise_gain(f, **self._passive(net))
+
+    def feedback_factor(self, f, net):
+        """Feedback factor beta, complex; see :func:`feedback_factor`."""
+        return feedback_factor(f, **self._passive(net))

@@ -1,0 +1,1 @@
+"""photorx.device stage."""

@@ -1,0 +1,1 @@
+"""photorx.symbolic stage."""

@@ -1,0 +1,213 @@
+"""SI scale factors, engineering-notation display and parsing of quantities as the trade writes them.
+
+photorx computes in SI everywhere. The factors here only make user code read like a
+data sheet: ``area = (100 * um) ** 2``, ``nd = 1e15 * per_cm3``, ``rf = 10 * kohm``.
+
+Strings such as ``"2.2 pF"``, ``"10 kohm"``, ``"1e15 cm^-3"``, ``"1310 nm"`` or
+``"-20 dBm"`` are parsed by :func:`parse_quantity` with the units library *pint*, and
+shown by :func:`format_eng` with an engineering prefix.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+import re
+
+import numpy as np
+
+from .errors import DesignError
+
+__all__ = [
+    # length
+    "m", "cm", "mm", "um", "nm", "pm",
+    # capacitance
+    "F", "uF", "nF", "pF", "fF",
+    # resistance
+    "ohm", "kohm", "Mohm", "Gohm",
+    # frequency and time
+    "Hz", "kHz", "MHz", "GHz", "s", "ms", "us", "ns", "ps", "fs",
+    # current, voltage, power
+    "A", "mA", "uA", "nA", "pA", "fA", "V", "mV", "uV", "nV", "W", "mW", "uW", "nW", "pW",
+    # doping and other densities
+    "per_cm3", "per_cm4", "cm2", "cm2_per_Vs", "cm_per_s", "per_cm", "V_per_cm",
+    # helpers
+    "format_eng", "parse_quantity", "dbm_to_watt", "watt_to_dbm",
+]
+
+# length [m]
+m = 1.0
+cm = 1e-2
+mm = 1e-3
+um = 1e-6
+nm = 1e-9
+pm = 1e-12
+# capacitance [F]
+F = 1.0
+uF = 1e-6
+nF = 1e-9
+pF = 1e-12
+fF = 1e-15
+# resistance [ohm]
+ohm = 1.0
+kohm = 1e3
+Mohm = 1e6
+Gohm = 1e9
+# frequency [Hz] and time [s]
+Hz = 1.0
+kHz = 1e3
+MHz = 1e6
+GHz = 1e9
+s = 1.0
+ms = 1e-3
+us = 1e-6
+ns = 1e-9
+ps = 1e-12
+fs = 1e-15
+# current [A], voltage [V], power [W]
+A = 1.0
+mA = 1e-3
+uA = 1e-6
+nA = 1e-9
+pA = 1e-12
+fA = 1e-15
+V = 1.0
+mV = 1e-3
+uV = 1e-6
+nV = 1e-9
+W = 1.0
+mW = 1e-3
+uW = 1e-6
+nW = 1e-9
+pW = 1e-12
+# densities and material units expressed in SI
+per_cm3 = 1e6  #: 1 cm^-3 in m^-3
+per_cm4 = 1e8  #: 1 cm^-4 in m^-4 (graded-junction gradient)
+per_cm = 1e2  #: 1 cm^-1 in m^-1 (absorption coefficient)
+cm2 = 1e-4  #: 1 cm^2 in m^2
+cm2_per_Vs = 1e-4  #: mobility, 1 cm^2/(V s) in m^2/(V s)
+cm_per_s = 1e-2  #: velocity, 1 cm/s in m/s
+V_per_cm = 1e2  #: field, 1 V/cm in V/m
+
+_PREFIXES = {
+    -18: "a", -15: "f", -12: "p", -9: "n", -6: "u", -3: "m", 0: "",
+    3: "k", 6: "M", 9: "G", 12: "T", 15: "P",
+}
+
+
+def format_eng(value, unit: str = "", digits: int = 3) -> str:
+    """Format a number with an engineering prefix, e.g. ``format_eng(2.2e-12, "F") == "2.2 pF"``.
+
+    Parameters
+    ----------
+    value : float
+        Value in SI units.
+    unit : str
+        SI unit symbol appended after the prefix (``"F"``, ``"ohm"``, ``"Hz"``...).
+        Units that take no prefix by convention (``"dB"``, ``"deg"``, ``"%"``,
+        ``"dBm"``) and empty units are shown in plain notation.
+    digits : int
+        Significant digits.
+
+    Returns
+    -------
+    str
+        ``"nan"``/``"inf"`` pass through; zero shows as ``"0 unit"``.
+    """
+    v = float(value)
+    unit = unit or ""
+    sep = " " if unit else ""
+    if not math.isfinite(v):
+        return f"{v}{sep}{unit}"
+    if unit in ("dB", "dBm", "deg", "%", "") or unit.startswith("dB"):
+        return f"{v:.{digits}g}{sep}{unit}"
+    if v == 0:
+        return f"0{sep}{unit}"
+    exp3 = int(math.floor(math.log10(abs(v)) / 3) * 3)
+    exp3 = max(min(exp3, 15), -18)
+    mant = v / 10 ** exp3
+    # rounding may carry to 1000 (999.96 -> 1000): step up one prefix
+    if abs(float(f"{mant:.{digits}g}")) >= 1000 and exp3 < 15:
+        exp3 += 3
+        mant = v / 10 ** exp3
+    text = f"{mant:.{digits}g}"
+    return f"{text} {_PREFIXES[exp3]}{unit}"
+
+
+def dbm_to_watt(p_dbm):
+    """Optical or electrical power from dBm to W: P = 1 mW * 10^(dBm/10)."""
+    return 1e-3 * 10.0 ** (np.asarray(p_dbm, dtype=float) / 10.0)
+
+
+def watt_to_dbm(p_watt):
+    """Power from W to dBm; zero or negative power is a DesignError (no -inf)."""
+    p = np.asarray(p_watt, dtype=float)
+    if np.any(p <= 0):
+        raise DesignError.out_of_range("power", p[p <= 0][0] if p.ndim else p, "W",
+                                       "> 0 for a value in dBm")
+    out = 10.0 * np.log10(p / 1e-3)
+    return out if out.ndim else float(out)
+
+
+@functools.lru_cache(maxsize=1)
+def _registry():
+    import pint
+
+    ureg = pint.UnitRegistry()
+    # Trade spellings pint does not know by itself.
+    ureg.define("rtHz = Hz ** 0.5")
+    return ureg
+
+
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+
+
+def parse_quantity(text, unit: str | None = None) -> float:
+    """Parse a quantity written as the trade writes it and return it in SI.
+
+    Parameters
+    ----------
+    text : str or float
+        ``"2.2 pF"``, ``"10 kohm"``, ``"10 kΩ"``, ``"1e15 cm^-3"``, ``"1310 nm"``,
+        ``"5 nV/rtHz"``, ``"-20 dBm"``. A bare number is taken as SI already.
+    unit : str, optional
+        Expected SI unit (pint syntax, e.g. ``"F"``, ``"ohm"``, ``"m^-3"``, ``"W"``).
+        When given, a quantity of another dimension is a :class:`DesignError`.
+
+    Returns
+    -------
+    float
+        Value in SI base units of ``unit``.
+
+    Raises
+    ------
+    DesignError
+        Unparseable text or wrong dimension; the message names both.
+    """
+    if isinstance(text, (int, float, np.integer, np.floating)) and not isinstance(text, bool):
+        return float(text)
+    if not isinstance(text, str):
+        raise DesignError(f"cannot read {text!r} as a quantity; write e.g. '2.2 pF'")
+    raw = text.strip()
+    m_dbm = re.fullmatch(rf"({_NUMBER})\s*dBm", raw)
+    if m_dbm:
+        if unit is not None and _registry()(unit).dimensionality != _registry()("W").dimensionality:
+            raise DesignError(f"'{raw}' is a power but a quantity in {unit} was expected")
+        return float(dbm_to_watt(float(m_dbm.group(1))))
+    cleaned = (raw.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
+               .replace("√Hz", "rtHz").replace("sqrt(Hz)", "rtHz").replace("^", "**"))
+    ureg = _registry()
+    try:
+        qty = ureg.Quantity(cleaned)
+    except Exception as exc:  # pint raises several unrelated types
+        raise DesignError(f"cannot read '{raw}' as a quantity ({exc}); write e.g. '2.2 pF'") from None
+    if not isinstance(qty, ureg.Quantity):  # bare number
+        return float(qty)
+    if unit is None:
+        return float(qty.to_base_units().magnitude)
+    try:
+        return float(qty.to(unit).magnitude)
+    except Exception:
+        raise DesignError(
+            f"'{raw}' has dimension {qty.dimensionality} but a quantity in {unit} was expected"
+        ) from None
