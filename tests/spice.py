@@ -57,7 +57,7 @@ def run_ngspice(circuit: str, analysis: str, vectors: list[str], plot: str | Non
         tmpdir = Path(tmp)
         out = {}
         lines = ["* photorx reference check", circuit.strip(), ".control", "set noaskquit",
-                 "set filetype=ascii", analysis]
+                 "set filetype=ascii", "set numdgt=12", analysis]
         if plot:
             lines.append(f"setplot {plot}")
         for i, name in enumerate(vectors):
