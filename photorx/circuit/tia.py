@@ -174,3 +174,16 @@ class Tia:
     def feedback_factor(self, f, net):
         """Feedback factor beta, complex; see :func:`feedback_factor`."""
         return feedback_factor(f, **self._passive(net))
+
+    # -- analyses owned by other modules (imported lazily to keep the core light) --------
+    def analyze(self, net, **options):
+        """Bandwidth, margins, peaking and step-response figures; see :mod:`photorx.circuit.metrics`."""
+        from .metrics import analyze_tia
+
+        return analyze_tia(self, net, **options)
+
+    def noise(self, net, temperature=300.0, **options):
+        """Noise spectrum of every source at the output; see :mod:`photorx.analysis.noise`."""
+        from ..analysis.noise import tia_noise
+
+        return tia_noise(self, net, temperature=temperature, **options)
