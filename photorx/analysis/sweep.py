@@ -1,0 +1,108 @@
+"""Sweeps: every receiver figure over a cartesian grid of design parameters, in one array call.
+
+The grid is flattened to one axis of N points, the receiver's fields are replaced by
+arrays of length N (see :mod:`photorx.analysis.parameters`), and
+:meth:`~photorx.analysis.receiver.Receiver.evaluate` computes every figure for all N
+points at once through the vectorised core: no Python loop over design points.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DesignError
+from .parameters import resolve_parameter, with_parameters
+
+__all__ = ["sweep", "grid"]
+
+#: Grids larger than this are evaluated in chunks (memory: each point carries a frequency grid).
+CHUNK = 4096
+
+
+def grid(**axes) -> dict[str, np.ndarray]:
+    """Cartesian grid of the given axes, flattened: ``{name: array of length prod(len(axis))}``.
+
+    The first axis varies slowest (row-major order, as ``itertools.product``).
+    """
+    if not axes:
+        raise DesignError("a sweep needs at least one axis, e.g. reverse_bias=np.linspace(0, 20, 81)")
+    arrays = {}
+    for name, values in axes.items():
+        arr = np.atleast_1d(np.asarray(values, dtype=float))
+        if arr.ndim != 1 or arr.size == 0:
+            raise DesignError(f"sweep axis {name!r} must be a non-empty 1-D sequence of numbers",
+                              parameter=name)
+        arrays[name] = arr
+    mesh = np.meshgrid(*arrays.values(), indexing="ij")
+    return {name: m.ravel() for name, m in zip(arrays, mesh)}
+
+
+def sweep(receiver, progress=None, **axes) -> pd.DataFrame:
+    """Evaluate ``receiver`` over the cartesian grid of ``axes``.
+
+    Parameters
+    ----------
+    receiver : Receiver
+        The base design; parameters not swept keep its values.
+    progress : callable, optional
+        Called as ``progress(done, total)`` after each chunk (the command line shows a bar).
+    **axes : array_like
+        Parameter name (a field name anywhere in the receiver tree such as
+        ``reverse_bias``, ``rf``, ``cf``, ``area``, ``i_thickness``, ``wavelength``,
+        ``optical_power``, ``temperature``, or a dotted path written with ``__``) to the
+        1-D values it takes, in SI units.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per grid point: the swept parameters first, then every scalar figure of
+        :class:`~photorx.analysis.receiver.ReceiverResult`.
+
+    Examples
+    --------
+    >>> import numpy as np, photorx as prx
+    >>> rx = prx.demo_receiver()
+    >>> df = prx.sweep(rx, reverse_bias=np.linspace(0, 10, 11), rf=[5e3, 10e3])
+    >>> len(df)
+    22
+    """
+    for name in axes:
+        resolve_parameter(receiver, name.replace("__", "."))  # fail early, naming the axis
+    points = grid(**axes)
+    total = len(next(iter(points.values())))
+    frames = []
+    for start in range(0, total, CHUNK):
+        chunk = {k: v[start:start + CHUNK] for k, v in points.items()}
+        rx = with_parameters(receiver, **chunk)
+        frame = rx.evaluate().to_frame()
+        frame.insert(0, "point", np.arange(start, start + len(frame)))
+        for i, (name, values) in enumerate(chunk.items()):
+            column = name.replace("__", ".")
+            if column in frame.columns:
+                frame[column] = values
+            else:
+                frame.insert(1 + i, column, values)
+        frames.append(frame)
+        if progress is not None:
+            progress(min(start + CHUNK, total), total)
+    out = pd.concat(frames, ignore_index=True)
+    return out.drop(columns="point")
+
+
+def sweep_points(receiver, points) -> pd.DataFrame:
+    """Evaluate a list of explicit design points (dicts of parameter values), vectorised."""
+    keys = sorted(set(itertools.chain.from_iterable(points)))
+    cols = {k: np.array([p[k] for p in points], dtype=float) for k in keys}
+    rx = with_parameters(receiver, **cols)
+    frame = rx.evaluate().to_frame()
+    for k in keys:
+        frame[k] = cols[k]
+    return frame
+
+
+def _n_points(axes) -> int:  # pragma: no cover - helper for callers sizing progress bars
+    return math.prod(len(np.atleast_1d(v)) for v in axes.values())
