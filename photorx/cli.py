@@ -1,17 +1,362 @@
-"""The ``photorx`` command line (placeholder until the receiver stage lands)."""
+"""The ``photorx`` command: budgets, sweeps, optimisation, templates and reports of a design.
+
+Every subcommand takes an optional design (a TOML file or the name of a shipped demo;
+default: the embedded 1310 nm InGaAs PIN demo). Errors print one line on stderr and
+exit with status 2 (bad usage or bad design) or 1 (could not complete: I/O, no feasible
+design); never a traceback (set ``PHOTORX_DEBUG=1`` to see one).
+"""
 
 from __future__ import annotations
 
+import argparse
+import math
+import os
+import re
 import sys
+from pathlib import Path
 
-__all__ = ["main"]
+import numpy as np
+
+from .errors import DesignError
+
+__all__ = ["main", "parse_axis", "parse_constraint"]
+
+EXIT_OK, EXIT_FAILURE, EXIT_USAGE = 0, 1, 2
+
+#: Sweep axes offered as options (``--reverse-bias 0:20:81``); others via ``--axis NAME=SPEC``.
+_AXIS_OPTIONS = ("reverse_bias", "rf", "cf", "wavelength", "optical_power", "temperature", "area")
+
+
+class UsageError(Exception):
+    """A command-line usage error (exit status 2)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, no usage dump
+        raise UsageError(f"{self.prog}: {message} (see '{self.prog} --help')")
+
+
+# ------------------------------------------------------------------------------------------
+# argument helpers
+# ------------------------------------------------------------------------------------------
+def _quantity(text: str) -> float:
+    from .units import parse_quantity
+
+    return parse_quantity(text.strip())
+
+
+def parse_axis(name: str, spec: str) -> np.ndarray:
+    """Values of a sweep axis from ``START:STOP:N[:log]`` or a comma list, in SI.
+
+    ``"0:20:81"`` is 81 points from 0 to 20 inclusive; ``"1 kohm:100 kohm:21:log"`` is
+    logarithmically spaced; ``"1e3,5e3,10e3"`` or ``"1 pF,2 pF"`` lists the values.
+    """
+    text = spec.strip()
+    try:
+        if ":" in text:
+            parts = text.split(":")
+            log = parts[-1].strip().lower() == "log"
+            if log:
+                parts = parts[:-1]
+            if len(parts) != 3:
+                raise ValueError
+            start, stop = _quantity(parts[0]), _quantity(parts[1])
+            n = int(parts[2])
+            if n < 1:
+                raise ValueError
+            if log:
+                if start <= 0 or stop <= 0:
+                    raise DesignError(f"--{name}: a log axis needs positive ends, got {spec!r}",
+                                      parameter=name)
+                return np.geomspace(start, stop, n)
+            return np.linspace(start, stop, n)
+        values = [_quantity(v) for v in text.split(",") if v.strip()]
+        if not values:
+            raise ValueError
+        return np.asarray(values, dtype=float)
+    except ValueError:
+        raise DesignError(f"--{name.replace('_', '-')} {spec!r}: write START:STOP:N (e.g. 0:20:81), "
+                          "START:STOP:N:log or a comma-separated list", parameter=name) from None
+
+
+_CONSTRAINT = re.compile(r"^\s*([A-Za-z_][\w.]*)\s*(>=|<=)\s*(.+)$")
+
+
+def parse_constraint(text: str) -> tuple[str, tuple[str, float]]:
+    """``"bandwidth>=1 GHz"`` -> ``("bandwidth", (">=", 1e9))``."""
+    m = _CONSTRAINT.match(text)
+    if not m:
+        raise DesignError(f"--constraint {text!r}: write FIGURE>=VALUE or FIGURE<=VALUE, "
+                          "e.g. 'bandwidth>=1 GHz'", parameter="constraint")
+    return m.group(1), (m.group(2), _quantity(m.group(3)))
+
+
+def _parse_vary(text: str) -> tuple[str, tuple[float, float]]:
+    name, sep, rng = text.partition("=")
+    parts = rng.split(":")
+    if not sep or len(parts) != 2 or not name.strip():
+        raise DesignError(f"--vary {text!r}: write NAME=LOW:HIGH, e.g. reverse_bias=0:20",
+                          parameter="vary")
+    return name.strip().replace("-", "_"), (_quantity(parts[0]), _quantity(parts[1]))
+
+
+def _load(design):
+    from .designfile import load_design
+
+    return load_design(design)
+
+
+def _write_or_print(text: str, output) -> None:
+    if output in (None, "-"):
+        sys.stdout.write(text)
+    else:
+        from .views._files import atomic_write_text
+
+        atomic_write_text(output, text)
+        print(f"wrote {output}", file=sys.stderr)
+
+
+# ------------------------------------------------------------------------------------------
+# subcommands
+# ------------------------------------------------------------------------------------------
+def _cmd_budget(args) -> int:
+    from .views.tables import EXPORT_FORMATS, normalize_format
+
+    fmt = args.format
+    if fmt is None and args.output not in (None, "-"):
+        suffix = Path(args.output).suffix.lower().lstrip(".")
+        fmt = suffix if suffix in set(EXPORT_FORMATS) | {"markdown", "tex", "htm"} else "text"
+    fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
+    budget = _load(args.design).budget()
+    text = str(budget) if fmt == "text" else {
+        "csv": budget.to_csv, "md": budget.to_markdown, "latex": budget.to_latex,
+        "html": budget.to_html, "json": budget.to_json}[fmt]()
+    _write_or_print(text, args.output)
+    return EXIT_OK
+
+
+def _cmd_sweep(args) -> int:
+    from .analysis.sweep import sweep
+
+    axes = {}
+    for name in _AXIS_OPTIONS:
+        spec = getattr(args, name)
+        if spec is not None:
+            axes[name] = parse_axis(name, spec)
+    for item in args.axis or ():
+        name, sep, spec = item.partition("=")
+        if not sep or not name.strip():
+            raise DesignError(f"--axis {item!r}: write NAME=SPEC, e.g. i_thickness=1e-6:4e-6:7",
+                              parameter="axis")
+        axes[name.strip().replace("-", "_").replace(".", "__")] = parse_axis(name.strip(), spec)
+    if not axes:
+        raise UsageError("photorx sweep: give at least one axis, e.g. --reverse-bias 0:20:81 "
+                         "(see 'photorx sweep --help')")
+    rx = _load(args.design)
+    total = math.prod(len(v) for v in axes.values())
+    show = not args.quiet and total >= args.progress_threshold
+
+    def progress(done, n):
+        if show:
+            width = 30
+            filled = int(width * done / n)
+            print(f"\rsweep [{'#' * filled}{'.' * (width - filled)}] {done}/{n} points",
+                  end="" if done < n else "\n", file=sys.stderr, flush=True)
+
+    frame = sweep(rx, progress=progress, **axes)
+    if args.columns:
+        wanted = [c.strip() for c in args.columns.split(",") if c.strip()]
+        unknown = [c for c in wanted if c not in frame.columns]
+        if unknown:
+            raise DesignError(f"--columns: unknown column(s) {', '.join(unknown)}; known: "
+                              f"{', '.join(frame.columns)}", parameter="columns")
+        keep = list(dict.fromkeys([c.replace("__", ".") for c in axes] + wanted))
+        frame = frame[[c for c in keep if c in frame.columns]]
+    _write_or_print(frame.to_csv(index=False, lineterminator="\n"), args.output)
+    return EXIT_OK
+
+
+def _cmd_optimize(args) -> int:
+    from .analysis.optimize import optimize
+    from .units import format_eng
+
+    if not args.vary:
+        raise UsageError("photorx optimize: give at least one --vary NAME=LOW:HIGH, e.g. "
+                         "--vary reverse_bias=0:20 (see 'photorx optimize --help')")
+    vary = dict(_parse_vary(v) for v in args.vary)
+    constraints = dict(parse_constraint(c) for c in args.constraint or ())
+    rx = _load(args.design)
+    res = optimize(rx, vary=vary, objective=args.objective, constraints=constraints)
+    lines = [f"objective: {res.objective} = {res.value:.6g}",
+             f"feasible: {'yes' if res.success else 'no'} ({res.evaluations} evaluations)"]
+    lines += [f"  {name} = {format_eng(value, _unit_of(name))}"
+              for name, value in res.parameters.items()]
+    if len(res.constraints):
+        lines.append("constraints:")
+        for row in res.constraints.itertuples(index=False):
+            state = "active" if row.active else ("ok" if row.satisfied else "VIOLATED")
+            lines.append(f"  {row.figure} {row.relation} {row.limit:.6g}: {row.value:.6g} ({state})")
+    print("\n".join(lines))
+    if args.save:
+        from .designfile import save_design
+
+        save_design(res.receiver, args.save, name="optimised design")
+        print(f"wrote {args.save}", file=sys.stderr)
+    if args.trade_curve:
+        _write_or_print(res.trade_curve.to_csv(index=False, lineterminator="\n"), args.trade_curve)
+    if not res.success:
+        print("photorx optimize: no design satisfies every constraint", file=sys.stderr)
+        return EXIT_FAILURE
+    return EXIT_OK
+
+
+def _unit_of(name: str) -> str:
+    from .designfile import SCHEMA
+
+    for key in SCHEMA:
+        if key.arg == name.split(".")[-1].split("__")[-1] and key.unit:
+            return key.unit if "^" not in key.unit else ""
+    return ""
+
+
+def _cmd_template(args) -> int:
+    from .designfile import design_template
+
+    if args.output not in (None, "-") and Path(args.output).exists() and not args.force:
+        print(f"photorx template: {args.output} exists; use --force to overwrite", file=sys.stderr)
+        return EXIT_FAILURE
+    _write_or_print(design_template(), args.output)
+    return EXIT_OK
+
+
+def _cmd_report(args) -> int:
+    from .views.report import write_report
+
+    rx = _load(args.design)
+    title = args.title or (Path(args.design).stem if args.design else "demo receiver")
+    path = write_report(rx, args.output, title=title)
+    print(f"wrote {path}", file=sys.stderr)
+    return EXIT_OK
+
+
+def _cmd_demos(args) -> int:
+    from .designfile import DEFAULT_DESIGN, DEMO_DESIGNS
+
+    for name, text in DEMO_DESIGNS.items():
+        print(f"{name:18s} {text}{' [default]' if name == DEFAULT_DESIGN else ''}")
+    return EXIT_OK
+
+
+# ------------------------------------------------------------------------------------------
+# parser
+# ------------------------------------------------------------------------------------------
+def build_parser() -> argparse.ArgumentParser:
+    from . import __version__
+
+    parser = _Parser(prog="photorx", description=(
+        "Optical-receiver design from the photodiode junction up: bias, speed, stability and "
+        "noise budgets of a design file (default: the embedded 1310 nm InGaAs PIN demo)."),
+        epilog="Results are model estimates; verify on hardware. Exit status: 0 ok, 1 failed, "
+               "2 bad usage or design.")
+    parser.add_argument("--version", action="version", version=f"photorx {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    design_help = "design file (TOML) or demo name; default: the embedded demo"
+
+    p = sub.add_parser("budget", help="print or export the receiver budget of a design",
+                       description="Print the budget tables of a design, or export them.")
+    p.add_argument("design", nargs="?", help=design_help)
+    p.add_argument("-f", "--format", choices=["text", "csv", "md", "markdown", "latex", "tex",
+                                              "html", "json"],
+                   help="output format (default: text, or from the --output suffix)")
+    p.add_argument("-o", "--output", help="write to FILE instead of standard output")
+    p.set_defaults(func=_cmd_budget)
+
+    p = sub.add_parser("sweep", help="sweep design parameters on a cartesian grid to CSV",
+                       description="Evaluate the design over a cartesian grid of parameters "
+                                   "and write one CSV row per point. Axes: START:STOP:N, "
+                                   "START:STOP:N:log or a comma list; values in SI or with "
+                                   "units ('1 kohm:100 kohm:21:log').")
+    p.add_argument("design", nargs="?", help=design_help)
+    for name in _AXIS_OPTIONS:
+        p.add_argument(f"--{name.replace('_', '-')}", dest=name, metavar="SPEC",
+                       help=f"values of {name}")
+    p.add_argument("--axis", action="append", metavar="NAME=SPEC",
+                   help="any other parameter (field name or dotted path), repeatable")
+    p.add_argument("--columns", help="comma-separated result columns to keep (default: all)")
+    p.add_argument("-o", "--output", help="CSV file (default: standard output)")
+    p.add_argument("-q", "--quiet", action="store_true", help="no progress indication")
+    p.add_argument("--progress-threshold", type=int, default=2000, help=argparse.SUPPRESS)
+    p.set_defaults(func=_cmd_sweep)
+
+    p = sub.add_parser("optimize", help="optimise parameters under constraints",
+                       description="Find the parameters that optimise an objective figure "
+                                   "subject to constraints on other figures.")
+    p.add_argument("design", nargs="?", help=design_help)
+    p.add_argument("--vary", action="append", metavar="NAME=LOW:HIGH",
+                   help="parameter and its bounds, repeatable (e.g. reverse_bias=0:20)")
+    p.add_argument("--objective", default="snr",
+                   help="figure to optimise, e.g. snr, nep, sensitivity_dbm, or max:NAME / "
+                        "min:NAME (default: snr)")
+    p.add_argument("--constraint", action="append", metavar="FIGURE>=VALUE",
+                   help="e.g. 'bandwidth>=1 GHz', 'phase_margin>=60', repeatable")
+    p.add_argument("--save", metavar="FILE", help="write the optimised design to a design file")
+    p.add_argument("--trade-curve", metavar="FILE", help="write the trade curve against bias (CSV)")
+    p.set_defaults(func=_cmd_optimize)
+
+    p = sub.add_parser("template", help="write a commented template design file",
+                       description="Write a commented template design file.")
+    p.add_argument("-o", "--output", help="file to write (default: standard output)")
+    p.add_argument("--force", action="store_true", help="overwrite an existing file")
+    p.set_defaults(func=_cmd_template)
+
+    p = sub.add_parser("report", help="write a self-contained HTML report of a design",
+                       description="Write one HTML file with the budget, plots and cautions.")
+    p.add_argument("design", nargs="?", help=design_help)
+    p.add_argument("-o", "--output", default="photorx-report.html",
+                   help="HTML file (default: photorx-report.html)")
+    p.add_argument("--title", help="report title")
+    p.set_defaults(func=_cmd_report)
+
+    p = sub.add_parser("demos", help="list the shipped demo designs",
+                       description="List the demo designs shipped with photorx.")
+    p.set_defaults(func=_cmd_demos)
+    return parser
 
 
 def main(argv=None) -> int:
-    from . import __version__
+    """Run the command line; returns the exit status (the console script exits with it)."""
+    try:
+        parser = build_parser()
+        args = parser.parse_args(argv)
+        if args.command is None:
+            parser.print_help()
+            return EXIT_USAGE
+        return args.func(args)
+    except SystemExit as exc:  # --help and --version
+        return exc.code if isinstance(exc.code, int) else EXIT_OK
+    except UsageError as exc:
+        print(f"{exc}", file=sys.stderr)
+        return EXIT_USAGE
+    except DesignError as exc:
+        print(f"photorx: error: {_one_line(exc)}", file=sys.stderr)
+        return EXIT_USAGE
+    except OSError as exc:
+        where = f" {exc.filename}" if getattr(exc, "filename", None) else ""
+        print(f"photorx: error:{where} {exc.strerror or exc}", file=sys.stderr)
+        return EXIT_FAILURE
+    except KeyboardInterrupt:
+        print("photorx: interrupted", file=sys.stderr)
+        return 130
+    except Exception as exc:  # a bug: still one line, unless debugging
+        if os.environ.get("PHOTORX_DEBUG"):
+            raise
+        print(f"photorx: internal error: {type(exc).__name__}: {_one_line(exc)} "
+              "(set PHOTORX_DEBUG=1 for details)", file=sys.stderr)
+        return EXIT_FAILURE
 
-    print(f"photorx {__version__}")
-    return 0
+
+def _one_line(exc) -> str:
+    return " ".join(str(exc).split())
 
 
 if __name__ == "__main__":  # pragma: no cover

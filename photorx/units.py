@@ -13,6 +13,7 @@ from __future__ import annotations
 import functools
 import math
 import re
+from decimal import Decimal
 
 import numpy as np
 
@@ -95,6 +96,9 @@ _PREFIXES = {
 }
 
 
+_NO_PREFIX = frozenset({"", "dB", "dBm", "deg", "%", "A/W", "V/V", "W/W"})
+
+
 def format_eng(value, unit: str = "", digits: int = 3) -> str:
     """Format a number with an engineering prefix, e.g. ``format_eng(2.2e-12, "F") == "2.2 pF"``.
 
@@ -105,7 +109,8 @@ def format_eng(value, unit: str = "", digits: int = 3) -> str:
     unit : str
         SI unit symbol appended after the prefix (``"F"``, ``"ohm"``, ``"Hz"``...).
         Units that take no prefix by convention (``"dB"``, ``"deg"``, ``"%"``,
-        ``"dBm"``) and empty units are shown in plain notation.
+        ``"dBm"``, ratios such as ``"A/W"``), units with a power (``"m^-3"``, ``"m^2"``,
+        where a prefix would be ambiguous) and empty units are shown in plain notation.
     digits : int
         Significant digits.
 
@@ -119,7 +124,8 @@ def format_eng(value, unit: str = "", digits: int = 3) -> str:
     sep = " " if unit else ""
     if not math.isfinite(v):
         return f"{v}{sep}{unit}"
-    if unit in ("dB", "dBm", "deg", "%", "") or unit.startswith("dB"):
+    if unit in _NO_PREFIX or unit.startswith("dB") or re.search(r"\^|\*\*|\d", unit):
+        # a prefix on a powered unit would be misread ((1 um)^2 is 1e-12 m^2, not 1e-6 m^2)
         return f"{v:.{digits}g}{sep}{unit}"
     if v == 0:
         return f"0{sep}{unit}"
@@ -159,7 +165,53 @@ def _registry():
     return ureg
 
 
-_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_NUMBER = r"[-+]?(?:inf\b|(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
+
+# Names shown in dimension errors instead of pint's base-dimension formulas.
+_DIMENSION_NAMES = (
+    ("", "a plain number"), ("m", "a length"), ("m**2", "an area"), ("m**-3", "a density"),
+    ("m**-4", "a doping gradient"), ("F", "a capacitance"), ("ohm", "a resistance"),
+    ("Hz", "a frequency"), ("s", "a time"), ("A", "a current"), ("V", "a voltage"),
+    ("W", "a power"), ("K", "a temperature"), ("V/rtHz", "a voltage noise density"),
+    ("A/rtHz", "a current noise density"), ("A/W", "a responsivity"), ("m**-1", "an inverse length"),
+)
+
+
+def _clean_unit(text: str) -> str:
+    """Trade spellings -> pint syntax (Ω, µ, √Hz, ^)."""
+    return (text.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
+            .replace("√Hz", "rtHz").replace("sqrt(Hz)", "rtHz").replace("^", "**").strip())
+
+
+def _dimension_name(units) -> str:
+    ureg = _registry()
+    dim = ureg.Quantity(1.0, units).dimensionality
+    for spelled, name in _DIMENSION_NAMES:
+        if ureg.Quantity(1.0, spelled).dimensionality == dim:
+            return name
+    return f"dimension {dim}"
+
+
+def _parse_units(text: str, raw: str):
+    ureg = _registry()
+    try:
+        return ureg.Unit(_clean_unit(text))
+    except Exception as exc:  # pint raises several unrelated types
+        raise DesignError(f"cannot read '{raw}' as a quantity (unknown unit '{text}': {exc}); "
+                          "write e.g. '2.2 pF'") from None
+
+
+def _exact_scale(number: str, factor: float) -> float:
+    """number * factor, correctly rounded when the factor is a power of ten.
+
+    ``"2.2 pF"`` gives the float nearest to 2.2e-12 (as the literal ``2.2e-12`` does),
+    not ``2.2 * 1e-12``; this makes written design files read back bit for bit.
+    """
+    if factor > 0:
+        k = round(math.log10(factor))
+        if abs(factor / 10.0 ** k - 1.0) < 1e-12:
+            return float(Decimal(number).scaleb(k))
+    return float(number) * factor
 
 
 def parse_quantity(text, unit: str | None = None) -> float:
@@ -169,15 +221,18 @@ def parse_quantity(text, unit: str | None = None) -> float:
     ----------
     text : str or float
         ``"2.2 pF"``, ``"10 kohm"``, ``"10 kΩ"``, ``"1e15 cm^-3"``, ``"1310 nm"``,
-        ``"5 nV/rtHz"``, ``"-20 dBm"``. A bare number is taken as SI already.
+        ``"5 nV/rtHz"``, ``"-20 dBm"``, ``"25 degC"``, ``"(100 um)^2"``, ``"inf ohm"``.
+        A bare number (Python number or numeric string) is taken as SI already.
     unit : str, optional
         Expected SI unit (pint syntax, e.g. ``"F"``, ``"ohm"``, ``"m^-3"``, ``"W"``).
-        When given, a quantity of another dimension is a :class:`DesignError`.
+        When given, a quantity of another dimension is a :class:`DesignError` and the
+        result is expressed in this unit.
 
     Returns
     -------
     float
-        Value in SI base units of ``unit``.
+        Value in ``unit`` (SI base units when ``unit`` is None). Power-of-ten prefixes
+        are applied in decimal, so ``parse_quantity("2.2 pF") == 2.2e-12`` exactly.
 
     Raises
     ------
@@ -189,25 +244,41 @@ def parse_quantity(text, unit: str | None = None) -> float:
     if not isinstance(text, str):
         raise DesignError(f"cannot read {text!r} as a quantity; write e.g. '2.2 pF'")
     raw = text.strip()
-    m_dbm = re.fullmatch(rf"({_NUMBER})\s*dBm", raw)
-    if m_dbm:
-        if unit is not None and _registry()(unit).dimensionality != _registry()("W").dimensionality:
-            raise DesignError(f"'{raw}' is a power but a quantity in {unit} was expected")
-        return float(dbm_to_watt(float(m_dbm.group(1))))
-    cleaned = (raw.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
-               .replace("√Hz", "rtHz").replace("sqrt(Hz)", "rtHz").replace("^", "**"))
     ureg = _registry()
+    target = None if unit is None else _parse_units(unit, unit)
+    match = re.fullmatch(rf"({_NUMBER})\s*(.*)", raw)
+    if match and not match.group(2).strip():
+        return float(match.group(1))  # bare number: SI already
+    if match and match.group(2).strip() == "dBm":
+        watts = float(dbm_to_watt(float(match.group(1))))
+        if target is None:
+            return watts
+        if target.dimensionality != ureg.Unit("W").dimensionality:
+            raise DesignError(f"'{raw}' is a power but {_dimension_name(target)} in {unit} "
+                              "was expected")
+        return watts * ureg.Quantity(1.0, "W").to(target).magnitude
+    if match:
+        number, source = match.group(1), _parse_units(match.group(2), raw)
+    else:  # a general expression such as "(100 um)^2"
+        if not raw.startswith("("):
+            raise DesignError(f"cannot read '{raw}' as a quantity (no leading number); "
+                              "write e.g. '2.2 pF'")
+        try:
+            qty = ureg.Quantity(_clean_unit(raw))
+        except Exception as exc:
+            raise DesignError(f"cannot read '{raw}' as a quantity ({exc}); write e.g. '2.2 pF'"
+                              ) from None
+        if not isinstance(qty, ureg.Quantity):
+            return float(qty)
+        number, source = repr(float(qty.magnitude)), qty.units
+    if target is None:
+        target = ureg.Quantity(1.0, source).to_base_units().units
+    if ureg.Quantity(1.0, source).dimensionality != ureg.Quantity(1.0, target).dimensionality:
+        raise DesignError(f"'{raw}' is {_dimension_name(source)} but {_dimension_name(target)} "
+                          f"in {unit} was expected")
     try:
-        qty = ureg.Quantity(cleaned)
-    except Exception as exc:  # pint raises several unrelated types
-        raise DesignError(f"cannot read '{raw}' as a quantity ({exc}); write e.g. '2.2 pF'") from None
-    if not isinstance(qty, ureg.Quantity):  # bare number
-        return float(qty)
-    if unit is None:
-        return float(qty.to_base_units().magnitude)
-    try:
-        return float(qty.to(unit).magnitude)
-    except Exception:
-        raise DesignError(
-            f"'{raw}' has dimension {qty.dimensionality} but a quantity in {unit} was expected"
-        ) from None
+        if ureg.Quantity(0.0, source).to(target).magnitude != 0.0:  # offset unit (degC)
+            return float(ureg.Quantity(float(number), source).to(target).magnitude)
+        return _exact_scale(number, float(ureg.Quantity(1.0, source).to(target).magnitude))
+    except Exception as exc:
+        raise DesignError(f"cannot convert '{raw}' to {unit} ({exc})") from None

@@ -1,0 +1,308 @@
+"""NoiseSpectrum: the thin shell over :mod:`photorx.analysis.noise` for one receiver design.
+
+It holds validated parameters, routes every call to the vectorised core and formats the
+noise budget as pandas tables; it computes no physics of its own.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .._validate import require_nonnegative, require_positive
+from ..errors import DesignError
+from ..units import format_eng
+from .integration import DEFAULT_RTOL
+from .noise import (SOURCE_LABELS, chain_enbw, input_noise_psd, integrated_output_noise,
+                    noise_transfer_functions, output_noise_psd)
+
+__all__ = ["NoiseSpectrum"]
+
+_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin")
+
+
+@dataclass(frozen=True, eq=False)
+class NoiseSpectrum:
+    """Noise of one receiver design, source by source; made by :meth:`photorx.Tia.noise`.
+
+    Parameters
+    ----------
+    params : dict
+        Keywords of :func:`photorx.analysis.noise.output_noise_psd` (circuit, noise
+        densities, temperature, shot currents, second-stage noise), scalars.
+    post_filter : photorx.PostFilter, optional
+        Filter after the stage.
+    f_lo, f_hi : float
+        Default integration band [Hz]; ``f_hi`` may be ``inf``.
+    rtol : float
+        Relative tolerance of the integrals.
+
+    Notes
+    -----
+    Output quantities are at the output of the post filter (unity DC gain) [V/rtHz, V];
+    input-referred densities divide by |Zt(f)| [A/rtHz]; input-referred rms values divide
+    the output rms by the mid-band (DC) transimpedance |Zt(0)| [A].
+    """
+
+    params: dict
+    post_filter: object = None
+    f_lo: float = 1.0
+    f_hi: float = np.inf
+    rtol: float = DEFAULT_RTOL
+    _cache: dict = field(default_factory=dict, init=False, repr=False, compare=False)
+
+    def __post_init__(self):
+        object.__setattr__(self, "f_lo", float(require_nonnegative("f_lo", self.f_lo, "Hz")))
+        if not float(self.f_hi) > self.f_lo:
+            raise DesignError.out_of_range("f_hi", self.f_hi, "Hz", f"> f_lo ({self.f_lo:g} Hz)")
+        object.__setattr__(self, "f_hi", float(self.f_hi))
+        object.__setattr__(self, "rtol", float(require_positive("rtol", self.rtol, "")))
+
+    # -- routing --------------------------------------------------------------------------
+    def _filter_kwargs(self):
+        pf = self.post_filter
+        if pf is None:
+            return {}
+        return dict(filter_kind=pf.kind, filter_order=pf.order, filter_cutoff=pf.cutoff)
+
+    def _band(self, f_lo, f_hi):
+        return (self.f_lo if f_lo is None else f_lo), (self.f_hi if f_hi is None else f_hi)
+
+    @property
+    def sources(self):
+        """Keys of the noise sources, in budget order (see ``SOURCE_LABELS``)."""
+        return tuple(output_noise_psd(1.0, **self.params))
+
+    def transimpedance(self, f):
+        """Closed-loop transimpedance Zt(f) without the post filter [ohm], complex."""
+        circuit = {k: self.params[k] for k in _CIRCUIT}
+        return noise_transfer_functions(f, **circuit)["junction"]
+
+    @property
+    def midband_transimpedance(self):
+        """|Zt(0)|, the transimpedance used to refer integrated noise to the input [ohm]."""
+        return float(np.abs(self.transimpedance(0.0)))
+
+    # -- spectra --------------------------------------------------------------------------
+    def by_source(self, f, referred="output"):
+        """Noise density of every source at ``f``.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], > 0.
+        referred : {"output", "input"}
+            ``"output"``: at the filter output [V/rtHz]; ``"input"``: divided by |Zt(f)|
+            [A/rtHz].
+
+        Returns
+        -------
+        dict of numpy.ndarray
+        """
+        f = require_positive("f", f, "Hz")
+        if referred == "output":
+            psd = output_noise_psd(f, **self.params, **self._filter_kwargs())
+        elif referred == "input":
+            psd = input_noise_psd(f, **self.params)
+        else:
+            raise DesignError(f"referred = {referred!r} is invalid; valid values: 'output', 'input'",
+                              parameter="referred")
+        return {name: np.sqrt(v) for name, v in psd.items()}
+
+    def output_density(self, f):
+        """Total output noise density [V/rtHz] (root of the summed PSDs)."""
+        return np.sqrt(sum(v ** 2 for v in self.by_source(f).values()))
+
+    def input_density(self, f):
+        """Total input-referred noise current density [A/rtHz]."""
+        return np.sqrt(sum(v ** 2 for v in self.by_source(f, "input").values()))
+
+    def nep(self, f, responsivity):
+        """Noise-equivalent power [W/rtHz]: input density / responsivity [A/W]."""
+        from .sensitivity import noise_equivalent_power
+
+        return noise_equivalent_power(self.input_density(f), responsivity)
+
+    # -- integrals ------------------------------------------------------------------------
+    def mean_square(self, f_lo=None, f_hi=None):
+        """Mean-square output noise of every source over [f_lo, f_hi] [V^2] (dict)."""
+        f_lo, f_hi = self._band(f_lo, f_hi)
+        key = ("ms", float(f_lo), float(f_hi))
+        if key not in self._cache:
+            ms = integrated_output_noise(f_lo, f_hi, rtol=self.rtol, **self.params,
+                                         **self._filter_kwargs())
+            self._cache[key] = {name: float(v) for name, v in ms.items()}
+        return dict(self._cache[key])
+
+    def output_rms(self, f_lo=None, f_hi=None):
+        """Total rms output noise over [f_lo, f_hi] [V]; defaults to the spectrum's band."""
+        return math.sqrt(sum(self.mean_square(f_lo, f_hi).values()))
+
+    def input_rms(self, f_lo=None, f_hi=None):
+        """Total rms noise referred to the input through |Zt(0)| [A]."""
+        return self.output_rms(f_lo, f_hi) / self.midband_transimpedance
+
+    def enbw(self):
+        """Equivalent noise bandwidth of the transimpedance times the post filter [Hz].
+
+        ENBW = integral_0^inf |Zt H|^2 df / |Zt(0)|^2; see
+        :func:`photorx.analysis.noise.chain_enbw`.
+        """
+        if "enbw" not in self._cache:
+            circuit = {k: self.params[k] for k in _CIRCUIT}
+            self._cache["enbw"] = float(chain_enbw(**circuit, **self._filter_kwargs(), rtol=self.rtol))
+        return self._cache["enbw"]
+
+    # -- tables ---------------------------------------------------------------------------
+    def budget(self, f=None, f_lo=None, f_hi=None, drop_zero=True):
+        """Noise budget: one row per source.
+
+        Parameters
+        ----------
+        f : float, optional
+            Frequency of the input-referred spot density [Hz]; default ENBW/10 (in the
+            flat part of the response).
+        f_lo, f_hi : float, optional
+            Integration band [Hz]; default the spectrum's band.
+        drop_zero : bool
+            Leave out sources that contribute nothing (e.g. Rs thermal when Rs = 0).
+
+        Returns
+        -------
+        pandas.DataFrame
+            Index: source key. Columns ``source`` (label), ``input density [A/rtHz]`` at
+            ``f``, ``output rms [V]``, ``input rms [A]`` (through |Zt(0)|), ``share [%]`` of
+            the total noise power, ``dominant`` (True for the largest). ``attrs`` holds the
+            totals, ``f``, the band and the ENBW.
+        """
+        import pandas as pd
+
+        f_lo, f_hi = self._band(f_lo, f_hi)
+        f_spot = self.enbw() / 10.0 if f is None else float(require_positive("f", f, "Hz"))
+        ms = self.mean_square(f_lo, f_hi)
+        dens = self.by_source(f_spot, "input")
+        total = sum(ms.values())
+        zt0 = self.midband_transimpedance
+        rows = {}
+        for name, value in ms.items():
+            if drop_zero and value == 0.0:
+                continue
+            rows[name] = {
+                "source": SOURCE_LABELS.get(name, name),
+                "input density [A/rtHz]": float(dens[name]),
+                "output rms [V]": math.sqrt(value),
+                "input rms [A]": math.sqrt(value) / zt0,
+                "share [%]": 100.0 * value / total if total > 0 else 0.0,
+            }
+        df = pd.DataFrame.from_dict(rows, orient="index")
+        df.index.name = "key"
+        df["dominant"] = df["share [%]"] == df["share [%]"].max()
+        df.attrs.update({"f [Hz]": f_spot, "f_lo [Hz]": f_lo, "f_hi [Hz]": f_hi,
+                         "output rms [V]": math.sqrt(total), "input rms [A]": math.sqrt(total) / zt0,
+                         "input density [A/rtHz]": float(np.sqrt(sum(v ** 2 for v in dens.values()))),
+                         "enbw [Hz]": self.enbw(), "transimpedance [ohm]": zt0})
+        return df
+
+    def by_decade(self, f_lo=None, f_hi=None, quantity="share", drop_zero=True):
+        """Split of the noise by source and frequency decade.
+
+        Parameters
+        ----------
+        f_lo, f_hi : float, optional
+            Band [Hz]; the first and last columns are partial decades. With ``f_hi = inf``
+            the last column runs from the first decade above 100 x ENBW to infinity.
+        quantity : {"share", "output_rms", "input_rms"}
+            Cell values: percent of the total noise power (cells sum to 100), rms output
+            noise in that band [V], or rms noise referred to the input [A].
+
+        Returns
+        -------
+        pandas.DataFrame
+            Index: source key; columns: band labels such as ``"1 kHz-10 kHz"``. Sources
+            that contribute nothing are left out when ``drop_zero``.
+        """
+        import pandas as pd
+
+        if quantity not in ("share", "output_rms", "input_rms"):
+            raise DesignError(f"quantity = {quantity!r} is invalid; valid values: 'share', "
+                              "'output_rms', 'input_rms'", parameter="quantity")
+        f_lo, f_hi = self._band(f_lo, f_hi)
+        start = 10.0 ** math.floor(math.log10(f_lo)) if f_lo > 0 else None
+        top = f_hi if math.isfinite(f_hi) else 10.0 ** math.ceil(math.log10(100.0 * self.enbw()))
+        edges = [f_lo]
+        e = start * 10.0 if start is not None else 10.0 ** math.floor(math.log10(top / 1e6))
+        while e < top:
+            if e > f_lo:
+                edges.append(e)
+            e *= 10.0
+        edges.append(f_hi)
+        columns = {}
+        for a, b in zip(edges[:-1], edges[1:]):
+            label = f"{format_eng(a, 'Hz')}-{format_eng(b, 'Hz')}"
+            columns[label] = self.mean_square(a, b)
+        df = pd.DataFrame(columns)
+        if drop_zero:
+            df = df[df.sum(axis=1) > 0]
+        total = df.to_numpy().sum()
+        if quantity == "share":
+            df = 100.0 * df / total
+        elif quantity == "output_rms":
+            df = np.sqrt(df)
+        else:
+            df = np.sqrt(df) / self.midband_transimpedance
+        df.index.name = "key"
+        return df
+
+    def to_frame(self, f, referred="output"):
+        """Densities by source and total on the grid ``f`` (index) as a DataFrame."""
+        import pandas as pd
+
+        f = np.atleast_1d(np.asarray(f, dtype=float))
+        data = self.by_source(f, referred)
+        df = pd.DataFrame(data, index=pd.Index(f, name="f [Hz]"))
+        df["total"] = np.sqrt((df ** 2).sum(axis=1))
+        return df
+
+    # -- display --------------------------------------------------------------------------
+    def plot(self, ax=None, f=None, referred="output"):
+        """Stacked noise power density by source (powers add) versus frequency.
+
+        Parameters
+        ----------
+        ax : matplotlib.axes.Axes, optional
+        f : array_like, optional
+            Frequency grid [Hz]; default from the band start to 100 x ENBW.
+        referred : {"output", "input"}
+
+        Returns
+        -------
+        matplotlib.axes.Axes
+        """
+        import matplotlib.pyplot as plt
+
+        if ax is None:
+            _, ax = plt.subplots()
+        if f is None:
+            lo = max(self.f_lo, 1e-3 * self.enbw() * 1e-3)
+            f = np.logspace(np.log10(lo), np.log10(100.0 * self.enbw()), 400)
+        dens = self.by_source(f, referred)
+        keep = [k for k, v in dens.items() if np.any(v > 0)]
+        ax.stackplot(f, *[dens[k] ** 2 for k in keep], labels=[SOURCE_LABELS.get(k, k) for k in keep])
+        ax.set_xscale("log")
+        ax.set_xlabel("frequency [Hz]")
+        ax.set_ylabel("output noise PSD [V$^2$/Hz]" if referred == "output"
+                      else "input noise PSD [A$^2$/Hz]")
+        ax.legend(loc="best", fontsize="small")
+        return ax
+
+    def _repr_html_(self):
+        df = self.budget()
+        a = df.attrs
+        head = (f"<p><b>NoiseSpectrum</b>: {format_eng(a['output rms [V]'], 'V')} rms at the output, "
+                f"{format_eng(a['input rms [A]'], 'A')} rms at the input, band "
+                f"{format_eng(a['f_lo [Hz]'], 'Hz')} to {format_eng(a['f_hi [Hz]'], 'Hz')}, "
+                f"ENBW {format_eng(a['enbw [Hz]'], 'Hz')}, "
+                f"|Zt(0)| {format_eng(a['transimpedance [ohm]'], 'ohm')}</p>")
+        return head + df.to_html(float_format=lambda v: f"{v:.4g}")

@@ -1,0 +1,506 @@
+"""Optics of a photodiode: absorption data, quantum efficiency and responsivity.
+
+Functional core (pure, vectorised, SI): :func:`interpolate_absorption` reads the shipped
+absorption tables (``photorx/data/absorption_<material>.csv``, each naming its published
+source in its header), :func:`internal_quantum_efficiency` collects the carriers of a
+front-illuminated layer stack (undepleted top layer | depletion layer | undepleted bottom
+layer), and :func:`responsivity_from_qe` turns quantum efficiency into A/W.
+
+Structure assumed by the quantum-efficiency model (x measured from the illuminated
+surface, light at normal incidence)::
+
+    0 .. d            undepleted top layer, minority diffusion length L_t, low-recombination
+                      (passivated) front surface
+    d .. d + W        depletion layer: every pair generated here is collected
+    d + W .. d + W + H  undepleted bottom layer, diffusion length L_b, low-recombination
+                      back boundary (high-low junction or heterointerface); H may be inf
+
+Glossary: ``alpha`` absorption coefficient [m^-1]; ``reflectance`` front power
+reflectance [-]; ``qe`` external quantum efficiency [-] (electrons per incident photon).
+"""
+
+from __future__ import annotations
+
+import functools
+from importlib import resources
+
+import numpy as np
+
+from .._validate import as_float_array, require_in_range, require_nonnegative, require_positive
+from ..constants import c, h, q
+from ..errors import DesignError
+
+__all__ = [
+    "ABSORPTION_MATERIALS",
+    "absorption_table",
+    "absorption_source",
+    "interpolate_absorption",
+    "absorption_coefficient",
+    "photon_energy",
+    "fresnel_reflectance",
+    "responsivity_from_qe",
+    "qe_from_responsivity",
+    "top_layer_collection",
+    "bottom_layer_collection",
+    "collection_fractions",
+    "internal_quantum_efficiency",
+    "quantum_efficiency",
+    "interpolate_responsivity",
+    "require_thickness_or_inf",
+]
+
+#: Materials with a shipped absorption table (names as :func:`photorx.material` spells them).
+ABSORPTION_MATERIALS = ("Si", "Ge", "GaAs", "InP", "InGaAs")
+
+_T_REF = 300.0  # temperature of the tables [K]
+_HC_EV_M = h * c / q  # photon energy times wavelength [eV m]; 1.23984e-6
+
+
+def _out(x):
+    return x if np.ndim(x) else (complex(x) if np.iscomplexobj(x) else float(x))
+
+
+# ---------------------------------------------------------------------------------------
+# absorption data
+# ---------------------------------------------------------------------------------------
+def _table_key(name: str) -> str:
+    key = str(name).strip().lower()
+    if key in ("in0.53ga0.47as", "ga0.47in0.53as"):
+        key = "ingaas"
+    for known in ABSORPTION_MATERIALS:
+        if known.lower() == key:
+            return known
+    raise DesignError(f"material = {name!r} has no absorption table; tables exist for "
+                      f"{', '.join(ABSORPTION_MATERIALS)} (or give the responsivity directly)",
+                      parameter="material")
+
+
+@functools.lru_cache(maxsize=None)
+def _load(name: str):
+    text = resources.files("photorx").joinpath(f"data/absorption_{name.lower()}.csv").read_text(
+        encoding="utf-8")
+    header = [ln[1:].strip() for ln in text.splitlines() if ln.startswith("#")]
+    rows = [ln for ln in text.splitlines() if ln and not ln.startswith("#")]
+    data = np.array([[float(v) for v in ln.split(",")] for ln in rows[1:]])
+    wl = data[:, 0] * 1e-9  # nm -> m
+    alpha = data[:, 1] * 1e2  # cm^-1 -> m^-1
+    if np.any(np.diff(wl) <= 0) or np.any(alpha <= 0):  # package bug, not user error
+        raise RuntimeError(f"absorption_{name.lower()}.csv: wavelengths must increase, alpha > 0")
+    wl.flags.writeable = False
+    alpha.flags.writeable = False
+    return wl, alpha, "\n".join(header)
+
+
+def absorption_table(name: str):
+    """Shipped absorption table of a material at 300 K.
+
+    Parameters
+    ----------
+    name : str
+        One of :data:`ABSORPTION_MATERIALS` (case-insensitive).
+
+    Returns
+    -------
+    wavelength : numpy.ndarray
+        Vacuum wavelengths [m], increasing (read-only).
+    alpha : numpy.ndarray
+        Absorption coefficient [m^-1] (read-only).
+    """
+    wl, alpha, _ = _load(_table_key(name))
+    return wl, alpha
+
+
+def absorption_source(name: str) -> str:
+    """Header of a material's absorption file: the published source and its caveats."""
+    return _load(_table_key(name))[2]
+
+
+def photon_energy(wavelength):
+    """Photon energy h c / lambda [eV] of vacuum wavelength ``wavelength`` [m]."""
+    wl = require_positive("wavelength", wavelength, "m")
+    return _out(_HC_EV_M / np.asarray(wl))
+
+
+def interpolate_absorption(wavelength, table_wavelength, table_alpha, band_gap, band_gap_ref,
+                           table_name="absorption"):
+    """Absorption coefficient from a 300 K table, shifted with the band gap.
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0.
+    table_wavelength, table_alpha : array_like
+        Table at the reference temperature: increasing wavelengths [m], alpha > 0 [m^-1].
+    band_gap : float or array_like
+        Band gap at the temperature of interest [eV].
+    band_gap_ref : float
+        Band gap at the temperature of the table [eV].
+    table_name : str, optional
+        Name used in the error message.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        alpha [m^-1]; 0 for photon energies below ``band_gap``.
+
+    Raises
+    ------
+    DesignError
+        A wavelength above the band gap energy but outside the table; the message names
+        the table range.
+
+    Notes
+    -----
+    E = h c / lambda; E_ref = E - (Eg(T) - Eg(T_ref)); alpha(E, T) = alpha_ref(E_ref),
+    ln(alpha) interpolated linearly in photon energy between table points; alpha = 0 for
+    E < Eg(T). The rigid shift of the absorption edge with the band gap is the usual
+    first-order temperature model (it reproduces the sign and rough size of the red-edge
+    temperature coefficient); the weak phonon-assisted absorption just below the gap of
+    indirect semiconductors is neglected.
+
+    References
+    ----------
+    .. [1] M. A. Green, Self-consistent optical parameters of intrinsic silicon at 300 K
+       including temperature coefficients, Solar Energy Materials & Solar Cells 92, 1305
+       (2008) (temperature coefficients of alpha follow the gap shift near the edge).
+    """
+    wl = require_positive("wavelength", wavelength, "m")
+    t_wl = np.asarray(table_wavelength, dtype=float)
+    t_a = np.asarray(table_alpha, dtype=float)
+    e = _HC_EV_M / np.asarray(wl, dtype=float)
+    shift = np.asarray(band_gap, dtype=float) - np.asarray(band_gap_ref, dtype=float)
+    e_ref = e - shift
+    above = e >= np.asarray(band_gap, dtype=float)
+    e_lo, e_hi = _HC_EV_M / t_wl[-1], _HC_EV_M / t_wl[0]
+    outside = above & ((e_ref < e_lo * (1 - 1e-12)) | (e_ref > e_hi * (1 + 1e-12)))
+    if np.any(outside):
+        bad = np.broadcast_to(np.asarray(wl), outside.shape)[outside]
+        note = "" if np.all(shift == 0) else ", shifted with the band gap"
+        raise DesignError.out_of_range(
+            "wavelength", bad[0] if bad.size else wl, "m",
+            f"{t_wl[0]:.4g} to {t_wl[-1]:.4g} m ({t_wl[0] * 1e9:.0f} to {t_wl[-1] * 1e9:.0f} nm,"
+            f" range of the {table_name} table{note})")
+    # np.interp needs increasing abscissae: energies of the reversed table
+    log_a = np.interp(e_ref, (_HC_EV_M / t_wl)[::-1], np.log(t_a)[::-1])
+    out = np.where(above, np.exp(log_a), 0.0)
+    return _out(out)
+
+
+def absorption_coefficient(wavelength, material, temperature=_T_REF):
+    """Absorption coefficient of a semiconductor from the shipped tables [m^-1].
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m].
+    material : Material or str
+        A :class:`~photorx.device.materials.Material` or its name; its band gap sets the
+        cutoff and the temperature shift.
+    temperature : float or array_like, optional
+        Temperature [K] (default 300).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        alpha [m^-1]; zero beyond the cutoff wavelength h c / Eg(T).
+
+    Notes
+    -----
+    See :func:`interpolate_absorption`; the sources of each table are in
+    :func:`absorption_source` and reference/SOURCES.md.
+
+    References
+    ----------
+    .. [1] M. A. Green, Solar Energy Materials & Solar Cells 92, 1305 (2008) (Si).
+    .. [2] W. C. Dash and R. Newman, Physical Review 99, 1151 (1955) (Ge).
+    .. [3] D. E. Aspnes and A. A. Studna, Physical Review B 27, 985 (1983) (GaAs, InP).
+    .. [4] D. A. Humphreys et al., Electronics Letters 21, 1187 (1985) (In0.53Ga0.47As).
+    """
+    from .materials import material as _material
+
+    mat = _material(material) if isinstance(material, str) else material
+    key = _table_key(mat.name)
+    wl_t, a_t, _ = _load(key)
+    return interpolate_absorption(wavelength, wl_t, a_t, mat.band_gap(temperature),
+                                  mat.band_gap(_T_REF), table_name=f"{key} absorption")
+
+
+def fresnel_reflectance(refractive_index, ambient_index=1.0):
+    """Power reflectance of a bare surface at normal incidence [-].
+
+    Parameters
+    ----------
+    refractive_index : float or array_like
+        Refractive index of the semiconductor [-], >= 1.
+    ambient_index : float or array_like, optional
+        Refractive index of the medium the light comes from [-] (1 = air).
+
+    Notes
+    -----
+    R = ((n - n0) / (n + n0))^2 (absorption neglected, k << n).
+
+    References
+    ----------
+    .. [1] B. E. A. Saleh and M. C. Teich, *Fundamentals of Photonics*, 2nd ed., Wiley,
+       2007, sec. 6.2 (Fresnel equations).
+    """
+    n = require_in_range("refractive_index", refractive_index, "", 1.0)
+    n0 = require_in_range("ambient_index", ambient_index, "", 1.0)
+    return _out(((np.asarray(n) - n0) / (np.asarray(n) + n0)) ** 2)
+
+
+def responsivity_from_qe(qe, wavelength):
+    """Responsivity R = eta q lambda / (h c) [A/W].
+
+    Parameters
+    ----------
+    qe : float or array_like
+        External quantum efficiency [-], 0 to 1 (no gain).
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0.
+
+    Notes
+    -----
+    R = eta lambda / (1.23984 um) A/W.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 13 (responsivity of photodetectors).
+    """
+    eta = require_in_range("qe", qe, "", 0.0, 1.0)
+    wl = require_positive("wavelength", wavelength, "m")
+    return _out(np.asarray(eta) * np.asarray(wl) / _HC_EV_M)
+
+
+def qe_from_responsivity(responsivity, wavelength):
+    """Quantum efficiency eta = R h c / (q lambda) [-] of responsivity [A/W] at wavelength [m]."""
+    r = require_nonnegative("responsivity", responsivity, "A/W")
+    wl = require_positive("wavelength", wavelength, "m")
+    return _out(np.asarray(r) * _HC_EV_M / np.asarray(wl))
+
+
+# ---------------------------------------------------------------------------------------
+# carrier collection
+# ---------------------------------------------------------------------------------------
+def require_thickness_or_inf(name, value):
+    """Thickness [m] >= 0 where ``numpy.inf`` (a thick substrate) is allowed."""
+    raw = np.asarray(as_float_array(name, value, "m"), dtype=float)
+    finite = np.where(np.isposinf(raw), 0.0, raw)
+    require_nonnegative(name, finite, "m")  # rejects NaN, -inf and negatives
+    return _out(raw)
+
+
+def _g(z):
+    """(1 - exp(-z)) / z with g(0) = 1; complex-safe. Callers keep Re(z) >= 0."""
+    z = np.asarray(z)
+    small = np.abs(z) < 1e-8
+    zs = np.where(small, 1.0, z)
+    return np.where(small, 1.0 - z / 2.0, -np.expm1(-zs) / zs)
+
+
+def _divdiff(p, s, d):
+    """(exp(-p d) - exp(-s d)) / (s - p), stable for any p, s with Re >= 0, complex-safe."""
+    p, s = np.broadcast_arrays(np.asarray(p), np.asarray(s))
+    swap = np.real(p) > np.real(s)
+    lo = np.where(swap, s, p)
+    hi = np.where(swap, p, s)
+    return np.exp(-lo * d) * d * _g((hi - lo) * d)
+
+
+def _clip_thickness(thickness, b):
+    # beyond ~400 diffusion lengths (or absorption lengths) nothing changes in double precision
+    return np.minimum(np.asarray(thickness, dtype=float), 400.0 / np.real(b))
+
+
+def _top_collection(a, d, b):
+    """Top layer, reflecting front surface: int_0^d a e^{-ax} cosh(bx)/cosh(bd) dx."""
+    d = _clip_thickness(d, b)
+    e2 = np.exp(-2.0 * b * d)
+    return a / (1.0 + e2) * (_divdiff(b, a, d) + _divdiff(b, a + 2.0 * b, d))
+
+
+def _bottom_collection(a, thick, b):
+    """Bottom layer, reflecting back: int_0^H a e^{-ax} cosh(b(H-x))/cosh(bH) dx."""
+    hh = _clip_thickness(thick, b)
+    e2 = np.exp(-2.0 * b * hh)
+    return a / (1.0 + e2) * (_divdiff(0.0, a + b, hh) + _divdiff(2.0 * b, a + b, hh))
+
+
+def top_layer_collection(alpha, thickness, diffusion_length):
+    """Fraction of photons entering the top layer whose carriers reach the depletion edge [-].
+
+    Parameters
+    ----------
+    alpha : float or array_like
+        Absorption coefficient [m^-1], >= 0.
+    thickness : float or array_like
+        Undepleted top-layer thickness d [m], >= 0.
+    diffusion_length : float or array_like
+        Minority-carrier diffusion length in the top layer [m], > 0.
+
+    Notes
+    -----
+    Generation alpha e^{-alpha x}; collection probability cosh(x/L)/cosh(d/L) (diffusion
+    equation with a reflecting, i.e. passivated, front surface and a perfectly collecting
+    depletion edge at x = d); the integral in closed form. Limits: alpha d for thin
+    layers, 1 - e^{-alpha d} for L -> inf.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 13 (quantum efficiency, diffusion from the undepleted regions).
+    .. [2] C. Donolato, A reciprocity theorem for charge collection, Applied Physics
+       Letters 46, 270 (1985) (collection-probability formulation).
+    """
+    a = require_nonnegative("alpha", alpha, "m^-1")
+    d = require_nonnegative("thickness", thickness, "m")
+    ln = require_positive("diffusion_length", diffusion_length, "m")
+    return _out(np.real(_top_collection(np.asarray(a), np.asarray(d), 1.0 / np.asarray(ln))))
+
+
+def bottom_layer_collection(alpha, thickness, diffusion_length):
+    """Fraction of photons entering the bottom layer whose carriers reach the depletion edge [-].
+
+    Parameters
+    ----------
+    alpha : float or array_like
+        Absorption coefficient [m^-1], >= 0.
+    thickness : float or array_like
+        Undepleted bottom-layer thickness H [m], >= 0; ``numpy.inf`` for a thick substrate.
+    diffusion_length : float or array_like
+        Minority-carrier diffusion length [m], > 0.
+
+    Notes
+    -----
+    Collection probability cosh((H - x)/L)/cosh(H/L) (reflecting back boundary). For
+    H -> inf this is Gaertner's alpha L / (1 + alpha L).
+
+    References
+    ----------
+    .. [1] W. W. Gaertner, Depletion-layer photoeffects in semiconductors, Physical Review
+       116, 84 (1959).
+    .. [2] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 13.
+    """
+    a = require_nonnegative("alpha", alpha, "m^-1")
+    hh = require_thickness_or_inf("thickness", thickness)
+    ln = require_positive("diffusion_length", diffusion_length, "m")
+    return _out(np.real(_bottom_collection(np.asarray(a), hh, 1.0 / np.asarray(ln))))
+
+
+def collection_fractions(alpha, top_thickness, depletion_width, bottom_thickness,
+                         top_diffusion_length, bottom_diffusion_length):
+    """Collected carriers per photon entering the semiconductor, by region [-].
+
+    Parameters
+    ----------
+    alpha : float or array_like
+        Absorption coefficient [m^-1], >= 0.
+    top_thickness : float or array_like
+        Undepleted top layer d [m], >= 0.
+    depletion_width : float or array_like
+        Depletion width W [m], >= 0.
+    bottom_thickness : float or array_like
+        Undepleted absorbing bottom layer H [m], >= 0 or inf.
+    top_diffusion_length, bottom_diffusion_length : float or array_like
+        Minority-carrier diffusion lengths [m], > 0.
+
+    Returns
+    -------
+    top, drift, bottom : float or numpy.ndarray
+        Diffusion from the top layer, drift in the depletion layer, diffusion from the
+        bottom layer. Their sum is the internal quantum efficiency.
+
+    Notes
+    -----
+    top = C_t(alpha, d, L_t); drift = e^{-alpha d} (1 - e^{-alpha W});
+    bottom = e^{-alpha (d + W)} C_b(alpha, H, L_b), with C_t, C_b from
+    :func:`top_layer_collection` and :func:`bottom_layer_collection`. For d = 0, H = inf
+    this is Gaertner's eta = 1 - e^{-alpha W} / (1 + alpha L).
+
+    References
+    ----------
+    .. [1] W. W. Gaertner, Physical Review 116, 84 (1959).
+    .. [2] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 13 (quantum efficiency of p-i-n photodiodes).
+    """
+    a = np.asarray(require_nonnegative("alpha", alpha, "m^-1"))
+    d = np.asarray(require_nonnegative("top_thickness", top_thickness, "m"))
+    w = np.asarray(require_nonnegative("depletion_width", depletion_width, "m"))
+    hraw = np.asarray(require_thickness_or_inf("bottom_thickness", bottom_thickness))
+    lt = np.asarray(require_positive("top_diffusion_length", top_diffusion_length, "m"))
+    lb = np.asarray(require_positive("bottom_diffusion_length", bottom_diffusion_length, "m"))
+    top = np.real(_top_collection(a, d, 1.0 / lt))
+    drift = np.exp(-a * d) * -np.expm1(-a * w)
+    bottom = np.exp(-a * (d + w)) * np.real(_bottom_collection(a, hraw, 1.0 / lb))
+    return _out(top), _out(drift), _out(bottom)
+
+
+def internal_quantum_efficiency(alpha, top_thickness, depletion_width, bottom_thickness,
+                                top_diffusion_length, bottom_diffusion_length):
+    """Collected carriers per photon entering the semiconductor [-] (sum of
+    :func:`collection_fractions`; same parameters)."""
+    top, drift, bottom = collection_fractions(alpha, top_thickness, depletion_width,
+                                              bottom_thickness, top_diffusion_length,
+                                              bottom_diffusion_length)
+    return _out(np.asarray(top) + drift + bottom)
+
+
+def quantum_efficiency(alpha, reflectance, top_thickness, depletion_width, bottom_thickness,
+                       top_diffusion_length, bottom_diffusion_length):
+    """External quantum efficiency eta = (1 - R) eta_int [-].
+
+    Parameters
+    ----------
+    alpha : float or array_like
+        Absorption coefficient [m^-1].
+    reflectance : float or array_like
+        Front power reflectance [-], 0 to 1.
+    top_thickness, depletion_width, bottom_thickness, top_diffusion_length, bottom_diffusion_length
+        As :func:`collection_fractions` [m].
+
+    Notes
+    -----
+    eta = (1 - R) [C_t + e^{-alpha d}(1 - e^{-alpha W}) + e^{-alpha(d+W)} C_b]; light
+    reaching the back of the absorbing stack is lost (no back reflection).
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 13.
+    """
+    r = require_in_range("reflectance", reflectance, "", 0.0, 1.0)
+    eta = internal_quantum_efficiency(alpha, top_thickness, depletion_width, bottom_thickness,
+                                      top_diffusion_length, bottom_diffusion_length)
+    return _out((1.0 - np.asarray(r)) * np.asarray(eta))
+
+
+def interpolate_responsivity(wavelength, table_wavelength, table_responsivity):
+    """Responsivity from a user table, linear in wavelength [A/W].
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m].
+    table_wavelength : array_like
+        Increasing wavelengths of the table [m].
+    table_responsivity : array_like
+        Responsivity at those wavelengths [A/W], >= 0.
+
+    Raises
+    ------
+    DesignError
+        A wavelength outside the table; the message names the table range.
+    """
+    wl = require_positive("wavelength", wavelength, "m")
+    t_wl = np.asarray(table_wavelength, dtype=float)
+    t_r = np.asarray(table_responsivity, dtype=float)
+    a = np.asarray(wl)
+    bad = (a < t_wl[0] * (1 - 1e-12)) | (a > t_wl[-1] * (1 + 1e-12))
+    if np.any(bad):
+        raise DesignError.out_of_range(
+            "wavelength", a[bad][0] if a.ndim else a, "m",
+            f"{t_wl[0]:.4g} to {t_wl[-1]:.4g} m ({t_wl[0] * 1e9:.0f} to {t_wl[-1] * 1e9:.0f} nm,"
+            " range of the responsivity table)")
+    return _out(np.interp(a, t_wl, t_r))

@@ -1,0 +1,365 @@
+"""Receiver budget tables: engineering-unit display and machine-readable exports.
+
+A :class:`Budget` holds named pandas tables handed to it by the receiver (operating point,
+speed, stability, noise by source, sensitivity, ...). It only formats and writes them;
+it never computes physics.
+
+Table format
+------------
+Each table is a :class:`pandas.DataFrame`. The usual long form has the columns
+
+``quantity``
+    Name of the figure (``"bandwidth"``, ``"phase margin"``...).
+``value``
+    The value in SI units (float), or a bool/str for flags and labels.
+``unit``
+    The SI unit symbol (``"Hz"``, ``"F"``, ``"A/rtHz"``, ``"deg"``, ``""``).
+``display`` (optional)
+    Text shown instead of the engineering-formatted value.
+
+Any other columns (``"note"``, ``"limit"``, ``"status"``...) are shown as they are. A wide
+table (for instance one row per noise source and one column per figure) may give the units
+of its numeric columns in ``df.attrs["units"] = {"column": "unit"}``; those columns are then
+shown with engineering prefixes too. CSV and JSON exports keep the SI floats and the unit
+column so that they can be read back by programs.
+"""
+
+from __future__ import annotations
+
+import html
+import json
+import math
+import re
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DesignError
+from ..units import format_eng
+from ._files import atomic_write_text
+from .cautions import cautions_html, cautions_markdown
+
+__all__ = ["Budget", "EXPORT_FORMATS"]
+
+#: export format -> file suffix
+EXPORT_FORMATS = {"csv": ".csv", "md": ".md", "latex": ".tex", "html": ".html", "json": ".json"}
+_ALIASES = {"markdown": "md", "tex": "latex", "htm": "html"}
+
+_CSS = """
+body { font-family: system-ui, sans-serif; margin: 2em auto; max-width: 60em; color: #222; }
+table.photorx-budget { border-collapse: collapse; margin: 0.5em 0 1.5em 0; }
+table.photorx-budget th, table.photorx-budget td { border-bottom: 1px solid #ccc;
+  padding: 0.2em 0.8em; text-align: left; }
+table.photorx-budget td.num { text-align: right; font-variant-numeric: tabular-nums; }
+section.cautions { border-left: 4px solid #c60; padding-left: 1em; }
+"""
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(
+        value, (bool, np.bool_))
+
+
+def display_value(value, unit="", digits: int = 3) -> str:
+    """Text for one budget cell: engineering prefix for numbers, yes/no for flags.
+
+    Parameters
+    ----------
+    value : float, bool, str or None
+        Value in SI units.
+    unit : str
+        SI unit symbol, ``""`` for none.
+    digits : int
+        Significant digits of numbers.
+    """
+    unit = "" if unit is None or (isinstance(unit, float) and math.isnan(unit)) else str(unit)
+    if value is None:
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if _is_number(value):
+        if math.isnan(float(value)):
+            return "n/a"
+        return format_eng(float(value), unit, digits)
+    text = str(value)
+    return f"{text} {unit}".strip() if unit else text
+
+
+class Budget:
+    """Named receiver budget tables with engineering-unit display and exports.
+
+    Parameters
+    ----------
+    tables : dict of str to pandas.DataFrame
+        The tables, in display order (see the module notes for their columns).
+    title : str
+        Title of the budget (first heading of every export).
+    notes : str or sequence of str
+        Free-text notes printed under the tables (assumptions, warnings of the evaluation).
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> t = pd.DataFrame({"quantity": ["bandwidth"], "value": [1.2e9], "unit": ["Hz"]})
+    >>> print(Budget({"speed": t}, title="demo"))  # doctest: +NORMALIZE_WHITESPACE
+    demo
+    ====
+    <BLANKLINE>
+    speed
+    -----
+    quantity    value
+    ----------  -------
+    bandwidth   1.2 GHz
+    """
+
+    def __init__(self, tables, title: str = "Receiver budget", notes=()):
+        if not isinstance(tables, dict) or not tables:
+            raise DesignError("tables must be a non-empty dict of name -> pandas.DataFrame",
+                              parameter="tables")
+        for name, table in tables.items():
+            if not isinstance(table, pd.DataFrame):
+                raise DesignError(f"tables[{name!r}] must be a pandas.DataFrame, got "
+                                  f"{type(table).__name__}", parameter="tables")
+        self._tables = {str(k): v.copy() for k, v in tables.items()}
+        self.title = str(title)
+        self.notes = (notes,) if isinstance(notes, str) else tuple(str(n) for n in notes)
+
+    # -- access ------------------------------------------------------------------------------
+    @property
+    def tables(self) -> dict:
+        """The tables (copies, so the budget cannot be changed through them)."""
+        return {k: v.copy() for k, v in self._tables.items()}
+
+    @property
+    def names(self) -> list:
+        """Table names in display order."""
+        return list(self._tables)
+
+    def __getitem__(self, name) -> pd.DataFrame:
+        return self._tables[name].copy()
+
+    def __iter__(self):
+        return iter(self._tables)
+
+    def __len__(self) -> int:
+        return len(self._tables)
+
+    def __repr__(self) -> str:
+        return f"Budget(title={self.title!r}, tables={self.names})"
+
+    def to_frame(self) -> pd.DataFrame:
+        """All tables in one tidy frame with a leading ``table`` column (SI values)."""
+        frames = [t.assign(table=name)[["table"] + list(t.columns)]
+                  for name, t in self._tables.items()]
+        return pd.concat(frames, ignore_index=True, sort=False)
+
+    def display_table(self, name) -> pd.DataFrame:
+        """Table ``name`` as text for display: values with engineering prefixes, units merged."""
+        return _display_frame(self._tables[name])
+
+    # -- rendering ---------------------------------------------------------------------------
+    def __str__(self) -> str:
+        from tabulate import tabulate
+
+        out = [self.title, "=" * len(self.title), ""]
+        for name in self._tables:
+            shown = self.display_table(name)
+            out += [name, "-" * len(name),
+                    tabulate(shown.values.tolist(), headers=list(shown.columns),
+                             tablefmt="simple", disable_numparse=True), ""]
+        out += [f"Note: {n}" for n in self.notes]
+        return "\n".join(out).rstrip() + "\n"
+
+    def _html_tables(self, level: int) -> str:
+        parts = []
+        for name in self._tables:
+            parts.append(f"<h{level}>{html.escape(name)}</h{level}>")
+            parts.append(_html_table(self.display_table(name)))
+        if self.notes:
+            parts.append("<ul class=\"notes\">" + "".join(
+                f"<li>{html.escape(n)}</li>" for n in self.notes) + "</ul>")
+        return "\n".join(parts) + "\n"
+
+    def _repr_html_(self) -> str:
+        return (f'<div class="photorx-budget"><h3>{html.escape(self.title)}</h3>\n'
+                + self._html_tables(4) + "</div>")
+
+    # -- exports -----------------------------------------------------------------------------
+    def to_csv(self, path=None):
+        """All tables as one CSV (``table`` column first, SI floats, unit column).
+
+        Returns the text when ``path`` is None, otherwise writes it atomically and returns
+        the path.
+        """
+        frame = self.to_frame()
+        text = frame.to_csv(index=False, lineterminator="\n")
+        return _emit(text, path)
+
+    def to_json(self, path=None):
+        """JSON: ``{"title", "notes", "tables": {name: [row, ...]}}`` with SI floats.
+
+        Units of wide tables' columns (``attrs["units"]``) go under ``"column_units"``.
+
+        NaN and infinities are written as ``null`` (strict JSON); every row also carries
+        its ``display`` text, where ``"inf ohm"`` stays visible.
+        """
+        tables = {}
+        for name, table in self._tables.items():
+            shown = _display_cells(table)
+            rows = []
+            for i, row in enumerate(table.to_dict(orient="records")):
+                record = {str(k): _json_value(v) for k, v in row.items()}
+                record.setdefault("display", shown[i])
+                rows.append(record)
+            tables[name] = rows
+        units = {name: dict(t.attrs["units"]) for name, t in self._tables.items()
+                 if t.attrs.get("units")}
+        doc = {"title": self.title, "notes": list(self.notes), "tables": tables}
+        if units:
+            doc["column_units"] = units
+        text = json.dumps(doc, indent=2, allow_nan=False, ensure_ascii=False) + "\n"
+        return _emit(text, path)
+
+    def to_markdown(self, path=None, cautions: bool = True):
+        """Markdown: title, one pipe table per budget table, notes and the cautions."""
+        out = [f"# {self.title}", ""]
+        for name in self._tables:
+            shown = self.display_table(name)
+            out += [f"## {name}", "", shown.to_markdown(index=False, disable_numparse=True), ""]
+        out += [f"- Note: {n}" for n in self.notes]
+        if self.notes:
+            out.append("")
+        if cautions:
+            out.append(cautions_markdown(2))
+        return _emit("\n".join(out).rstrip() + "\n", path)
+
+    def to_latex(self, path=None):
+        """LaTeX: one ``booktabs`` tabular per table (needs ``\\usepackage{booktabs}``)."""
+        out = [f"% {_latex_escape(self.title)} (written by photorx)"]
+        for name in self._tables:
+            shown = self.display_table(name)
+            cols = "l" * len(shown.columns)
+            out += [r"\begin{table}[htbp]", r"\centering",
+                    rf"\caption{{{_latex_escape(name)}}}",
+                    rf"\begin{{tabular}}{{{cols}}}", r"\toprule",
+                    " & ".join(_latex_escape(c) for c in shown.columns) + r" \\", r"\midrule"]
+            out += [" & ".join(_latex_escape(c) for c in row) + r" \\"
+                    for row in shown.values.tolist()]
+            out += [r"\bottomrule", r"\end{tabular}", r"\end{table}", ""]
+        return _emit("\n".join(out), path)
+
+    def to_html(self, path=None, cautions: bool = True):
+        """A standalone HTML page with the tables, the notes and the cautions."""
+        body = (f"<h1>{html.escape(self.title)}</h1>\n" + self._html_tables(2)
+                + (cautions_html(2) if cautions else ""))
+        return _emit(html_page(self.title, body), path)
+
+    def export(self, target, formats=("csv", "md", "latex", "html", "json")) -> list:
+        """Write several formats at once.
+
+        Parameters
+        ----------
+        target : str or path
+            An existing directory (files are named ``budget.<suffix>`` inside it) or a file
+            stem (``out/rx1`` gives ``out/rx1.csv``, ``out/rx1.md``...).
+        formats : sequence of str
+            Any of ``"csv"``, ``"md"``, ``"latex"``, ``"html"``, ``"json"``.
+
+        Returns
+        -------
+        list of pathlib.Path
+            The files written (each atomically).
+        """
+        target = Path(target)
+        stem = target / "budget" if target.is_dir() else target
+        written = []
+        for fmt in formats:
+            key = normalize_format(fmt)
+            path = stem.with_name(stem.name + EXPORT_FORMATS[key])
+            writer = {"csv": self.to_csv, "md": self.to_markdown, "latex": self.to_latex,
+                      "html": self.to_html, "json": self.to_json}[key]
+            written.append(writer(path))
+        return written
+
+
+def normalize_format(fmt: str) -> str:
+    """Canonical export format name (``"markdown"`` -> ``"md"``); DesignError if unknown."""
+    key = _ALIASES.get(str(fmt).lower(), str(fmt).lower())
+    if key not in EXPORT_FORMATS:
+        raise DesignError(f"format = {fmt!r} is not known; valid: {', '.join(EXPORT_FORMATS)}",
+                          parameter="format")
+    return key
+
+
+def html_page(title: str, body: str) -> str:
+    """A complete, self-contained HTML document around ``body``."""
+    return ("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+            f"<title>{html.escape(title)}</title>\n<style>{_CSS}</style>\n</head>\n<body>\n"
+            f"{body}</body>\n</html>\n")
+
+
+# -- helpers ---------------------------------------------------------------------------------
+def _emit(text: str, path):
+    if path is None:
+        return text
+    return atomic_write_text(path, text)
+
+
+def _display_cells(table: pd.DataFrame) -> list:
+    """The formatted value of each row of a long-form table ("" when there is no value)."""
+    n = len(table)
+    if "value" not in table.columns:
+        return [""] * n
+    units = table["unit"] if "unit" in table.columns else [""] * n
+    cells = [display_value(v, u) for v, u in zip(table["value"].tolist(), list(units))]
+    if "display" in table.columns:
+        cells = [d if isinstance(d, str) and d else c
+                 for d, c in zip(table["display"].tolist(), cells)]
+    return cells
+
+
+def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
+    units = dict(table.attrs.get("units", {}))
+    shown = pd.DataFrame(index=range(len(table)))
+    for col in table.columns:
+        if col in ("unit", "display"):
+            continue
+        if col == "value":
+            shown["value"] = _display_cells(table)
+        else:
+            unit = units.get(col, "")
+            shown[str(col)] = [display_value(v, unit) for v in table[col].tolist()]
+    return shown
+
+
+def _html_table(shown: pd.DataFrame) -> str:
+    head = "".join(f"<th>{html.escape(str(c))}</th>" for c in shown.columns)
+    rows = []
+    for row in shown.values.tolist():
+        cells = "".join(
+            f'<td class="num">{html.escape(c)}</td>' if re.match(r"^[-+]?[\d.]", c)
+            else f"<td>{html.escape(c)}</td>" for c in row)
+        rows.append(f"<tr>{cells}</tr>")
+    return (f'<table class="photorx-budget">\n<thead><tr>{head}</tr></thead>\n<tbody>\n'
+            + "\n".join(rows) + "\n</tbody>\n</table>")
+
+
+def _json_value(v):
+    if isinstance(v, (bool, np.bool_)):
+        return bool(v)
+    if _is_number(v):
+        f = float(v)
+        return f if math.isfinite(f) else None
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return None
+    return str(v)
+
+
+_LATEX_SPECIAL = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#",
+                  "_": r"\_", "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}",
+                  "^": r"\textasciicircum{}"}
+
+
+def _latex_escape(text) -> str:
+    return "".join(_LATEX_SPECIAL.get(ch, ch) for ch in str(text))
