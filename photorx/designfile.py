@@ -23,6 +23,7 @@ from __future__ import annotations
 import difflib
 import math
 import sys
+import textwrap
 from dataclasses import dataclass
 from decimal import Decimal
 from importlib import resources
@@ -31,7 +32,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import DesignError
-from .units import _PREFIXES, parse_quantity
+from .units import _PREFIXES, _dimension_name, parse_quantity
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -275,12 +276,14 @@ def _expected(key: Key) -> str:
     if key.kind == "integer":
         return "an integer"
     if key.kind == "list":
-        return f"a list of quantities in {key.unit}, e.g. {key.example}"
+        return f"a list, each {_dimension_name(key.unit)} in {key.unit}, e.g. {key.example}"
     if key.kind == "ratio":
         return f"a number or decibels, e.g. '{key.example}'"
     if key.unit == "":
         return f"a plain number, e.g. {key.example}"
-    return f"a quantity in {key.unit}, e.g. '{key.example}'"
+    if key.unit == "bit/s":
+        return f"a bit rate in bit/s, e.g. '{key.example}'"
+    return f"{_dimension_name(key.unit)} in {key.unit}, e.g. '{key.example}'"
 
 
 _CHECKS = {
@@ -694,7 +697,8 @@ def design_template() -> str:
         lines.append(f"[{section}]" + ("" if required else "  # optional section"))
         if section not in sections:
             for key in keys:
-                lines.append(f"# {key.doc}")
+                lines += textwrap.wrap(key.doc, width=88, initial_indent="# ",
+                                       subsequent_indent="#   ")
                 lines.append(f"# {key.name} = {_example(key)}")
             lines.append("")
             continue
@@ -702,7 +706,8 @@ def design_template() -> str:
             if key.when and chosen not in key.when:
                 continue
             need = "required" if key.default is REQUIRED else "optional"
-            lines.append(f"# {key.doc} ({need}; {_expected(key)})")
+            lines += textwrap.wrap(f"{key.doc} ({need}; {_expected(key)})", width=88,
+                                   initial_indent="# ", subsequent_indent="#   ")
             if key.name in values:
                 lines.append(tomli_w.dumps({key.name: values[key.name]}).rstrip())
             else:

@@ -248,7 +248,7 @@ def test_classical_pm_relation_matches_python_control(z):
     # reference: python-control stability_margins of the two-pole loop w0^2/(s (s + 2 z w0))
     w0 = 1.0
     loop = control.tf([w0 ** 2], [1, 2 * z * w0, 0])
-    _, pm_ref, _, _ = control.stability_margins(loop)
+    _, pm_ref, *_ = control.stability_margins(loop)
     pm = tia_phase_margin().lambdify("phase_margin_of_zeta")(zeta=z)
     np.testing.assert_allclose(pm, pm_ref, atol=1e-6)
 
@@ -277,11 +277,12 @@ def test_phase_margin_q_relation_textbook_forms():
     pms = np.array([20.0, 45.0, 60.0, 76.35, 85.0])
     np.testing.assert_allclose(pm_of_q(Q=q_of_pm(phi_m=np.radians(pms))), pms, rtol=1e-12)
     # Franklin, Powell and Emami-Naeini (from memory): PM = 65.5 deg at zeta = 0.707 and
-    # PM ~ 100 zeta for zeta < 0.6 (within 3 degrees over 0.1..0.6)
+    # PM ~ 100 zeta for zeta < 0.6 (a rule of thumb: within 3.5 degrees over 0.1..0.6, the
+    # largest gap, 3.3 degrees, near zeta = 0.35)
     pm_z = d.lambdify("phase_margin_of_zeta")
     assert pm_z(zeta=1 / np.sqrt(2)) == pytest.approx(65.53, abs=0.01)
     zs = np.linspace(0.1, 0.6, 11)
-    assert np.all(np.abs(pm_z(zeta=zs) - 100 * zs) < 3.0)
+    assert np.all(np.abs(pm_z(zeta=zs) - 100 * zs) < 3.5)
     # Q = 1/sqrt(2) at PM = 65.5 deg; Q = 1 at PM = 51.8 deg (common practice, from memory)
     assert q_of_pm(phi_m=np.radians(65.53)) == pytest.approx(1 / np.sqrt(2), rel=1e-3)
     assert d.lambdify("phase_margin_of_q")(Q=1.0) == pytest.approx(51.83, abs=0.01)

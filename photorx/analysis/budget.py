@@ -1,0 +1,60 @@
+"""Assemble a receiver's budget tables from its evaluated figures (no physics here)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DesignError
+from .receiver import _TABLE_ORDER, FIGURES
+
+__all__ = ["receiver_budget"]
+
+
+def receiver_budget(rx, title: str | None = None):
+    """Budget of one receiver design: operating point, speed, stability, noise, sensitivity, checks.
+
+    Parameters
+    ----------
+    rx : Receiver
+        A design whose fields are scalars (use :func:`photorx.sweep` for many points).
+    title : str, optional
+        Title of the budget.
+
+    Returns
+    -------
+    photorx.views.tables.Budget
+    """
+    from ..views.tables import Budget
+
+    result = rx.evaluate()
+    if result.size != 1:
+        raise DesignError("budget() needs a single design point; use photorx.sweep() for arrays",
+                          parameter="receiver")
+    values = result.to_dict()
+    tables = {}
+    for table in _TABLE_ORDER:
+        rows = [dict(quantity=desc, value=_plain(values[name]), unit=unit)
+                for name, (unit, tab, desc) in FIGURES.items() if tab == table and name in values]
+        if table == "noise":
+            tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
+            tables["noise by source"] = _noise_table(rx)
+            continue
+        tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
+    notes = list(result.warnings)
+    notes.append("Noise integrated over the closed-loop response (times the post filter) from "
+                 f"{rx.noise_band_low:g} Hz to where the integral converges; input-referred values "
+                 "divide by the DC transimpedance.")
+    return Budget(tables, title=title or "Receiver budget", notes=notes)
+
+
+def _noise_table(rx) -> pd.DataFrame:
+    spectrum = rx.noise()
+    table = spectrum.budget()
+    return table
+
+
+def _plain(value):
+    if isinstance(value, (np.generic,)):
+        return value.item()
+    return value

@@ -1,0 +1,433 @@
+"""The receiver: photodiode + transimpedance stage + optional post filter at one operating point.
+
+:class:`Receiver` is the thin shell that joins the stages; :meth:`Receiver.evaluate` calls
+each stage's vectorised core once (photodiode, loop figures, noise integration,
+sensitivity) and collects every figure of merit in a :class:`ReceiverResult`. No physics
+is implemented here: every number comes from the stage that owns it. Any field may be an
+array (one element per design point), which is how :func:`photorx.sweep` evaluates a
+whole grid in one call.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from .._validate import require_in_range, require_nonnegative, require_positive
+from ..circuit.filters import PostFilter, filter_response
+from ..circuit.metrics import tia_figures
+from ..circuit.tia import Tia, transimpedance
+from ..errors import DesignError
+from .noise import chain_enbw, integrated_output_noise
+from .sensitivity import (analog_snr, dynamic_range, minimum_detectable_power,
+                          noise_equivalent_power, q_from_ber, required_average_power)
+
+__all__ = ["Receiver", "ReceiverResult", "FIGURES"]
+
+#: Every scalar figure of a :class:`ReceiverResult`: name -> (unit, budget table, description).
+FIGURES = {
+    # operating point
+    "reverse_bias": ("V", "operating point", "reverse bias"),
+    "wavelength": ("m", "operating point", "wavelength"),
+    "optical_power": ("W", "operating point", "average optical power"),
+    "temperature": ("K", "operating point", "temperature"),
+    "depletion_width": ("m", "operating point", "depletion width"),
+    "capacitance": ("F", "operating point", "photodiode capacitance"),
+    "input_capacitance": ("F", "operating point", "total capacitance at the summing node"),
+    "responsivity": ("A/W", "operating point", "responsivity"),
+    "quantum_efficiency": ("", "operating point", "external quantum efficiency"),
+    "photocurrent": ("A", "operating point", "signal photocurrent"),
+    "background_current": ("A", "operating point", "background photocurrent"),
+    "dark_current": ("A", "operating point", "dark current"),
+    "shunt_resistance": ("ohm", "operating point", "shunt resistance"),
+    "series_resistance": ("ohm", "operating point", "series resistance"),
+    "breakdown_voltage": ("V", "operating point", "breakdown voltage (estimate)"),
+    # speed
+    "bandwidth": ("Hz", "speed", "-3 dB bandwidth of the whole chain"),
+    "loop_bandwidth": ("Hz", "speed", "-3 dB bandwidth of the transimpedance stage"),
+    "transit_bandwidth": ("Hz", "speed", "transit-limited bandwidth of the photodiode"),
+    "transit_time": ("s", "speed", "carrier transit time across the depletion layer"),
+    "filter_bandwidth": ("Hz", "speed", "post-filter cutoff"),
+    "limited_by": ("", "speed", "the part that sets the bandwidth"),
+    "rise_time": ("s", "speed", "10-90 % rise time of the stage"),
+    "dc_transimpedance": ("ohm", "speed", "DC transimpedance"),
+    # stability
+    "stable": ("", "stability", "closed loop stable"),
+    "phase_margin": ("deg", "stability", "phase margin"),
+    "gain_margin_db": ("dB", "stability", "gain margin"),
+    "crossover": ("Hz", "stability", "loop-gain crossover frequency"),
+    "peaking_db": ("dB", "stability", "closed-loop peaking"),
+    "overshoot": ("", "stability", "step overshoot (fraction)"),
+    "q": ("", "stability", "closed-loop Q of the dominant pole pair"),
+    "settling_time": ("s", "stability", "1 % settling time"),
+    # noise
+    "noise_bandwidth": ("Hz", "noise", "equivalent noise bandwidth of the chain"),
+    "output_noise_rms": ("V", "noise", "integrated output noise"),
+    "input_noise_rms": ("A", "noise", "input-referred noise current"),
+    "input_noise_density": ("A/rtHz", "noise", "average input-referred density, rms/sqrt(ENBW)"),
+    "circuit_noise_rms": ("A", "noise", "input-referred noise without signal and dark shot noise"),
+    "dominant_noise_source": ("", "noise", "largest noise source"),
+    # sensitivity
+    "nep": ("W/rtHz", "sensitivity", "noise-equivalent power"),
+    "min_detectable_power": ("W", "sensitivity", "optical power for SNR = 1 in the noise bandwidth"),
+    "snr": ("", "sensitivity", "analog SNR (power ratio) at the optical power"),
+    "snr_db": ("dB", "sensitivity", "analog SNR"),
+    "max_photocurrent": ("A", "sensitivity", "photocurrent at the output-swing limit"),
+    "dynamic_range_db": ("dB", "sensitivity", "output-swing limit over the noise floor"),
+    "target_ber": ("", "sensitivity", "target bit-error ratio"),
+    "sensitivity": ("W", "sensitivity", "average optical power for the target BER"),
+    "sensitivity_dbm": ("dBm", "sensitivity", "sensitivity for the target BER"),
+    # checks
+    "bias_below_breakdown": ("", "checks", "reverse bias below the breakdown estimate"),
+    "bias_within_limit": ("", "checks", "reverse bias within the supply limit"),
+    "dark_current_within_limit": ("", "checks", "dark current within its limit"),
+    "bandwidth_for_bit_rate": ("", "checks", "bandwidth >= 0.7 x bit rate (NRZ rule of thumb)"),
+}
+
+_TABLE_ORDER = ("operating point", "speed", "stability", "noise", "sensitivity", "checks")
+
+
+@dataclass(frozen=True)
+class Receiver:
+    """A photodiode, its transimpedance stage and an operating point.
+
+    Parameters
+    ----------
+    photodiode : Photodiode
+        The detector (its junction temperature is replaced by ``temperature``).
+    tia : Tia
+        The transimpedance stage.
+    reverse_bias : float or array_like
+        Reverse bias [V]; negative is forward bias.
+    wavelength : float or array_like
+        Optical wavelength [m].
+    optical_power : float or array_like
+        Average optical signal power [W], >= 0.
+    temperature : float or array_like
+        Operating temperature of the photodiode and resistors [K].
+    post_filter : PostFilter, optional
+        Low-pass filter after the stage.
+    background_power : float or array_like
+        Unmodulated background optical power at the same wavelength [W], >= 0.
+    modulation_depth : float
+        Optical modulation index m of the analog signal, 0 < m <= 1.
+    bit_rate : float, optional
+        NRZ bit rate [bit/s]; enables the bandwidth check.
+    extinction_ratio : float
+        P1/P0 of the digital signal, > 1; ``inf`` for an ideal zero level.
+    target_ber : float
+        Bit-error ratio for the sensitivity figure, in (0, 0.5).
+    max_dark_current : float, optional
+        Dark-current limit [A] for the checks.
+    max_bias : float, optional
+        Bias-supply limit [V] for the checks.
+    noise_band_low : float
+        Lower edge of the noise integration [Hz], > 0 (1/f noise diverges at 0 Hz);
+        the upper edge is infinite (the integral is extended until it converges).
+    """
+
+    photodiode: object
+    tia: Tia
+    reverse_bias: float = 5.0
+    wavelength: float = 1310e-9
+    optical_power: float = 10e-6
+    temperature: float = 300.0
+    post_filter: PostFilter | None = None
+    background_power: float = 0.0
+    modulation_depth: float = 1.0
+    bit_rate: float | None = None
+    extinction_ratio: float = np.inf
+    target_ber: float = 1e-12
+    max_dark_current: float | None = None
+    max_bias: float | None = None
+    noise_band_low: float = 1.0
+
+    def __post_init__(self):
+        set_ = object.__setattr__
+        if not isinstance(self.tia, Tia):
+            raise DesignError(f"tia must be a Tia, got {type(self.tia).__name__}", parameter="tia")
+        if self.post_filter is not None and not isinstance(self.post_filter, PostFilter):
+            raise DesignError(f"post_filter must be a PostFilter or None, got "
+                              f"{type(self.post_filter).__name__}", parameter="post_filter")
+        if not hasattr(self.photodiode, "equivalent_circuit"):
+            raise DesignError(f"photodiode must be a Photodiode, got {type(self.photodiode).__name__}",
+                              parameter="photodiode")
+        set_(self, "reverse_bias", require_in_range("reverse_bias", self.reverse_bias, "V"))
+        set_(self, "wavelength", require_positive("wavelength", self.wavelength, "m"))
+        set_(self, "optical_power", require_nonnegative("optical_power", self.optical_power, "W"))
+        set_(self, "temperature", require_in_range("temperature", self.temperature, "K", 50.0, 600.0))
+        set_(self, "background_power",
+             require_nonnegative("background_power", self.background_power, "W"))
+        set_(self, "modulation_depth", require_in_range("modulation_depth", self.modulation_depth, "",
+                                                        0.0, 1.0, low_inclusive=False))
+        if self.bit_rate is not None:
+            set_(self, "bit_rate", require_positive("bit_rate", self.bit_rate, "bit/s"))
+        ratio = float(self.extinction_ratio)
+        if not ratio > 1:
+            raise DesignError.out_of_range("extinction_ratio", ratio, "", "> 1 (inf allowed)")
+        set_(self, "target_ber", require_in_range("target_ber", self.target_ber, "", 0.0, 0.5,
+                                                  low_inclusive=False, high_inclusive=False))
+        if self.max_dark_current is not None:
+            set_(self, "max_dark_current", require_positive("max_dark_current", self.max_dark_current, "A"))
+        if self.max_bias is not None:
+            set_(self, "max_bias", require_positive("max_bias", self.max_bias, "V"))
+        set_(self, "noise_band_low", require_positive("noise_band_low", self.noise_band_low, "Hz"))
+
+    # -- composition -------------------------------------------------------------------
+    def photodiode_at_temperature(self):
+        """The photodiode with its junction at the receiver's temperature."""
+        pd_ = self.photodiode
+        junction = getattr(pd_, "junction", None)
+        if junction is not None and dataclasses.is_dataclass(junction) and \
+                "temperature" in {f.name for f in dataclasses.fields(junction)}:
+            if not np.array_equal(np.asarray(junction.temperature), np.asarray(self.temperature)):
+                pd_ = dataclasses.replace(pd_, junction=dataclasses.replace(junction,
+                                                                            temperature=self.temperature))
+        if dataclasses.is_dataclass(pd_) and "temperature" in {f.name for f in dataclasses.fields(pd_)}:
+            pd_ = dataclasses.replace(pd_, temperature=self.temperature)
+        return pd_
+
+    def equivalent_circuit(self):
+        """The photodiode's equivalent circuit at this operating point."""
+        return self.photodiode_at_temperature().equivalent_circuit(
+            self.reverse_bias, optical_power=self.optical_power, wavelength=self.wavelength,
+            background_power=self.background_power)
+
+    def noise(self):
+        """The :class:`~photorx.analysis.noise_spectrum.NoiseSpectrum` of this design (scalar designs)."""
+        pd_ = self.photodiode_at_temperature()
+        net = self.equivalent_circuit()
+        r = pd_.responsivity(self.wavelength, self.reverse_bias)
+        return self.tia.noise(net, temperature=self.temperature, post_filter=self.post_filter,
+                              dark_current=pd_.dark_current(self.reverse_bias),
+                              signal_current=r * self.optical_power,
+                              background_current=r * self.background_power,
+                              f_lo=self.noise_band_low)
+
+    def _circuit(self, net):
+        amp = self.tia.amp
+        return dict(gbw=amp.gbw, dc_gain=amp.dc_gain, poles=amp.poles, rf=self.tia.rf, cf=self.tia.cf,
+                    cd=net.capacitance, rsh=net.shunt_resistance, rs=net.series_resistance,
+                    cin=amp.input_capacitance)
+
+    def evaluate(self) -> "ReceiverResult":
+        """Every figure of merit at this operating point (arrays if any field is an array)."""
+        return _evaluate(self)
+
+    def budget(self, title: str | None = None):
+        """Budget tables of this (scalar) design: a :class:`~photorx.views.tables.Budget`."""
+        from .budget import receiver_budget
+
+        return receiver_budget(self, title=title)
+
+
+@dataclass(frozen=True)
+class ReceiverResult:
+    """Every figure of a :class:`Receiver` evaluation; see :data:`FIGURES` for names and units.
+
+    ``values`` maps each figure name to a scalar or an array (one element per design
+    point); figures are also attributes (``result.bandwidth``). ``noise_by_source`` maps
+    each noise source to its input-referred rms current [A]. ``warnings`` lists model
+    warnings of the evaluation.
+    """
+
+    values: dict
+    noise_by_source: dict
+    warnings: tuple = ()
+
+    def __getattr__(self, name):
+        values = object.__getattribute__(self, "values")
+        if name in values:
+            return values[name]
+        raise AttributeError(f"ReceiverResult has no figure {name!r}; figures: {', '.join(values)}")
+
+    def __dir__(self):
+        return sorted(set(super().__dir__()) | set(self.values))
+
+    @property
+    def size(self) -> int:
+        """Number of design points."""
+        return int(np.size(self.values["bandwidth"]))
+
+    def to_dict(self) -> dict:
+        """Figures as a dict of Python scalars (single design) or numpy arrays."""
+        out = {}
+        for name, value in self.values.items():
+            arr = np.asarray(value)
+            out[name] = arr.item() if arr.ndim == 0 else arr
+        for name, value in self.noise_by_source.items():
+            arr = np.asarray(value)
+            out[f"noise_{name}"] = arr.item() if arr.ndim == 0 else arr
+        return out
+
+    def to_frame(self) -> pd.DataFrame:
+        """One row per design point, one column per figure (noise sources as ``noise_<source>`` [A])."""
+        data = {k: np.ravel(np.broadcast_to(np.asarray(v), np.shape(self.values["bandwidth"])))
+                for k, v in self.to_dict().items()}
+        return pd.DataFrame(data)
+
+    def _repr_html_(self) -> str:
+        from ..views.tables import display_value
+
+        frame = self.to_frame()
+        if len(frame) != 1:
+            return frame._repr_html_()
+        rows = "".join(
+            f"<tr><td>{FIGURES[k][2]}</td><td>{display_value(frame[k].iloc[0], FIGURES[k][0])}</td></tr>"
+            for k in FIGURES if k in frame)
+        return f"<table><tr><th>figure</th><th>value</th></tr>{rows}</table>"
+
+
+# ----------------------------------------------------------------------------------------
+# evaluation: calls each stage's vectorised core once
+# ----------------------------------------------------------------------------------------
+_BW_GRID = np.logspace(-4.0, 1.5, 221)  # relative to the loop bandwidth
+
+
+def _chain_response(rx, pd_, f, circuit_b):
+    v = np.asarray(rx.reverse_bias, dtype=float)[..., None]
+    wl = np.asarray(rx.wavelength, dtype=float)[..., None]
+    h = pd_.intrinsic_response(f, v, wl) * transimpedance(f, **circuit_b)
+    if rx.post_filter is not None:
+        pf = rx.post_filter
+        h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
+    return h
+
+
+def _chain_bandwidth(rx, pd_, circuit, loop_bw, zt0):
+    """-3 dB frequency of |H_pd Zt H_filter| for every design: first crossing, then refined."""
+    shape = np.shape(loop_bw)
+    circuit_b = {k: (tuple(np.asarray(p, dtype=float)[..., None] for p in val) if k == "poles"
+                     else np.asarray(val, dtype=float)[..., None]) for k, val in circuit.items()}
+    ref = np.abs(np.asarray(zt0, dtype=float))[..., None] / np.sqrt(2.0)
+    scale = np.where(np.isfinite(loop_bw), loop_bw, 1.0)[..., None]
+    f = scale * _BW_GRID
+    mag = np.abs(_chain_response(rx, pd_, f, circuit_b))
+    below = mag < ref
+    has = below.any(axis=-1)
+    k = np.argmax(below, axis=-1)
+    k = np.clip(k, 1, f.shape[-1] - 1)
+    lo = np.take_along_axis(f, (k - 1)[..., None], -1)
+    hi = np.take_along_axis(f, k[..., None], -1)
+    for _ in range(30):  # bisection in log f on the exact response
+        mid = np.sqrt(lo * hi)
+        m_mid = np.abs(_chain_response(rx, pd_, mid, circuit_b))
+        lo = np.where(m_mid >= ref, mid, lo)
+        hi = np.where(m_mid >= ref, hi, mid)
+    bw = np.sqrt(lo * hi)[..., 0]
+    bw = np.where(has & np.isfinite(loop_bw), bw, np.nan)
+    return np.broadcast_to(bw, shape) if shape else bw
+
+
+def _evaluate(rx: Receiver) -> ReceiverResult:
+    pd_ = rx.photodiode_at_temperature()
+    v = rx.reverse_bias
+    amp = rx.tia.amp
+    net = rx.equivalent_circuit()
+    responsivity = np.asarray(pd_.responsivity(rx.wavelength, v), dtype=float)
+    dark = np.asarray(pd_.dark_current(v), dtype=float)
+    i_sig = responsivity * rx.optical_power
+    i_bg = responsivity * rx.background_power
+    circuit = rx._circuit(net)
+
+    loop = tia_figures(**circuit, output_swing=amp.output_swing)
+    stable = np.asarray(loop["stable"], dtype=bool)
+    shape = np.broadcast_shapes(np.shape(stable), np.shape(v), np.shape(rx.wavelength),
+                                np.shape(rx.optical_power), np.shape(rx.temperature))
+    bc = lambda x: np.broadcast_to(np.asarray(x, dtype=float), shape)  # noqa: E731
+
+    bandwidth = _chain_bandwidth(rx, pd_, circuit, bc(loop["bandwidth"]), bc(loop["dc_transimpedance"]))
+    transit_bw = bc(pd_.transit_bandwidth(v))
+    filter_bw = bc(rx.post_filter.cutoff if rx.post_filter is not None else np.inf)
+    parts = np.stack([bc(loop["bandwidth"]), transit_bw, filter_bw])
+    names = np.array(["amplifier loop", "photodiode transit", "post filter"])
+    limited_by = np.where(np.isfinite(bandwidth), names[np.argmin(np.where(np.isnan(parts), np.inf, parts),
+                                                                  axis=0)], "unstable loop")
+
+    # Noise: every source integrated over the real response (shared adaptive grid).
+    noise_params = dict(
+        circuit, en=amp.voltage_noise, en_corner=amp.voltage_noise_corner, in_=amp.current_noise,
+        in_corner=amp.current_noise_corner, temperature=rx.temperature,
+        i_shot={"dark": bc(dark), "signal": bc(i_sig), "background": bc(i_bg)})
+    if rx.post_filter is not None:
+        noise_params.update(filter_kind=rx.post_filter.kind, filter_order=rx.post_filter.order,
+                            filter_cutoff=rx.post_filter.cutoff)
+    noise_params = {k: (val if k in ("poles", "i_shot", "filter_kind", "filter_order") else bc(val))
+                    for k, val in noise_params.items()}
+    noise_params["poles"] = tuple(bc(p) for p in circuit["poles"])
+    mean_square = integrated_output_noise(rx.noise_band_low, np.inf, **noise_params)
+    enbw_kw = {k: noise_params[k] for k in circuit}
+    if rx.post_filter is not None:
+        enbw_kw.update(filter_kind=rx.post_filter.kind, filter_order=rx.post_filter.order,
+                       filter_cutoff=rx.post_filter.cutoff)
+    enbw = bc(chain_enbw(**enbw_kw))
+    zt0 = np.abs(bc(loop["dc_transimpedance"]))
+    total_ms = sum(mean_square.values())
+    out_rms = np.sqrt(total_ms)
+    in_rms = out_rms / zt0
+    by_source = {name: np.sqrt(ms) / zt0 for name, ms in mean_square.items()}
+    circuit_ms = total_ms - mean_square.get("shot_signal", 0.0) - mean_square.get("shot_dark", 0.0)
+    circuit_rms = np.sqrt(np.clip(circuit_ms, 0.0, None)) / zt0
+    keys = list(mean_square)
+    dominant = np.array(keys)[np.argmax(np.stack([bc(mean_square[k]) for k in keys]), axis=0)]
+
+    in_density = in_rms / np.sqrt(enbw)
+    resp_b = bc(responsivity)
+    nep = noise_equivalent_power(in_density, resp_b)
+    mdp = minimum_detectable_power(in_rms, resp_b)
+    p_b = bc(rx.optical_power)
+    snr = np.where(p_b > 0, analog_snr(p_b, resp_b, circuit_rms, enbw, rx.modulation_depth, bc(dark)), 0.0)
+    with np.errstate(divide="ignore"):
+        snr_db = np.where(snr > 0, 10.0 * np.log10(np.where(snr > 0, snr, 1.0)), -np.inf)
+    dr_db = bc(dynamic_range(amp.output_swing, zt0, in_rms))
+    q_target = q_from_ber(rx.target_ber)
+    sens = bc(required_average_power(q_target, resp_b, circuit_rms, enbw, rx.extinction_ratio, bc(dark)))
+    sens_dbm = 10.0 * np.log10(sens / 1e-3)
+
+    junction = getattr(pd_, "junction", None)
+    width = bc(junction.depletion_width(v)) if hasattr(junction, "depletion_width") else bc(np.nan)
+    breakdown = bc(junction.breakdown_voltage()) if hasattr(junction, "breakdown_voltage") else bc(np.inf)
+    cap = bc(pd_.capacitance(v))
+    qe = bc(pd_.quantum_efficiency(rx.wavelength, v)) if hasattr(pd_, "quantum_efficiency") else \
+        bc(responsivity * 1.23984198e-6 / np.asarray(rx.wavelength))
+    transit_time = bc(pd_.transit_time(v)) if hasattr(pd_, "transit_time") else bc(np.nan)
+
+    v_b = bc(v)
+    values = {
+        "reverse_bias": v_b, "wavelength": bc(rx.wavelength), "optical_power": p_b,
+        "temperature": bc(rx.temperature), "depletion_width": width, "capacitance": cap,
+        "input_capacitance": bc(net.capacitance) + bc(amp.input_capacitance),
+        "responsivity": resp_b, "quantum_efficiency": qe, "photocurrent": bc(i_sig),
+        "background_current": bc(i_bg), "dark_current": bc(dark),
+        "shunt_resistance": bc(net.shunt_resistance), "series_resistance": bc(net.series_resistance),
+        "breakdown_voltage": breakdown,
+        "bandwidth": bandwidth, "loop_bandwidth": bc(loop["bandwidth"]), "transit_bandwidth": transit_bw,
+        "transit_time": transit_time, "filter_bandwidth": filter_bw, "limited_by": limited_by,
+        "rise_time": bc(loop["rise_time"]), "dc_transimpedance": zt0,
+        "stable": np.broadcast_to(stable, shape), "phase_margin": bc(loop["phase_margin"]),
+        "gain_margin_db": bc(loop["gain_margin_db"]), "crossover": bc(loop["crossover"]),
+        "peaking_db": bc(loop["peaking_db"]), "overshoot": bc(loop["overshoot"]), "q": bc(loop["q"]),
+        "settling_time": bc(loop["settling_time"]),
+        "noise_bandwidth": enbw, "output_noise_rms": out_rms, "input_noise_rms": in_rms,
+        "input_noise_density": in_density, "circuit_noise_rms": circuit_rms,
+        "dominant_noise_source": dominant,
+        "nep": nep, "min_detectable_power": mdp, "snr": snr, "snr_db": snr_db,
+        "max_photocurrent": bc(loop["max_photocurrent"]), "dynamic_range_db": dr_db,
+        "target_ber": bc(rx.target_ber), "sensitivity": sens, "sensitivity_dbm": sens_dbm,
+        "bias_below_breakdown": v_b < breakdown,
+        "bias_within_limit": (v_b <= rx.max_bias) if rx.max_bias is not None else np.ones(shape, bool),
+        "dark_current_within_limit": (bc(dark) <= rx.max_dark_current) if rx.max_dark_current is not None
+        else np.ones(shape, bool),
+        "bandwidth_for_bit_rate": (bandwidth >= 0.7 * rx.bit_rate) if rx.bit_rate is not None
+        else np.ones(shape, bool),
+    }
+    warnings = []
+    if not np.all(stable):
+        warnings.append("the feedback loop is unstable at some design points: no bandwidth is reported there")
+    if not np.all(values["bias_below_breakdown"]):
+        warnings.append("reverse bias at or beyond the breakdown estimate at some design points")
+    return ReceiverResult(values=values, noise_by_source={k: bc(x) for k, x in by_source.items()},
+                          warnings=tuple(warnings))

@@ -1,0 +1,167 @@
+"""Tests of the ``photorx`` command line: subcommands, outputs, one-line errors and exit codes.
+
+Run in-process through ``photorx.cli.main([...])`` with captured stdout/stderr, plus one
+run of the installed console script in a subprocess. Exit codes follow common practice
+(0 success, 1 failure to complete, 2 usage or input error, as argparse uses 2).
+"""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+import sys
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from photorx import __version__
+from photorx.cli import main, parse_axis, parse_constraint
+from photorx.errors import DesignError
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def assert_one_line_error(err):
+    lines = [ln for ln in err.splitlines() if ln.strip()]
+    assert len(lines) == 1, err
+    assert "Traceback" not in err
+
+
+# -- parsing helpers -----------------------------------------------------------------------------
+def test_parse_axis():
+    np.testing.assert_allclose(parse_axis("reverse_bias", "0:20:81"), np.linspace(0, 20, 81),
+                               rtol=0, atol=0)
+    np.testing.assert_allclose(parse_axis("rf", "1 kohm:100 kohm:3:log"), [1e3, 1e4, 1e5],
+                               rtol=1e-12)
+    np.testing.assert_allclose(parse_axis("cf", "0.1 pF, 0.2 pF"), [0.1e-12, 0.2e-12], rtol=0)
+    np.testing.assert_allclose(parse_axis("rf", "1e3,5e3"), [1e3, 5e3], rtol=0)
+    for bad in ["0:20", "a:b:c", "0:20:x", "", "0:1:0", "0:10:5:log"]:
+        with pytest.raises(DesignError):
+            parse_axis("rf", bad)
+
+
+def test_parse_constraint():
+    assert parse_constraint("bandwidth>=1 GHz") == ("bandwidth", (">=", 1e9))
+    assert parse_constraint("phase_margin >= 60") == ("phase_margin", (">=", 60.0))
+    assert parse_constraint("dark_current<=10 nA") == ("dark_current", ("<=", 10e-9))
+    with pytest.raises(DesignError, match="FIGURE>=VALUE"):
+        parse_constraint("bandwidth = 1 GHz")
+
+
+# -- no design needed ------------------------------------------------------------------------------
+def test_version(capsys):
+    code, out, _ = run(capsys, "--version")
+    assert code == 0 and out.strip() == f"photorx {__version__}"
+
+
+@pytest.mark.parametrize("argv", [["--help"], ["budget", "--help"], ["sweep", "--help"],
+                                  ["optimize", "--help"], ["template", "--help"],
+                                  ["report", "--help"]])
+def test_help(capsys, argv):
+    code, out, _ = run(capsys, *argv)
+    assert code == 0 and "usage: photorx" in out
+
+
+def test_no_command_prints_help(capsys):
+    code, out, _ = run(capsys)
+    assert code == 2 and "budget" in out and "sweep" in out
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["frobnicate"], ["invalid choice", "frobnicate"]),
+    (["budget", "--format", "xls"], ["invalid choice", "xls"]),
+    (["budget", "--bogus"], ["unrecognized arguments", "--bogus"]),
+    (["sweep"], ["at least one axis"]),
+    (["optimize"], ["at least one --vary"]),
+])
+def test_usage_errors_exit_2(capsys, argv, words):
+    code, out, err = run(capsys, *argv)
+    assert code == 2 and out == ""
+    assert_one_line_error(err)
+    for w in words:
+        assert w in err
+
+
+def test_demos_list(capsys):
+    code, out, _ = run(capsys, "demos")
+    assert code == 0 and "ingaas-pin-1310" in out and "[default]" in out
+
+
+def test_template_to_stdout_and_file(capsys, tmp_path):
+    from photorx.designfile import read_design
+
+    code, out, _ = run(capsys, "template")
+    assert code == 0 and "[feedback]" in out and "# " in out
+    import tomllib
+
+    read_design(tomllib.loads(out))  # the template is a valid design
+    target = tmp_path / "my.toml"
+    code, _, err = run(capsys, "template", "-o", str(target))
+    assert code == 0 and target.read_text() == out
+    code, _, err = run(capsys, "template", "-o", str(target))
+    assert code == 1 and "exists" in err
+    assert_one_line_error(err)
+    code, _, _ = run(capsys, "template", "-o", str(target), "--force")
+    assert code == 0
+
+
+# -- design errors: one line, exit 2 -----------------------------------------------------------------
+def test_missing_design_file(capsys, tmp_path):
+    code, out, err = run(capsys, "budget", str(tmp_path / "nope.toml"))
+    assert code == 2 and out == ""
+    assert_one_line_error(err)
+    assert "no such design file" in err and "nope.toml" in err
+
+
+@pytest.mark.parametrize("text, words", [
+    ("[feedback\n", ["not a valid TOML file"]),
+    ("this is not toml", ["not a valid TOML file"]),
+])
+def test_bad_design_file(capsys, tmp_path, text, words):
+    path = tmp_path / "bad.toml"
+    path.write_text(text)
+    code, _, err = run(capsys, "budget", str(path))
+    assert code == 2
+    assert_one_line_error(err)
+    for w in words:
+        assert w in err and "bad.toml" in err
+
+
+def test_design_error_names_key(capsys, tmp_path):
+    from photorx.designfile import design_template
+
+    path = tmp_path / "bad.toml"
+    path.write_text(design_template().replace('cf = "40 fF"', 'cf = "40 kohm"'))
+    code, _, err = run(capsys, "budget", str(path))
+    assert code == 2
+    assert_one_line_error(err)
+    assert "[feedback] cf" in err and "capacitance" in err
+
+
+def test_unexpected_error_is_one_line(capsys, monkeypatch):
+    import photorx.cli as cli
+
+    def broken(args):
+        raise RuntimeError("boom\nsecond line")
+
+    monkeypatch.setattr(cli, "_cmd_demos", broken)
+    code, _, err = run(capsys, "demos")
+    assert code == 1 and "internal error: RuntimeError: boom second line" in err
+    assert_one_line_error(err)
+
+
+def test_console_script_subprocess(tmp_path):
+    exe = shutil.which("photorx") or str(__import__("pathlib").Path(sys.executable).parent
+                                         / "photorx")
+    done = subprocess.run([exe, "--version"], capture_output=True, text=True, timeout=60)
+    assert done.returncode == 0 and done.stdout.strip() == f"photorx {__version__}"
+    done = subprocess.run([exe, "budget", str(tmp_path / "missing.toml")], capture_output=True,
+                          text=True, timeout=60)
+    assert done.returncode == 2 and done.stdout == ""
+    assert len(done.stderr.strip().splitlines()) == 1 and "Traceback" not in done.stderr
