@@ -206,6 +206,10 @@ SCHEMA: tuple[Key, ...] = (
         doc="Largest acceptable dark current.", example="10 nA"),
     Key("limits", "max_bias", "V", None, check=">0",
         doc="Largest bias the supply provides.", example="20 V"),
+    # -- optional analysis settings ------------------------------------------------------------
+    Key("analysis", "noise_band_low", "Hz", 1.0, check=">0",
+        doc="Lower edge of the noise integration (1/f noise diverges at 0 Hz).",
+        example="1 Hz"),
 )
 
 #: Sections in file order, with whether each must be present.
@@ -219,6 +223,7 @@ SECTIONS = {
     "signal": False,
     "post_filter": False,
     "limits": False,
+    "analysis": False,
 }
 
 #: Selector key of sections whose keys depend on a model choice.
@@ -439,6 +444,7 @@ def _build(spec: dict, where: str = ""):
     kwargs = dict(spec["operating_point"])
     kwargs.update(spec.get("signal", {}))
     kwargs.update(spec.get("limits", {}))
+    kwargs.update(spec.get("analysis", {}))
     return make("operating_point", Receiver, photodiode=photodiode, tia=tia, post_filter=post,
                 **kwargs)
 
@@ -590,7 +596,7 @@ def _design_values(rx) -> dict[str, dict]:
                           "design file", parameter="junction")
     objects = {
         "photodiode.junction": junction, "photodiode": rx.photodiode, "amplifier": rx.tia.amp,
-        "feedback": rx.tia, "operating_point": rx, "signal": rx, "limits": rx,
+        "feedback": rx.tia, "operating_point": rx, "signal": rx, "limits": rx, "analysis": rx,
         "post_filter": rx.post_filter,
     }
     chosen = {"photodiode.junction": model}
@@ -635,6 +641,8 @@ def dumps_design(rx, name: str = "", description: str = "") -> str:
         for key in _keys(section):
             if key.name in values[section]:
                 table[key.name] = _written(key, values[section][key.name])
+        if not table and not SECTIONS[section]:
+            continue  # an optional section with nothing to say
         node = doc
         for part in section.split(".")[:-1]:
             node = node.setdefault(part, {})

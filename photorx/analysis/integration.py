@@ -15,7 +15,7 @@ import numpy as np
 from .._validate import require_nonnegative, require_positive
 from ..errors import DesignError, ModelRangeWarning
 
-__all__ = ["integrate_psd", "DEFAULT_RTOL"]
+__all__ = ["DEFAULT_RTOL", "integrate_psd"]
 
 DEFAULT_RTOL = 1e-4  #: default relative tolerance of every noise integral
 _SCAN_PER_DECADE = 4  # coarse scan used to find the ends of an infinite band
@@ -48,8 +48,18 @@ def _coarse_mean_square(psd_tot, f, lo, hi):
     return np.sum(0.5 * (g[..., 1:] + g[..., :-1]) * du, axis=-1)
 
 
-def integrate_psd(psd, f_lo=0.0, f_hi=np.inf, *, rtol=DEFAULT_RTOL, points_per_decade=10,
-                  f_scale=None, f_min=1e-9, f_max=1e18, _return_band=False):
+def integrate_psd(
+    psd,
+    f_lo=0.0,
+    f_hi=np.inf,
+    *,
+    rtol=DEFAULT_RTOL,
+    points_per_decade=10,
+    f_scale=None,
+    f_min=1e-9,
+    f_max=1e18,
+    _return_band=False,
+):
     """Integrate a power spectral density over frequency for many designs at once.
 
     Parameters
@@ -121,7 +131,9 @@ def integrate_psd(psd, f_lo=0.0, f_hi=np.inf, *, rtol=DEFAULT_RTOL, points_per_d
     lo_eff = np.where(need_bottom, a, lo)
     hi_eff = np.where(need_top, b, hi)
 
-    shared = lo_eff.ndim == 0 or (np.all(lo_eff == lo_eff.flat[0]) and np.all(hi_eff == hi_eff.flat[0]))
+    shared = lo_eff.ndim == 0 or (
+        np.all(lo_eff == lo_eff.flat[0]) and np.all(hi_eff == hi_eff.flat[0])
+    )
     ln_lo = np.log(lo_eff.flat[0] if shared else lo_eff)
     ln_hi = np.log(hi_eff.flat[0] if shared else hi_eff)
     span = ln_hi - ln_lo  # scalar or design_shape
@@ -160,9 +172,13 @@ def integrate_psd(psd, f_lo=0.0, f_hi=np.inf, *, rtol=DEFAULT_RTOL, points_per_d
         if halvings >= 2 and np.all(err <= rtol * np.abs(tot_new) + 1e-300):
             break
         if g.size * 2 > _MAX_GRID_VALUES:
-            warnings.warn(f"noise integral not converged to rtol={rtol:g} "
-                          f"(largest relative change {np.max(err / np.abs(tot_new)):.2g}); "
-                          "result returned from the finest grid", ModelRangeWarning, stacklevel=2)
+            warnings.warn(
+                f"noise integral not converged to rtol={rtol:g} "
+                f"(largest relative change {np.max(err / np.abs(tot_new)):.2g}); "
+                "result returned from the finest grid",
+                ModelRangeWarning,
+                stacklevel=2,
+            )
             break
     result = estimate * span  # Simpson was on u in [0, 1]
     if need_bottom.any():
@@ -216,16 +232,24 @@ def _extend_band(total, lo, hi, a, b, need_top, need_bottom, rtol, f_min, f_max)
         if not np.all(top_ok):
             if f[-1] * 10 > f_max:
                 raise DesignError.out_of_range(
-                    "f_hi", np.inf, "Hz", "a finite frequency: the noise density does not fall off "
-                    f"below {f_max:g} Hz (add a post filter or give a finite f_hi)")
+                    "f_hi",
+                    np.inf,
+                    "Hz",
+                    "a finite frequency: the noise density does not fall off "
+                    f"below {f_max:g} Hz (add a post filter or give a finite f_hi)",
+                )
             f_new = f[-1] * step ** np.arange(1, _SCAN_PER_DECADE + 1)
             s_new = np.broadcast_to(total(f_new), s.shape[:-1] + f_new.shape)
             f, s = np.concatenate([f, f_new]), np.concatenate([s, s_new], axis=-1)
         if not np.all(bottom_ok):
             if f[0] / 10 < f_min:
                 raise DesignError.out_of_range(
-                    "f_lo", 0.0, "Hz", "> 0 here: the noise density rises as 1/f towards 0 Hz "
-                    "and its integral diverges")
+                    "f_lo",
+                    0.0,
+                    "Hz",
+                    "> 0 here: the noise density rises as 1/f towards 0 Hz "
+                    "and its integral diverges",
+                )
             f_new = f[0] * step ** np.arange(-_SCAN_PER_DECADE, 0)
             s_new = np.broadcast_to(total(f_new), s.shape[:-1] + f_new.shape)
             f, s = np.concatenate([f_new, f]), np.concatenate([s_new, s], axis=-1)

@@ -47,16 +47,16 @@ from .integration import DEFAULT_RTOL, integrate_psd
 
 __all__ = [
     "SOURCE_LABELS",
-    "johnson_voltage_density",
-    "johnson_current_density",
-    "shot_current_density",
-    "noise_transfer_functions",
-    "output_noise_psd",
+    "NoiseSpectrum",
+    "chain_enbw",
     "input_noise_psd",
     "integrated_output_noise",
-    "chain_enbw",
+    "johnson_current_density",
+    "johnson_voltage_density",
+    "noise_transfer_functions",
+    "output_noise_psd",
+    "shot_current_density",
     "tia_noise",
-    "NoiseSpectrum",
 ]
 
 #: Display label of every noise source key.
@@ -108,8 +108,9 @@ def johnson_current_density(resistance, temperature=300.0):
     """
     r = np.asarray(resistance, dtype=float)
     if np.any(np.isnan(r)) or np.any(r <= 0):
-        raise DesignError.out_of_range("resistance", r[~(r > 0)][0] if r.ndim else r, "ohm",
-                                       "> 0 (inf allowed)")
+        raise DesignError.out_of_range(
+            "resistance", r[~(r > 0)][0] if r.ndim else r, "ohm", "> 0 (inf allowed)"
+        )
     t = require_positive("temperature", temperature, "K")
     return np.sqrt(4.0 * _K * t / r)
 
@@ -178,8 +179,12 @@ def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.in
     t = a * yf / (yf + yin)
     one_plus_t = 1.0 + t
     summing = t / one_plus_t / yf
-    return {"summing": summing, "junction": summing * divider, "series": summing * y_series,
-            "voltage": a / one_plus_t}
+    return {
+        "summing": summing,
+        "junction": summing * divider,
+        "series": summing * y_series,
+        "voltage": a / one_plus_t,
+    }
 
 
 def _shot_items(i_shot):
@@ -188,11 +193,30 @@ def _shot_items(i_shot):
     return [("shot", np.asarray(i_shot, dtype=float))]
 
 
-def _unfiltered_psd(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_corner, in_, in_corner,
-                    temperature, i_shot, stage2_noise, stage2_corner):
+def _unfiltered_psd(
+    f,
+    gbw,
+    dc_gain,
+    poles,
+    rf,
+    cf,
+    cd,
+    rsh,
+    rs,
+    cin,
+    en,
+    en_corner,
+    in_,
+    in_corner,
+    temperature,
+    i_shot,
+    stage2_noise,
+    stage2_corner,
+):
     f = np.asarray(f, dtype=float)
-    h = noise_transfer_functions(f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd,
-                                 rsh=rsh, rs=rs, cin=cin)
+    h = noise_transfer_functions(
+        f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin
+    )
     kt4 = 4.0 * _K * np.asarray(temperature, dtype=float)
     with np.errstate(divide="ignore"):
         inv_f = 1.0 / f
@@ -200,25 +224,49 @@ def _unfiltered_psd(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_cor
     zt2 = np.abs(h["junction"]) ** 2
     out = {
         "rf_thermal": kt4 / np.asarray(rf, dtype=float) * h_sum2,
-        "amp_current": np.asarray(in_, dtype=float) ** 2 * (1.0 + np.asarray(in_corner, dtype=float) * inv_f)
+        "amp_current": np.asarray(in_, dtype=float) ** 2
+        * (1.0 + np.asarray(in_corner, dtype=float) * inv_f)
         * h_sum2,
-        "amp_voltage": np.asarray(en, dtype=float) ** 2 * (1.0 + np.asarray(en_corner, dtype=float) * inv_f)
+        "amp_voltage": np.asarray(en, dtype=float) ** 2
+        * (1.0 + np.asarray(en_corner, dtype=float) * inv_f)
         * np.abs(h["voltage"]) ** 2,
         "rsh_thermal": kt4 / np.asarray(rsh, dtype=float) * zt2,
         "rs_thermal": kt4 * np.asarray(rs, dtype=float) * np.abs(h["series"]) ** 2,
     }
     for name, current in _shot_items(i_shot):
         out[name] = 2.0 * _Q * current * zt2
-    out["stage2_voltage"] = (np.asarray(stage2_noise, dtype=float) ** 2
-                             * (1.0 + np.asarray(stage2_corner, dtype=float) * inv_f)
-                             * np.ones_like(zt2))
+    out["stage2_voltage"] = (
+        np.asarray(stage2_noise, dtype=float) ** 2
+        * (1.0 + np.asarray(stage2_corner, dtype=float) * inv_f)
+        * np.ones_like(zt2)
+    )
     return out, zt2
 
 
-def output_noise_psd(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.0,
-                     en=0.0, en_corner=0.0, in_=0.0, in_corner=0.0, temperature=300.0, i_shot=0.0,
-                     stage2_noise=0.0, stage2_corner=0.0, filter_kind=None, filter_order=4,
-                     filter_cutoff=np.inf):
+def output_noise_psd(
+    f,
+    *,
+    gbw,
+    dc_gain,
+    poles=(),
+    rf,
+    cf,
+    cd,
+    rsh=np.inf,
+    rs=0.0,
+    cin=0.0,
+    en=0.0,
+    en_corner=0.0,
+    in_=0.0,
+    in_corner=0.0,
+    temperature=300.0,
+    i_shot=0.0,
+    stage2_noise=0.0,
+    stage2_corner=0.0,
+    filter_kind=None,
+    filter_order=4,
+    filter_cutoff=np.inf,
+):
     """Output noise power spectral density of every source [V^2/Hz].
 
     Parameters
@@ -261,31 +309,69 @@ def output_noise_psd(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.
     .. [2] C. D. Motchenbacher and J. A. Connelly, *Low-Noise Electronic System Design*,
        Wiley, 1993, ch. 1-2.
     """
-    out, _ = _unfiltered_psd(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_corner, in_,
-                             in_corner, temperature, i_shot, stage2_noise, stage2_corner)
+    out, _ = _unfiltered_psd(
+        f,
+        gbw,
+        dc_gain,
+        poles,
+        rf,
+        cf,
+        cd,
+        rsh,
+        rs,
+        cin,
+        en,
+        en_corner,
+        in_,
+        in_corner,
+        temperature,
+        i_shot,
+        stage2_noise,
+        stage2_corner,
+    )
     if filter_kind is not None:
         h2 = np.abs(filter_response(f, filter_kind, filter_order, filter_cutoff)) ** 2
         out = {name: v * h2 for name, v in out.items()}
     return out
 
 
-def input_noise_psd(f, **params):
+def input_noise_psd(
+    f,
+    *,
+    gbw,
+    dc_gain,
+    poles=(),
+    rf,
+    cf,
+    cd,
+    rsh=np.inf,
+    rs=0.0,
+    cin=0.0,
+    en=0.0,
+    en_corner=0.0,
+    in_=0.0,
+    in_corner=0.0,
+    temperature=300.0,
+    i_shot=0.0,
+    stage2_noise=0.0,
+    stage2_corner=0.0,
+    filter_kind=None,
+    filter_order=4,
+    filter_cutoff=np.inf,
+):
     """Input-referred noise PSD of every source [A^2/Hz]: unfiltered output PSD / |Zt(f)|^2.
 
-    Takes the parameters of :func:`output_noise_psd` (the post filter, if given, is
-    ignored: it scales signal and noise alike).
+    Takes the parameters of :func:`output_noise_psd`; the post filter, if given, is ignored
+    because it scales signal and noise alike.
+
+    Notes
+    -----
+    S_in,k(f) = S_out,k(f) / |Zt(f)|^2 with Zt the closed-loop transimpedance.
     """
-    params = {k_: v for k_, v in params.items() if not k_.startswith("filter_")}
-    keys = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin", "en", "en_corner",
-            "in_", "in_corner", "temperature", "i_shot", "stage2_noise", "stage2_corner")
-    defaults = dict(poles=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0, in_=0.0,
-                    in_corner=0.0, temperature=300.0, i_shot=0.0, stage2_noise=0.0,
-                    stage2_corner=0.0)
-    unknown = set(params) - set(keys)
-    if unknown:
-        raise TypeError(f"input_noise_psd() got unexpected keyword(s) {sorted(unknown)}")
-    full = {**defaults, **params}
-    out, zt2 = _unfiltered_psd(f, *(full[k_] for k_ in keys))
+    out, zt2 = _unfiltered_psd(
+        f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_corner, in_, in_corner,
+        temperature, i_shot, stage2_noise, stage2_corner,
+    )  # fmt: skip
     return {name: v / zt2 for name, v in out.items()}
 
 
@@ -335,12 +421,31 @@ def integrated_output_noise(f_lo=0.0, f_hi=np.inf, *, rtol=DEFAULT_RTOL, **param
     if expanded.get("filter_kind") == "brickwall":
         f_hi = np.minimum(f_hi, np.asarray(params["filter_cutoff"], dtype=float))
         expanded["filter_kind"] = None
-    return integrate_psd(lambda f: output_noise_psd(f, **expanded), f_lo, f_hi, rtol=rtol,
-                         f_scale=float(np.max(params["gbw"])))
+    return integrate_psd(
+        lambda f: output_noise_psd(f, **expanded),
+        f_lo,
+        f_hi,
+        rtol=rtol,
+        f_scale=float(np.max(params["gbw"])),
+    )
 
 
-def chain_enbw(*, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.0, filter_kind=None,
-               filter_order=4, filter_cutoff=np.inf, rtol=DEFAULT_RTOL):
+def chain_enbw(
+    *,
+    gbw,
+    dc_gain,
+    poles=(),
+    rf,
+    cf,
+    cd,
+    rsh=np.inf,
+    rs=0.0,
+    cin=0.0,
+    filter_kind=None,
+    filter_order=4,
+    filter_cutoff=np.inf,
+    rtol=DEFAULT_RTOL,
+):
     """Equivalent noise bandwidth of the closed-loop transimpedance times a post filter [Hz].
 
     Parameters are shaped like the designs (no frequency axis), as in
@@ -356,7 +461,17 @@ def chain_enbw(*, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.
     .. [1] C. D. Motchenbacher and J. A. Connelly, *Low-Noise Electronic System Design*,
        Wiley, 1993, ch. 1.
     """
-    circuit = dict(gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin)
+    circuit = {
+        "gbw": gbw,
+        "dc_gain": dc_gain,
+        "poles": poles,
+        "rf": rf,
+        "cf": cf,
+        "cd": cd,
+        "rsh": rsh,
+        "rs": rs,
+        "cin": cin,
+    }
     p = _expand(circuit)
     zt0 = np.abs(noise_transfer_functions(0.0, **p)["junction"])[..., 0]
     f_hi = np.inf
@@ -372,12 +487,24 @@ def chain_enbw(*, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.
             zt2 = zt2 * np.abs(filter_response(f, kind, filter_order, cutoff)) ** 2
         return zt2
 
-    return integrate_psd(psd, 0.0, f_hi, rtol=rtol, f_scale=float(np.max(gbw))) / zt0 ** 2
+    return integrate_psd(psd, 0.0, f_hi, rtol=rtol, f_scale=float(np.max(gbw))) / zt0**2
 
 
-def tia_noise(tia, net, temperature=300.0, *, post_filter=None, dark_current=None, signal_current=None,
-              background_current=None, stage2_noise=0.0, stage2_noise_corner=0.0, f_lo=1.0,
-              f_hi=np.inf, rtol=DEFAULT_RTOL):
+def tia_noise(
+    tia,
+    net,
+    temperature=300.0,
+    *,
+    post_filter=None,
+    dark_current=None,
+    signal_current=None,
+    background_current=None,
+    stage2_noise=0.0,
+    stage2_noise_corner=0.0,
+    f_lo=1.0,
+    f_hi=np.inf,
+    rtol=DEFAULT_RTOL,
+):
     """Noise spectrum of a transimpedance stage loaded by a photodiode.
 
     Parameters
@@ -412,30 +539,55 @@ def tia_noise(tia, net, temperature=300.0, *, post_filter=None, dark_current=Non
     if not isinstance(tia, Tia):
         raise DesignError(f"tia must be a Tia, got {type(tia).__name__}", parameter="tia")
     if post_filter is not None and not isinstance(post_filter, PostFilter):
-        raise DesignError(f"post_filter must be a PostFilter or None, got {type(post_filter).__name__}",
-                          parameter="post_filter")
-    split = {name: value for name, value in (("dark", dark_current), ("signal", signal_current),
-                                             ("background", background_current)) if value is not None}
+        raise DesignError(
+            f"post_filter must be a PostFilter or None, got {type(post_filter).__name__}",
+            parameter="post_filter",
+        )
+    split = {
+        name: value
+        for name, value in (
+            ("dark", dark_current),
+            ("signal", signal_current),
+            ("background", background_current),
+        )
+        if value is not None
+    }
     for name, value in split.items():
         require_nonnegative(f"{name}_current", value, "A")
     if split and np.any(np.asarray(net.current) > 0):
         total = sum(np.asarray(v, dtype=float) for v in split.values())
         if np.any(np.abs(total - net.current) > 0.01 * np.asarray(net.current)):
-            warnings.warn(f"dark + signal + background current ({np.max(total):.4g} A) differs from "
-                          f"net.current ({np.max(net.current):.4g} A); the split is used for the shot "
-                          "noise", ModelRangeWarning, stacklevel=3)
+            warnings.warn(
+                f"dark + signal + background current ({np.max(total):.4g} A) differs from "
+                f"net.current ({np.max(net.current):.4g} A); the split is used for the shot "
+                "noise",
+                ModelRangeWarning,
+                stacklevel=3,
+            )
     amp = tia.amp
-    params = dict(gbw=amp.gbw, dc_gain=amp.dc_gain, poles=tuple(amp.poles), rf=tia.rf, cf=tia.cf,
-                  cd=net.capacitance, rsh=net.shunt_resistance, rs=net.series_resistance,
-                  cin=amp.input_capacitance, en=amp.voltage_noise, en_corner=amp.voltage_noise_corner,
-                  in_=amp.current_noise, in_corner=amp.current_noise_corner,
-                  temperature=float(require_positive("temperature", temperature, "K")),
-                  i_shot=split if split else net.current,
-                  stage2_noise=float(require_nonnegative("stage2_noise", stage2_noise, "V/rtHz")),
-                  stage2_corner=float(require_nonnegative("stage2_noise_corner", stage2_noise_corner,
-                                                          "Hz")))
+    params = {
+        "gbw": amp.gbw,
+        "dc_gain": amp.dc_gain,
+        "poles": tuple(amp.poles),
+        "rf": tia.rf,
+        "cf": tia.cf,
+        "cd": net.capacitance,
+        "rsh": net.shunt_resistance,
+        "rs": net.series_resistance,
+        "cin": amp.input_capacitance,
+        "en": amp.voltage_noise,
+        "en_corner": amp.voltage_noise_corner,
+        "in_": amp.current_noise,
+        "in_corner": amp.current_noise_corner,
+        "temperature": float(require_positive("temperature", temperature, "K")),
+        "i_shot": split if split else net.current,
+        "stage2_noise": float(require_nonnegative("stage2_noise", stage2_noise, "V/rtHz")),
+        "stage2_corner": float(
+            require_nonnegative("stage2_noise_corner", stage2_noise_corner, "Hz")
+        ),
+    }
     return NoiseSpectrum(params=params, post_filter=post_filter, f_lo=f_lo, f_hi=f_hi, rtol=rtol)
 
 
 # The shell lives in its own module (it imports the core above); re-exported here.
-from .noise_spectrum import NoiseSpectrum  # noqa: E402
+from .noise_spectrum import NoiseSpectrum

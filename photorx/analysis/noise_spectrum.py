@@ -6,6 +6,7 @@ noise budget as pandas tables; it computes no physics of its own.
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import dataclass, field
 
@@ -15,8 +16,14 @@ from .._validate import require_nonnegative, require_positive
 from ..errors import DesignError
 from ..units import format_eng
 from .integration import DEFAULT_RTOL
-from .noise import (SOURCE_LABELS, chain_enbw, input_noise_psd, integrated_output_noise,
-                    noise_transfer_functions, output_noise_psd)
+from .noise import (
+    SOURCE_LABELS,
+    chain_enbw,
+    input_noise_psd,
+    integrated_output_noise,
+    noise_transfer_functions,
+    output_noise_psd,
+)
 
 __all__ = ["NoiseSpectrum"]
 
@@ -65,7 +72,7 @@ class NoiseSpectrum:
         pf = self.post_filter
         if pf is None:
             return {}
-        return dict(filter_kind=pf.kind, filter_order=pf.order, filter_cutoff=pf.cutoff)
+        return {"filter_kind": pf.kind, "filter_order": pf.order, "filter_cutoff": pf.cutoff}
 
     def _band(self, f_lo, f_hi):
         return (self.f_lo if f_lo is None else f_lo), (self.f_hi if f_hi is None else f_hi)
@@ -93,9 +100,10 @@ class NoiseSpectrum:
         ----------
         f : array_like
             Frequency [Hz], > 0.
-        referred : {"output", "input"}
-            ``"output"``: at the filter output [V/rtHz]; ``"input"``: divided by |Zt(f)|
-            [A/rtHz].
+        referred : {"output", "input", "input_midband"}
+            ``"output"``: at the filter output [V/rtHz]; ``"input"``: the unfiltered output
+            divided by |Zt(f)| [A/rtHz]; ``"input_midband"``: the filtered output divided by
+            the mid-band |Zt(0)| [A/rtHz] (what integrates to :meth:`input_rms`).
 
         Returns
         -------
@@ -106,18 +114,27 @@ class NoiseSpectrum:
             psd = output_noise_psd(f, **self.params, **self._filter_kwargs())
         elif referred == "input":
             psd = input_noise_psd(f, **self.params)
+        elif referred == "input_midband":
+            zt0 = self.midband_transimpedance
+            psd = {
+                k: v / zt0**2
+                for k, v in output_noise_psd(f, **self.params, **self._filter_kwargs()).items()
+            }
         else:
-            raise DesignError(f"referred = {referred!r} is invalid; valid values: 'output', 'input'",
-                              parameter="referred")
+            raise DesignError(
+                f"referred = {referred!r} is invalid; valid values: 'output', 'input', "
+                "'input_midband'",
+                parameter="referred",
+            )
         return {name: np.sqrt(v) for name, v in psd.items()}
 
     def output_density(self, f):
         """Total output noise density [V/rtHz] (root of the summed PSDs)."""
-        return np.sqrt(sum(v ** 2 for v in self.by_source(f).values()))
+        return np.sqrt(sum(v**2 for v in self.by_source(f).values()))
 
     def input_density(self, f):
         """Total input-referred noise current density [A/rtHz]."""
-        return np.sqrt(sum(v ** 2 for v in self.by_source(f, "input").values()))
+        return np.sqrt(sum(v**2 for v in self.by_source(f, "input").values()))
 
     def nep(self, f, responsivity):
         """Noise-equivalent power [W/rtHz]: input density / responsivity [A/W]."""
@@ -131,8 +148,9 @@ class NoiseSpectrum:
         f_lo, f_hi = self._band(f_lo, f_hi)
         key = ("ms", float(f_lo), float(f_hi))
         if key not in self._cache:
-            ms = integrated_output_noise(f_lo, f_hi, rtol=self.rtol, **self.params,
-                                         **self._filter_kwargs())
+            ms = integrated_output_noise(
+                f_lo, f_hi, rtol=self.rtol, **self.params, **self._filter_kwargs()
+            )
             self._cache[key] = {name: float(v) for name, v in ms.items()}
         return dict(self._cache[key])
 
@@ -152,7 +170,9 @@ class NoiseSpectrum:
         """
         if "enbw" not in self._cache:
             circuit = {k: self.params[k] for k in _CIRCUIT}
-            self._cache["enbw"] = float(chain_enbw(**circuit, **self._filter_kwargs(), rtol=self.rtol))
+            self._cache["enbw"] = float(
+                chain_enbw(**circuit, **self._filter_kwargs(), rtol=self.rtol)
+            )
         return self._cache["enbw"]
 
     # -- tables ---------------------------------------------------------------------------
@@ -199,10 +219,18 @@ class NoiseSpectrum:
         df = pd.DataFrame.from_dict(rows, orient="index")
         df.index.name = "key"
         df["dominant"] = df["share [%]"] == df["share [%]"].max()
-        df.attrs.update({"f [Hz]": f_spot, "f_lo [Hz]": f_lo, "f_hi [Hz]": f_hi,
-                         "output rms [V]": math.sqrt(total), "input rms [A]": math.sqrt(total) / zt0,
-                         "input density [A/rtHz]": float(np.sqrt(sum(v ** 2 for v in dens.values()))),
-                         "enbw [Hz]": self.enbw(), "transimpedance [ohm]": zt0})
+        df.attrs.update(
+            {
+                "f [Hz]": f_spot,
+                "f_lo [Hz]": f_lo,
+                "f_hi [Hz]": f_hi,
+                "output rms [V]": math.sqrt(total),
+                "input rms [A]": math.sqrt(total) / zt0,
+                "input density [A/rtHz]": float(np.sqrt(sum(v**2 for v in dens.values()))),
+                "enbw [Hz]": self.enbw(),
+                "transimpedance [ohm]": zt0,
+            }
+        )
         return df
 
     def by_decade(self, f_lo=None, f_hi=None, quantity="share", drop_zero=True):
@@ -226,8 +254,11 @@ class NoiseSpectrum:
         import pandas as pd
 
         if quantity not in ("share", "output_rms", "input_rms"):
-            raise DesignError(f"quantity = {quantity!r} is invalid; valid values: 'share', "
-                              "'output_rms', 'input_rms'", parameter="quantity")
+            raise DesignError(
+                f"quantity = {quantity!r} is invalid; valid values: 'share', "
+                "'output_rms', 'input_rms'",
+                parameter="quantity",
+            )
         f_lo, f_hi = self._band(f_lo, f_hi)
         start = 10.0 ** math.floor(math.log10(f_lo)) if f_lo > 0 else None
         top = f_hi if math.isfinite(f_hi) else 10.0 ** math.ceil(math.log10(100.0 * self.enbw()))
@@ -239,8 +270,8 @@ class NoiseSpectrum:
             e *= 10.0
         edges.append(f_hi)
         columns = {}
-        for a, b in zip(edges[:-1], edges[1:]):
-            label = f"{format_eng(a, 'Hz')}-{format_eng(b, 'Hz')}"
+        for a, b in itertools.pairwise(edges):
+            label = f"{format_eng(a, 'Hz')}-{format_eng(b, 'Hz') if math.isfinite(b) else 'inf'}"
             columns[label] = self.mean_square(a, b)
         df = pd.DataFrame(columns)
         if drop_zero:
@@ -262,7 +293,7 @@ class NoiseSpectrum:
         f = np.atleast_1d(np.asarray(f, dtype=float))
         data = self.by_source(f, referred)
         df = pd.DataFrame(data, index=pd.Index(f, name="f [Hz]"))
-        df["total"] = np.sqrt((df ** 2).sum(axis=1))
+        df["total"] = np.sqrt((df**2).sum(axis=1))
         return df
 
     # -- display --------------------------------------------------------------------------
@@ -274,7 +305,7 @@ class NoiseSpectrum:
         ax : matplotlib.axes.Axes, optional
         f : array_like, optional
             Frequency grid [Hz]; default from the band start to 100 x ENBW.
-        referred : {"output", "input"}
+        referred : {"output", "input", "input_midband"}
 
         Returns
         -------
@@ -289,20 +320,27 @@ class NoiseSpectrum:
             f = np.logspace(np.log10(lo), np.log10(100.0 * self.enbw()), 400)
         dens = self.by_source(f, referred)
         keep = [k for k, v in dens.items() if np.any(v > 0)]
-        ax.stackplot(f, *[dens[k] ** 2 for k in keep], labels=[SOURCE_LABELS.get(k, k) for k in keep])
+        ax.stackplot(
+            f, *[dens[k] ** 2 for k in keep], labels=[SOURCE_LABELS.get(k, k) for k in keep]
+        )
         ax.set_xscale("log")
         ax.set_xlabel("frequency [Hz]")
-        ax.set_ylabel("output noise PSD [V$^2$/Hz]" if referred == "output"
-                      else "input noise PSD [A$^2$/Hz]")
+        ax.set_ylabel(
+            "output noise PSD [V$^2$/Hz]"
+            if referred == "output"
+            else "input-referred noise PSD [A$^2$/Hz]"
+        )
         ax.legend(loc="best", fontsize="small")
         return ax
 
     def _repr_html_(self):
         df = self.budget()
         a = df.attrs
-        head = (f"<p><b>NoiseSpectrum</b>: {format_eng(a['output rms [V]'], 'V')} rms at the output, "
-                f"{format_eng(a['input rms [A]'], 'A')} rms at the input, band "
-                f"{format_eng(a['f_lo [Hz]'], 'Hz')} to {format_eng(a['f_hi [Hz]'], 'Hz')}, "
-                f"ENBW {format_eng(a['enbw [Hz]'], 'Hz')}, "
-                f"|Zt(0)| {format_eng(a['transimpedance [ohm]'], 'ohm')}</p>")
+        head = (
+            f"<p><b>NoiseSpectrum</b>: {format_eng(a['output rms [V]'], 'V')} rms at the output, "
+            f"{format_eng(a['input rms [A]'], 'A')} rms at the input, band "
+            f"{format_eng(a['f_lo [Hz]'], 'Hz')} to {format_eng(a['f_hi [Hz]'], 'Hz')}, "
+            f"ENBW {format_eng(a['enbw [Hz]'], 'Hz')}, "
+            f"|Zt(0)| {format_eng(a['transimpedance [ohm]'], 'ohm')}</p>"
+        )
         return head + df.to_html(float_format=lambda v: f"{v:.4g}")

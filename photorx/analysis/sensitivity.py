@@ -16,14 +16,14 @@ from ..errors import DesignError
 from ..units import watt_to_dbm
 
 __all__ = [
-    "noise_equivalent_power",
-    "minimum_detectable_power",
     "analog_snr",
-    "maximum_input_current",
-    "dynamic_range",
     "ber_from_q",
-    "q_from_ber",
+    "dynamic_range",
+    "maximum_input_current",
+    "minimum_detectable_power",
+    "noise_equivalent_power",
     "q_factor",
+    "q_from_ber",
     "required_average_power",
     "sensitivity_dbm",
 ]
@@ -73,8 +73,14 @@ def minimum_detectable_power(input_noise_rms, responsivity):
     return i_n / r
 
 
-def analog_snr(optical_power, responsivity, circuit_noise_rms, noise_bandwidth, modulation_depth=1.0,
-               dark_current=0.0):
+def analog_snr(
+    optical_power,
+    responsivity,
+    circuit_noise_rms,
+    noise_bandwidth,
+    modulation_depth=1.0,
+    dark_current=0.0,
+):
     """Electrical signal-to-noise power ratio of an analog (sinusoidally modulated) receiver.
 
     Parameters
@@ -117,10 +123,11 @@ def analog_snr(optical_power, responsivity, circuit_noise_rms, noise_bandwidth, 
     m = _require_modulation(modulation_depth)
     i_d = require_nonnegative("dark_current", dark_current, "A")
     i_ph = r * np.asarray(p)
-    noise = s_c ** 2 + 2.0 * _Q * (i_ph + i_d) * b
+    noise = s_c**2 + 2.0 * _Q * (i_ph + i_d) * b
     if np.any(np.asarray(noise) == 0):
-        raise DesignError.out_of_range("circuit_noise_rms", 0.0, "A",
-                                       "> 0 when there is no photocurrent (SNR undefined)")
+        raise DesignError.out_of_range(
+            "circuit_noise_rms", 0.0, "A", "> 0 when there is no photocurrent (SNR undefined)"
+        )
     return (m * i_ph) ** 2 / 2.0 / noise
 
 
@@ -128,8 +135,9 @@ def _require_modulation(m):
     m = require_finite("modulation_depth", m, "")
     bad = (np.asarray(m) <= 0) | (np.asarray(m) > 1)
     if np.any(bad):
-        raise DesignError.out_of_range("modulation_depth", np.asarray(m)[bad].ravel()[0]
-                                       if np.ndim(m) else m, "", "(0, 1]")
+        raise DesignError.out_of_range(
+            "modulation_depth", np.asarray(m)[bad].ravel()[0] if np.ndim(m) else m, "", "(0, 1]"
+        )
     return m
 
 
@@ -205,8 +213,9 @@ def q_from_ber(ber):
     b = require_finite("ber", ber, "")
     bad = (np.asarray(b) <= 0) | (np.asarray(b) >= 0.5)
     if np.any(bad):
-        raise DesignError.out_of_range("ber", np.asarray(b)[bad].ravel()[0] if np.ndim(b) else b, "",
-                                       "(0, 0.5)")
+        raise DesignError.out_of_range(
+            "ber", np.asarray(b)[bad].ravel()[0] if np.ndim(b) else b, "", "(0, 0.5)"
+        )
     return np.sqrt(2.0) * special.erfcinv(2.0 * np.asarray(b))
 
 
@@ -229,8 +238,14 @@ def _levels(power, r, ratio):
     return power * (2.0 - zero_frac), power * zero_frac
 
 
-def required_average_power(q_value, responsivity, circuit_noise_rms, noise_bandwidth,
-                           extinction_ratio=np.inf, dark_current=0.0):
+def required_average_power(
+    q_value,
+    responsivity,
+    circuit_noise_rms,
+    noise_bandwidth,
+    extinction_ratio=np.inf,
+    dark_current=0.0,
+):
     """Average optical power needed for a Q factor, with signal-dependent shot noise [W].
 
     Parameters
@@ -278,13 +293,14 @@ def required_average_power(q_value, responsivity, circuit_noise_rms, noise_bandw
     if np.any(np.isnan(ratio)) or np.any(ratio <= 1):
         bad = ratio[~(ratio > 1)].ravel()[0] if ratio.ndim else float(ratio)
         raise DesignError.out_of_range("extinction_ratio", bad, "", "> 1 (inf allowed)")
-    q_v, r, s_c, b, i_d, ratio = np.broadcast_arrays(*(np.asarray(x, dtype=float)
-                                                       for x in (q_v, r, s_c, b, i_d, ratio)))
+    q_v, r, s_c, b, i_d, ratio = np.broadcast_arrays(
+        *(np.asarray(x, dtype=float) for x in (q_v, r, s_c, b, i_d, ratio))
+    )
 
     def q_of(power):
         p1, p0 = _levels(power, r, ratio)
         i1, i0 = r * p1 + i_d, r * p0 + i_d
-        return (i1 - i0) / (np.sqrt(s_c ** 2 + 2 * _Q * i1 * b) + np.sqrt(s_c ** 2 + 2 * _Q * i0 * b))
+        return (i1 - i0) / (np.sqrt(s_c**2 + 2 * _Q * i1 * b) + np.sqrt(s_c**2 + 2 * _Q * i0 * b))
 
     # bracket: Q rises at least as sqrt(P) for large P, so doubling decades always brackets
     lo = np.full(q_v.shape, 1e-30)
@@ -306,8 +322,22 @@ def required_average_power(q_value, responsivity, circuit_noise_rms, noise_bandw
     return out if out.ndim else float(out)
 
 
-def sensitivity_dbm(q_value, responsivity, circuit_noise_rms, noise_bandwidth,
-                    extinction_ratio=np.inf, dark_current=0.0):
+def sensitivity_dbm(
+    q_value,
+    responsivity,
+    circuit_noise_rms,
+    noise_bandwidth,
+    extinction_ratio=np.inf,
+    dark_current=0.0,
+):
     """Receiver sensitivity: :func:`required_average_power` in dBm (10 log10(P / 1 mW))."""
-    return watt_to_dbm(required_average_power(q_value, responsivity, circuit_noise_rms, noise_bandwidth,
-                                              extinction_ratio, dark_current))
+    return watt_to_dbm(
+        required_average_power(
+            q_value,
+            responsivity,
+            circuit_noise_rms,
+            noise_bandwidth,
+            extinction_ratio,
+            dark_current,
+        )
+    )

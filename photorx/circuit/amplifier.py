@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .._validate import require_nonnegative, require_positive
+from ..errors import DesignError
 
 __all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_density"]
 
@@ -28,7 +29,7 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
     dc_gain : array_like
         DC open-loop gain A0 [V/V].
     poles : sequence of array_like
-        Extra (non-dominant) pole frequencies [Hz].
+        Extra (non-dominant) pole frequencies [Hz]; ``inf`` marks an absent pole.
 
     Returns
     -------
@@ -77,9 +78,10 @@ class OpAmp:
     gbw : float
         Gain-bandwidth product [Hz], > 0.
     dc_gain : float
-        DC open-loop gain [V/V], > 1.
+        DC open-loop gain [V/V], > 0.
     poles : tuple of float
-        Extra pole frequencies beyond the dominant one [Hz], each > 0.
+        Extra pole frequencies beyond the dominant one [Hz], each > 0 (a single number is
+        one pole; ``()`` or ``None`` for none).
     voltage_noise : float
         White input voltage noise density [V/rtHz], >= 0.
     current_noise : float
@@ -106,8 +108,13 @@ class OpAmp:
         set_ = object.__setattr__
         set_(self, "gbw", require_positive("gbw", self.gbw, "Hz"))
         set_(self, "dc_gain", require_positive("dc_gain", self.dc_gain, "V/V"))
-        poles = tuple(np.atleast_1d(np.asarray(self.poles, dtype=float)).tolist()) \
-            if np.ndim(self.poles) else ((float(self.poles),) if self.poles else ())
+        # a scalar is one pole (0 is rejected below, not read as "no pole"); None means none
+        raw = () if self.poles is None else self.poles
+        try:
+            poles = tuple(float(p) for p in np.atleast_1d(np.asarray(raw, dtype=float)).ravel())
+        except (TypeError, ValueError):
+            raise DesignError(f"poles = {self.poles!r} is not a sequence of frequencies in Hz",
+                              parameter="poles") from None
         for p in poles:
             require_positive("poles", p, "Hz")
         set_(self, "poles", poles)

@@ -13,7 +13,7 @@ point at 1.36 (order 2) to 2.70 (order 6) times its delay-normalised frequency).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cache
 from math import factorial
 
 import numpy as np
@@ -22,7 +22,13 @@ from scipy import integrate, optimize
 from .._validate import require_positive
 from ..errors import DesignError
 
-__all__ = ["PostFilter", "FILTER_KINDS", "filter_response", "filter_enbw_factor", "normalized_poles"]
+__all__ = [
+    "FILTER_KINDS",
+    "PostFilter",
+    "filter_enbw_factor",
+    "filter_response",
+    "normalized_poles",
+]
 
 FILTER_KINDS = ("butterworth", "bessel", "brickwall")
 _MAX_ORDER = 6
@@ -30,14 +36,19 @@ _MAX_ORDER = 6
 
 def _check_kind_order(kind, order):
     if kind not in FILTER_KINDS:
-        raise DesignError(f"kind = {kind!r} is invalid; valid values: {', '.join(FILTER_KINDS)}",
-                          parameter="kind")
-    if isinstance(order, bool) or not isinstance(order, (int, np.integer)) or not 1 <= order <= _MAX_ORDER:
+        raise DesignError(
+            f"kind = {kind!r} is invalid; valid values: {', '.join(FILTER_KINDS)}", parameter="kind"
+        )
+    if (
+        isinstance(order, bool)
+        or not isinstance(order, (int, np.integer))
+        or not 1 <= order <= _MAX_ORDER
+    ):
         raise DesignError.out_of_range("order", order, "", f"integers 1 to {_MAX_ORDER}")
     return str(kind), int(order)
 
 
-@lru_cache(maxsize=None)
+@cache
 def normalized_poles(kind, order):
     """Poles of the low-pass prototype with its -3 dB point at 1 rad/s.
 
@@ -74,8 +85,10 @@ def normalized_poles(kind, order):
         k = np.arange(1, n + 1)
         return tuple(np.exp(1j * np.pi * (2 * k + n - 1) / (2 * n)))
     if kind == "bessel":
-        coeffs = [factorial(2 * n - k) / (2 ** (n - k) * factorial(k) * factorial(n - k))
-                  for k in range(n, -1, -1)]  # highest power first
+        coeffs = [
+            factorial(2 * n - k) / (2 ** (n - k) * factorial(k) * factorial(n - k))
+            for k in range(n, -1, -1)
+        ]  # highest power first
         poles = np.roots(coeffs)
 
         def excess(w):  # |H(jw)|^2 - 1/2 with H = prod(-p) / prod(jw - p)
@@ -124,7 +137,7 @@ def filter_response(f, kind, order, cutoff):
     return h
 
 
-@lru_cache(maxsize=None)
+@cache
 def filter_enbw_factor(kind, order):
     """Equivalent noise bandwidth divided by the cutoff frequency (dimensionless).
 

@@ -108,9 +108,9 @@ FIGURE_UNITS = {
 
 _TWO_PI = 2.0 * np.pi
 _N_FREQ = 160          # log-grid points for bandwidth and peaking (plus the pole frequencies)
-_N_LOOP = 320          # log-grid points for the loop-gain crossings
+_N_LOOP = 128          # log-grid points for the loop-gain crossings (then refined by bisection)
 _N_TIME_MIN, _N_TIME_MAX = 128, 4096
-_CHUNK = 2048          # designs per block in the step response (bounds memory, not a design loop)
+_BLOCK_SAMPLES = 2 ** 21  # designs x time samples per block of the step response (memory bound)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -181,6 +181,19 @@ def _horner(c, x):
 
 def _deriv(c):
     return c[:, 1:] * np.arange(1, c.shape[-1])
+
+
+def _on_axis(c, w):
+    """sum_k c[..., k] (j w)^k for real c (N, m) and w (N, M), in real arithmetic."""
+    w2 = w * w
+    m = c.shape[-1]
+    even = np.zeros(w.shape)
+    odd = np.zeros(w.shape)
+    for k in range(((m - 1) // 2) * 2, -1, -2):   # c0 - c2 w^2 + c4 w^4 ...
+        even = c[:, k:k + 1] - even * w2
+    for k in range(((m - 2) // 2) * 2 + 1, 0, -2):  # (c1 - c3 w^2 + ...) w
+        odd = c[:, k:k + 1] - odd * w2
+    return even + 1j * odd * w
 
 
 def _den_parts(p, pk):
@@ -300,7 +313,7 @@ def _loop_eval(w, t0, wz, wp):
     return logmag, phase
 
 
-def _bisect_rows(fun, lo, hi, rows, n_iter=60):
+def _bisect_rows(fun, lo, hi, rows, n_iter=44):
     """Vectorised bisection in log w of fun(w, rows) whose sign differs at lo and hi."""
     flo = np.sign(fun(lo, rows))
     for _ in range(n_iter):
@@ -324,8 +337,20 @@ def _margins(t0, wz, wp):
     wmax = wmax * np.exp(np.maximum(lm_top[:, 0], 0.0) / np.maximum(excess, 1)) * 10.0
     u = np.linspace(0.0, 1.0, _N_LOOP)
     w = wmin[:, None] * (wmax / wmin)[:, None] ** u
-    logmag, phase = _loop_eval(w, t0, wz, wp)
-
+    # on the grid, in real arithmetic: |T|^2 as a running product, and arg T as the angle of
+    # prod(1 + j w/wz) prod(1 - j w/wp) (same phase), unwrapped (each step turns it << pi)
+    mag2 = np.ones(w.shape)
+    re, im = np.ones(w.shape), np.zeros(w.shape)
+    for k in range(wz.shape[1]):
+        b = w / wz[:, k:k + 1]
+        mag2 *= 1.0 + b * b
+        re, im = re - im * b, im + re * b
+    for k in range(wp.shape[1]):
+        b = w / wp[:, k:k + 1]
+        mag2 /= 1.0 + b * b
+        re, im = re + im * b, im - re * b
+    logmag = np.log(t0)[:, None] + 0.5 * np.log(mag2)
+    phase = np.unwrap(np.arctan2(im, re), axis=-1)
     def f_mag(x, r):
         return _loop_eval(x[:, None], t0[r], wz[r], wp[r])[0][:, 0]
 
@@ -430,14 +455,14 @@ def _frequency_figures(x, d):
     extra = np.where(np.isnan(extra) | (extra < lo[:, None]), lo[:, None], extra)
     w = np.sort(np.concatenate([w, extra], -1), -1)
     dd = _deriv(d)
-    g = np.abs(_horner(d, 1j * w)) ** 2  # |Den(jw)/Den(0)|^2 = 1/|H|^2
+    g = np.abs(_on_axis(d, w)) ** 2  # |Den(jw)/Den(0)|^2 = 1/|H|^2
     inside = g <= 2.0
     last = w.shape[1] - 1 - np.argmax(inside[:, ::-1], -1)
     last = np.minimum(last, w.shape[1] - 2)
     rows = np.arange(n_rows)
 
     def f_bw(xx, r):
-        return 2.0 - np.abs(_horner(d[r], 1j * xx[:, None])[:, 0]) ** 2
+        return 2.0 - np.abs(_on_axis(d[r], xx[:, None])[:, 0]) ** 2
 
     bw = _bisect_rows(f_bw, w[rows, last], w[rows, last + 1], rows)
     # peaking: minimum of |Den|^2, refined where d|Den|^2/dw changes sign around the grid minimum
@@ -446,18 +471,18 @@ def _frequency_figures(x, d):
     kl, kh = np.maximum(k - 1, 0), np.minimum(k + 1, w.shape[1] - 1)
 
     def slope(xx, r):
-        jw = 1j * xx[:, None]
-        return (np.conj(_horner(d[r], jw)) * 1j * _horner(dd[r], jw)).real[:, 0]
+        ww = xx[:, None]
+        return (np.conj(_on_axis(d[r], ww)) * 1j * _on_axis(dd[r], ww)).real[:, 0]
 
     ok = (slope(w[rows, kl], rows) < 0) & (slope(w[rows, kh], rows) > 0)
     if np.any(ok):
         r = rows[ok]
         xm = _bisect_rows(slope, w[r, kl[ok]], w[r, kh[ok]], r)
-        gm = np.abs(_horner(d[r], 1j * xm[:, None])[:, 0]) ** 2
+        gm = np.abs(_on_axis(d[r], xm[:, None])[:, 0]) ** 2
         peak[r] = np.maximum(peak[r], 1.0 / gm)
     peak = np.maximum(peak, 1.0)
     wg = bw[:, None] * np.linspace(0.0, 1.0, 65)
-    tau = (_horner(dd, 1j * wg) / _horner(d, 1j * wg)).real
+    tau = (_on_axis(dd, wg) / _on_axis(d, wg)).real
     gdv = tau.max(-1) - tau.min(-1)
     return bw, peak, gdv
 
@@ -486,6 +511,18 @@ def _step_figures(x, d, tol):
     n_rows = x.shape[0]
     valid = ~np.isnan(x)
     xv = np.where(valid, x, -1.0)
+    # repeated poles (critical damping) have no simple residues: split each coincident pair by
+    # +-1e-5 relative along the real axis, which changes the response by ~1e-10 only
+    xv = xv.copy()
+    for i in range(xv.shape[1]):
+        for j in range(i + 1, xv.shape[1]):
+            close = valid[:, i] & valid[:, j] & (np.abs(xv[:, i] - xv[:, j])
+                                                 < 1e-6 * np.abs(xv[:, i]))
+            mid, delta = 0.5 * (xv[:, i] + xv[:, j]), 1e-5 * np.abs(xv[:, i])
+            both_real = np.abs(mid.imag) < 1e-6 * np.abs(mid)
+            mid = np.where(both_real, mid.real, mid)
+            xv[:, i] = np.where(close, mid + delta, xv[:, i])
+            xv[:, j] = np.where(close, mid - delta, xv[:, j])
     with np.errstate(invalid="ignore", divide="ignore"):
         c = np.where(valid, 1.0 / (xv * _horner(_deriv(d), xv)), 0.0)
     n_eff = valid.sum(-1)[:, None]
@@ -507,11 +544,11 @@ def _step_figures(x, d, tol):
     n_bin = 2 ** np.ceil(np.log2(need)).astype(int)
     rise, overshoot, settle = (np.empty(n_rows) for _ in range(3))
     for n_t in np.unique(n_bin):  # a handful of bin sizes, each fully vectorised
-        for start in range(0, n_rows, _CHUNK):
-            r = np.nonzero(n_bin == n_t)[0]
-            r = r[start:start + _CHUNK]
-            if r.size:
-                rise[r], overshoot[r], settle[r] = _step_block(xv[r], cw[r], t_end[r], n_t, tol)
+        in_bin = np.nonzero(n_bin == n_t)[0]
+        block = max(64, _BLOCK_SAMPLES // n_t)  # bounds memory, not a loop over designs
+        for start in range(0, in_bin.size, block):
+            r = in_bin[start:start + block]
+            rise[r], overshoot[r], settle[r] = _step_block(xv[r], cw[r], t_end[r], n_t, tol)
     return rise, overshoot, settle
 
 

@@ -1,4 +1,4 @@
-"""Transimpedance amplifier: loop gain, noise gain and closed-loop transimpedance.
+r"""Transimpedance amplifier: loop gain, noise gain and closed-loop transimpedance.
 
 Circuit (common practice; Graeme, *Photodiode Amplifiers*, 1996, ch. 2-3)::
 

@@ -9,6 +9,7 @@ Sign convention: ``v_r`` is the reverse bias [V]; negative values are forward bi
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -17,7 +18,7 @@ from .._validate import require_in_range
 from ..constants import q, thermal_voltage
 from ..errors import DesignError
 from .junction_base import JunctionBase, check_doping
-from .materials import Material, universal_breakdown_voltage
+from .materials import Material
 
 __all__ = [
     "AbruptJunction",
@@ -220,7 +221,7 @@ class AbruptJunction(JunctionBase):
                                          self.temperature)
 
     def depletion_width(self, v_r):
-        """Depletion width W [m] at reverse bias ``v_r`` [V] (see :func:`abrupt_depletion_width`)."""
+        """Depletion width W [m] at reverse bias ``v_r`` [V] (:func:`abrupt_depletion_width`)."""
         return abrupt_depletion_width(self._total_potential(v_r), self.na, self.nd,
                                       self.material.permittivity)
 
@@ -308,11 +309,15 @@ class LinearlyGradedJunction(JunctionBase):
                 "large enough for a built-in potential above 4 kT/q (the graded-junction "
                 "model needs a depletion layer much wider than the Debye length)")
 
-    def built_in_potential(self):
-        """Self-consistent built-in potential [V] (see :func:`graded_built_in_potential`)."""
+    @functools.cached_property
+    def _vbi(self):
         return graded_built_in_potential(self.gradient,
                                          self.material.intrinsic_density(self.temperature),
                                          self.material.permittivity, self.temperature)
+
+    def built_in_potential(self):
+        """Self-consistent built-in potential [V] (see :func:`graded_built_in_potential`)."""
+        return self._vbi
 
     def depletion_width(self, v_r):
         """Depletion width W [m] (cube-root law)."""

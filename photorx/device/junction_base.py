@@ -7,6 +7,8 @@ numpy arrays. This module holds the pieces they have in common.
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
 from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
@@ -101,10 +103,15 @@ class JunctionBase:
         object.__setattr__(self, "temperature", check_temperature(self.temperature))
         object.__setattr__(self, "area", require_positive("area", self.area, "m^2"))
 
+    @functools.cached_property
+    def _bias_limits(self):
+        # a frozen design never changes, so Vbi and the breakdown estimate are computed once
+        return self.built_in_potential(), self.breakdown_voltage()
+
     def _total_potential(self, v_r):
         """Validate the reverse bias ``v_r`` [V] and return Vbi + v_r [V] (broadcast)."""
         v = require_finite("v_r", v_r, "V")
-        vbi = self.built_in_potential()
+        vbi, vbr = self._bias_limits
         va, vb = np.broadcast_arrays(np.asarray(v), np.asarray(vbi))
         bad = va <= -FORWARD_LIMIT * vb
         if np.any(bad):
@@ -112,7 +119,6 @@ class JunctionBase:
                 "v_r", va[bad][0], "V",
                 f"> -{FORWARD_LIMIT}*Vbi = {-FORWARD_LIMIT * vb[bad][0]:.4g} V (forward bias "
                 "near the built-in potential is outside the depletion approximation)")
-        vbr = self.breakdown_voltage()
         va, vbr_b = np.broadcast_arrays(np.asarray(v), np.asarray(vbr))
         bad = (va > 0) & (va > vbr_b)
         if np.any(bad):

@@ -34,6 +34,7 @@ __all__ = [
     "material",
     "known_materials",
     "TEMPERATURE_RANGE",
+    "check_temperature",
     "band_gap_varshni",
     "universal_breakdown_voltage",
 ]
@@ -223,7 +224,7 @@ class Material:
         the ratio of ni = sqrt(Nc Nv) exp(-Eg / 2kT) at T and at 300 K. Anchoring at the
         tabulated ni(300 K) keeps 300 K exact (the tabulated ni of Si is not
         sqrt(Nc Nv) exp(-Eg/2kT) with the tabulated Nc, Nv, Eg). Valid 50-600 K; for Si
-        it agrees with Misiakos and Tsamakis (1993) within about 10 % over 250-450 K.
+        it agrees with Misiakos and Tsamakis (1993) within about 10 % over 200-450 K.
 
         References
         ----------

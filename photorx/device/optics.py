@@ -309,13 +309,14 @@ def _divdiff(p, s, d):
 
 
 def _clip_thickness(thickness, b):
-    # beyond ~400 diffusion lengths (or absorption lengths) nothing changes in double precision
+    # carriers generated more than ~400 diffusion lengths beyond the depletion edge are
+    # never collected (e^-400): clipping a bottom layer there is exact and handles H = inf
     return np.minimum(np.asarray(thickness, dtype=float), 400.0 / np.real(b))
 
 
 def _top_collection(a, d, b):
     """Top layer, reflecting front surface: int_0^d a e^{-ax} cosh(bx)/cosh(bd) dx."""
-    d = _clip_thickness(d, b)
+    d = np.asarray(d, dtype=float)  # no clipping: e^{-ad} of a thick top layer matters
     e2 = np.exp(-2.0 * b * d)
     return a / (1.0 + e2) * (_divdiff(b, a, d) + _divdiff(b, a + 2.0 * b, d))
 

@@ -121,7 +121,8 @@ class Derivation:
         set_(self, "steps", tuple(s if isinstance(s, Step) else Step(*s) for s in self.steps))
         results = {name: _as_eq(name, v) for name, v in dict(self.results).items()}
         if not results:
-            raise DesignError("a derivation needs at least one result", parameter="results")
+            raise DesignError("results = {} is empty; a derivation needs at least one result",
+                              parameter="results")
         set_(self, "results", MappingProxyType(results))
         info = {}
         for s, v in dict(self.symbols).items():

@@ -41,7 +41,8 @@ V_r = sp.Symbol("V_r", real=True)
 x_p, x_n, W, w_i = sp.symbols("x_p x_n W w_i", positive=True)
 tau, I_F, I_s, n_id, V = sp.symbols("tau I I_s n V", positive=True)
 V_f = sp.Symbol("V_f", real=True)
-Q_sym = sp.Symbol("Q")
+Q_sym, rho, E_max, V_pt = sp.symbols("Q rho E_max V_pt")
+C_diff, Q_s = sp.symbols("C_diff Q_s")
 E_sym, psi_sym, C_sym = sp.Function("E"), sp.Function("psi"), sp.Symbol("C_j")
 
 #: meaning and SI unit of every symbol used by the junction derivations
@@ -67,6 +68,13 @@ JUNCTION_SYMBOLS = {
     I_s: ("saturation current", "A"),
     n_id: ("ideality factor", "1"),
     V_f: ("forward voltage", "V"),
+    Q_sym: ("depletion charge on one side", "C"),
+    rho: ("space-charge density", "C/m^3"),
+    E_max: ("peak field magnitude", "V/m"),
+    V_pt: ("punch-through reverse bias", "V"),
+    C_sym: ("junction (depletion) capacitance", "F"),
+    C_diff: ("diffusion capacitance", "F"),
+    Q_s: ("stored minority-carrier charge", "C"),
 }
 
 _SZE = "S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed., Wiley, 2007, ch. 2."
@@ -137,8 +145,8 @@ def abrupt_junction() -> Derivation:
     w_one = sp.simplify(sp.limit(w, N_A, sp.oo))
     steps = [
         Step("Charge density in the depletion approximation",
-             sp.Eq(sp.Symbol("rho"), _piecewise([s[2] for s in segs], segs))),
-        Step("Poisson's equation", sp.Eq(sp.Derivative(E_sym(x), x), sp.Symbol("rho") / eps_s)),
+             sp.Eq(rho, _piecewise([s[2] for s in segs], segs))),
+        Step("Poisson's equation", sp.Eq(sp.Derivative(E_sym(x), x), rho / eps_s)),
         Step("Integrate from the p edge, where E = 0 (p side)", sp.Eq(E_sym(x), fields[0])),
         Step("... and on the n side", sp.Eq(E_sym(x), fields[1])),
         Step("E = 0 at the n edge too: charge neutrality", neutral),
@@ -149,7 +157,7 @@ def abrupt_junction() -> Derivation:
         Step("Solve for the n-side depth", sp.Eq(x_n, xn_sol)),
         Step("and the p-side depth", sp.Eq(x_p, xp_val)),
         Step("Depletion width $W = x_n + x_p$", sp.Eq(W, w)),
-        Step("Peak field at the metallurgical junction", sp.Eq(sp.Symbol("E_max"), peak)),
+        Step("Peak field at the metallurgical junction", sp.Eq(E_max, peak)),
         Step("Charge on the n side", sp.Eq(Q_sym, charge)),
         Step("Capacitance $C_j = dQ/dV_r$", sp.Eq(C_sym, cap)),
         Step("Identity: $C_j - \\epsilon_s A/W$ simplifies to", sp.Eq(C_sym - eps_s * area / W, identity)),
@@ -195,7 +203,7 @@ def linearly_graded_junction() -> Derivation:
     identity = sp.simplify(cap - eps_s * area / w_sol)
     peak = sp.simplify(-fields[0].subs(x, 0).subs(W, w_sol))
     steps = [
-        Step("Charge density of a linear impurity gradient", sp.Eq(sp.Symbol("rho"), q * a * x)),
+        Step("Charge density of a linear impurity gradient", sp.Eq(rho, q * a * x)),
         Step("Poisson's equation", sp.Eq(sp.Derivative(E_sym(x), x), q * a * x / eps_s)),
         Step("Integrate from the edge $-W/2$ where E = 0", sp.Eq(E_sym(x), fields[0])),
         Step("The field vanishes at $+W/2$ by symmetry (neutrality)", sp.Eq(e_end, 0)),
@@ -205,7 +213,7 @@ def linearly_graded_junction() -> Derivation:
         Step("Charge on one side", sp.Eq(Q_sym, charge_w)),
         Step("Capacitance $dQ/dV_r$", sp.Eq(C_sym, cap)),
         Step("Identity: $C_j - \\epsilon_s A/W$ simplifies to", sp.Eq(C_sym - eps_s * area / W, identity)),
-        Step("Peak field", sp.Eq(sp.Symbol("E_max"), peak)),
+        Step("Peak field", sp.Eq(E_max, peak)),
     ]
     return Derivation(
         title="Linearly graded junction from Poisson's equation",
@@ -268,7 +276,7 @@ def pin_junction() -> Derivation:
         Step("Potential drop equal to $V_{bi} + V_r$", sp.Eq(drop_b.subs(x_p, xp_b), V_bi + V_r)),
         Step("Depleted depth of the i layer", sp.Eq(w_i, wi_sol)),
         Step("Depletion width below punch-through", sp.Eq(W, w_below)),
-        Step("Punch-through: $w_i = d$ at the reverse bias", sp.Eq(sp.Symbol("V_pt"), vpt)),
+        Step("Punch-through: $w_i = d$ at the reverse bias", sp.Eq(V_pt, vpt)),
         Step("Above punch-through: charge $-qN_A$, $qN_i$ on $(0, d)$, $qN_D$ on $(d, d+x_n)$; "
              "field", sp.Eq(E_sym(x), _piecewise(fields_a, segs_a))),
         Step("Neutrality (E = 0 at the n+ edge)", sp.Eq(x_p, xp_a)),
@@ -320,12 +328,12 @@ def diffusion_capacitance() -> Derivation:
     steps = [
         Step("Charge control: the stored minority charge $Q_s$ is fed by the current and "
              "recombines (or leaves) in the time $\\tau$", charge_control),
-        Step("Steady state", sp.Eq(sp.Symbol("Q_s"), steady)),
+        Step("Steady state", sp.Eq(Q_s, steady)),
         Step("Diode law (forward voltage $V_f = -V_r$)", sp.Eq(I_F, diode)),
-        Step("Stored charge versus voltage", sp.Eq(sp.Symbol("Q_s"), q_v)),
-        Step("Capacitance $C = dQ_s/dV_f$", sp.Eq(sp.Symbol("C_diff"), c_v)),
-        Step("In terms of the current", sp.Eq(sp.Symbol("C_diff"), c_i)),
-        Step("For $I \\gg I_s$", sp.Eq(sp.Symbol("C_diff"), c_approx)),
+        Step("Stored charge versus voltage", sp.Eq(Q_s, q_v)),
+        Step("Capacitance $C = dQ_s/dV_f$", sp.Eq(C_diff, c_v)),
+        Step("In terms of the current", sp.Eq(C_diff, c_i)),
+        Step("For $I \\gg I_s$", sp.Eq(C_diff, c_approx)),
     ]
     return Derivation(
         title="Diffusion capacitance from the stored charge",

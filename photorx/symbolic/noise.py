@@ -37,6 +37,9 @@ i_x = sp.Symbol("i_x")
 Z_0, f_0, S_w, C_T = sp.symbols("Z_0 f_0 S_w C_T", positive=True)
 eta, lam, P = sp.symbols("eta lambda_0 P", positive=True)
 omega = sp.Symbol("omega", positive=True)
+H_e, H_i, S_i, f_c, A_ss, I_0, I_2, v_rms = sp.symbols("H_e H_i S_i f_c A_ss I_0 I_2 v_rms")
+H_f = sp.Function("H")(f)
+P_ss, NEP, NEP_f = sp.symbols("P_ss NEP NEP_f")
 
 #: meaning and SI unit of the symbols introduced by the noise derivations
 NOISE_SYMBOLS = {
@@ -54,6 +57,17 @@ NOISE_SYMBOLS = {
     eta: ("external quantum efficiency", "1"),
     lam: ("vacuum wavelength", "m"),
     P: ("optical power", "W"),
+    H_e: ("output per unit voltage noise at the non-inverting input", "1"),
+    H_i: ("output per unit noise current at the summing node", "ohm"),
+    S_i: ("input-referred current noise PSD", "A^2/Hz"),
+    f_c: ("noise corner where the e_n C_T term equals the rest", "Hz"),
+    A_ss: ("state matrix of the second-order response", "rad/s"),
+    I_0: ("integral of |H|^2 over 0 < f < infinity", "Hz"),
+    I_2: ("integral of f^2 |H|^2 over 0 < f < infinity", "Hz^3"),
+    v_rms: ("rms output noise voltage", "V"),
+    P_ss: ("controllability Gramian of the state-space realisation", "-"),
+    NEP: ("noise-equivalent power", "W"),
+    NEP_f: ("noise-equivalent power per root hertz", "W/rtHz"),
 }
 
 _REFS = ("J. G. Graeme, Photodiode Amplifiers: Op Amp Solutions, McGraw-Hill, 1996, ch. 4-6.",
@@ -109,18 +123,18 @@ def tia_input_noise() -> Derivation:
         Step("Kirchhoff's current law at the summing node ($R_s = 0$) with a noise current "
              "$i_x$ drawn out of it", kcl),
         Step("Amplifier with its input voltage noise $e_n$ at the non-inverting input", amp),
-        Step("Output per unit current: the transimpedance", sp.Eq(sp.Symbol("H_i"), h_i)),
-        Step("Output per unit $e_n$", sp.Eq(sp.Symbol("H_e"), h_e)),
+        Step("Output per unit current: the transimpedance", sp.Eq(H_i, h_i)),
+        Step("Output per unit $e_n$", sp.Eq(H_e, h_e)),
         Step("Referred to the input, $e_n$ becomes a current $e_n H_e/H_i$ (independent of A)",
-             sp.Eq(sp.Symbol("H_e") / sp.Symbol("H_i"), referred)),
-        Step("Its squared magnitude at $s = j\\omega$", sp.Eq(sp.Abs(sp.Symbol("H_e") / sp.Symbol("H_i")) ** 2, mag2)),
+             sp.Eq(H_e / H_i, referred)),
+        Step("Its squared magnitude at $s = j\\omega$", sp.Eq(sp.Abs(H_e / H_i) ** 2, mag2)),
         Step("Uncorrelated sources add in power: Johnson noise of $R_f$ and $R_{sh}$, shot noise "
              "of the diode current, amplifier current noise, and the $e_n$ term",
-             sp.Eq(sp.Symbol("S_i"), psd)),
+             sp.Eq(S_i, psd)),
         Step("The $e_n$ term in the textbook form ($C_T = C_d + C_{in} + C_f$); the difference is",
              sp.Eq(en_term - en_tidy, residual)),
         Step("Frequency above which the $e_n C_T$ term exceeds the rest", corner_eq),
-        Step("Its positive root", sp.Eq(sp.Symbol("f_c"), corner)),
+        Step("Its positive root", sp.Eq(f_c, corner)),
     ]
     return Derivation(
         title="Input-referred current noise of the transimpedance amplifier",
@@ -179,20 +193,20 @@ def tia_output_noise() -> Derivation:
     steps = [
         Step("Output PSD: input-referred PSD times $|Z_t|^2$, with $Z_t = Z_0 H$ and the "
              "input PSD $S_w + e_n^2 (2\\pi f C_T)^2$ ($R_{sh} \\to \\infty$)",
-             sp.Eq(sp.Symbol("v^2"), sp.Integral(Z_0 ** 2 * sp.Symbol("|H(f)|^2")
+             sp.Eq(v_rms ** 2, sp.Integral(Z_0 ** 2 * sp.Abs(H_f) ** 2
                                                   * (S_w + e_nw ** 2 * (2 * sp.pi * f * C_T) ** 2),
                                                   (f, 0, sp.oo)))),
         Step("State-space realisation of $H = \\omega_0^2/(s^2 + s\\omega_0/Q + \\omega_0^2)$: "
-             "system matrix", sp.Eq(sp.Symbol("A_ss"), a_ss, evaluate=False)),
+             "system matrix", sp.Eq(A_ss, a_ss, evaluate=False)),
         Step("Lyapunov equation $A P + P A^T + B B^T = 0$ (Parseval's theorem)",
              sp.Eq(lyap, sp.zeros(2, 2), evaluate=False)),
-        Step("Its solution", sp.Eq(sp.Symbol("P"), p_num, evaluate=False)),
+        Step("Its solution", sp.Eq(P_ss, p_num, evaluate=False)),
         Step("White part: $\\int_0^\\infty |H|^2 df = C P C^T / 2$",
-             sp.Eq(sp.Symbol("I_0"), white)),
-        Step("$f^2$ part: $\\int_0^\\infty f^2 |H|^2 df$", sp.Eq(sp.Symbol("I_2"), f2)),
-        Step("Total output noise", sp.Eq(sp.Symbol("v^2"), ms)),
+             sp.Eq(I_0, white)),
+        Step("$f^2$ part: $\\int_0^\\infty f^2 |H|^2 df$", sp.Eq(I_2, f2)),
+        Step("Total output noise", sp.Eq(v_rms ** 2, ms)),
         Step("In the circuit symbols (dominant-pole amplifier, ideal diode)",
-             sp.Eq(sp.Symbol("v^2"), circuit)),
+             sp.Eq(v_rms ** 2, circuit)),
     ]
     return Derivation(
         title="Integrated output noise of the second-order transimpedance response",
@@ -228,9 +242,9 @@ def nep() -> Derivation:
         Step("Responsivity: $\\eta$ electrons per photon of energy $hc/\\lambda$",
              sp.Eq(r, responsivity)),
         Step("Signal current $RP$; signal-to-noise ratio of one", snr),
-        Step("Noise-equivalent power", sp.Eq(sp.Symbol("NEP"), p_sol)),
+        Step("Noise-equivalent power", sp.Eq(NEP, p_sol)),
         Step("Per root hertz, from the input-referred PSD",
-             sp.Eq(sp.Symbol("NEP_f"), sp.sqrt(s_i) / r)),
+             sp.Eq(NEP_f, sp.sqrt(s_i) / r)),
     ]
     return Derivation(
         title="Noise-equivalent power",

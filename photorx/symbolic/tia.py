@@ -42,6 +42,9 @@ R_s = sp.Symbol("R_s", nonnegative=True)
 A = sp.Symbol("A")
 v_j, v_n, v_o, i_ph, e_n = sp.symbols("v_j v_n v_o i_ph e_n")
 omega, omega_0, Q, zeta, x = sp.symbols("omega omega_0 Q zeta x", positive=True)
+Z_t, T_loop, beta, G_n, M_p, Z_0, f_0, f_3dB, H, omega_c = sp.symbols(
+    "Z_t T_loop beta G_n M_p Z_0 f_0 f_3dB H omega_c")
+r_cf, tan_phi_m = sp.symbols("r tan_phi_m")
 
 #: meaning and SI unit of every symbol used by the TIA derivations
 TIA_SYMBOLS = {
@@ -67,6 +70,18 @@ TIA_SYMBOLS = {
     Q: ("quality factor of the closed-loop poles", "1"),
     zeta: ("damping ratio 1/(2Q)", "1"),
     x: ("normalised frequency squared (omega/omega_0)^2", "1"),
+    Z_t: ("closed-loop transimpedance", "ohm"),
+    T_loop: ("loop gain A beta", "1"),
+    beta: ("feedback factor", "1"),
+    G_n: ("noise gain 1/beta", "1"),
+    M_p: ("peak of |Z_t|/Z_0", "1"),
+    Z_0: ("DC transimpedance", "ohm"),
+    f_0: ("natural frequency", "Hz"),
+    f_3dB: ("-3 dB bandwidth", "Hz"),
+    H: ("closed-loop response normalised to 1 at DC", "1"),
+    omega_c: ("loop crossover angular frequency", "rad/s"),
+    r_cf: ("ratio of the approximate to the exact C_f", "1"),
+    tan_phi_m: ("tangent of the phase margin", "1"),
 }
 
 _REFS = ("J. G. Graeme, Photodiode Amplifiers: Op Amp Solutions, McGraw-Hill, 1996, ch. 2-3.",
@@ -120,15 +135,15 @@ def tia_nodal_analysis() -> Derivation:
         Step("Kirchhoff's current law at the junction node (photocurrent drawn out of it)", kcl_j),
         Step("Kirchhoff's current law at the summing node", kcl_n),
         Step("Amplifier: output = -A(s) times the inverting-input voltage", amp),
-        Step("Solve the three linear equations for $v_o / i_{ph}$", sp.Eq(sp.Symbol("Z_t"), zt)),
+        Step("Solve the three linear equations for $v_o / i_{ph}$", sp.Eq(Z_t, zt)),
         Step("Feedback factor: $v_n / v_o$ with the photocurrent off (diode branch as a divider)",
-             sp.Eq(sp.Symbol("beta"), beta)),
-        Step("Loop gain", sp.Eq(sp.Symbol("T"), loop)),
+             sp.Eq(beta, beta)),
+        Step("Loop gain", sp.Eq(T_loop, loop)),
         Step("Gain from a source at the non-inverting input, finite $A$", sp.Eq(v_o / e_n, ng_finite)),
         Step("Noise gain: its limit for $A \\to \\infty$, equal to $1/\\beta$",
-             sp.Eq(sp.Symbol("G_n"), ng)),
+             sp.Eq(G_n, ng)),
         Step("The transimpedance in the textbook form $Z_f \\, Z_d/(Z_d+R_s) \\, T/(1+T)$",
-             sp.Eq(sp.Symbol("Z_t"), textbook)),
+             sp.Eq(Z_t, textbook)),
     ]
     return Derivation(
         title="Transimpedance amplifier by nodal analysis",
@@ -151,8 +166,8 @@ def _with_amplifier(gain, title, extra_refs=()):
         title=title,
         steps=list(nodal.steps[:4]) + [
             Step("Open-loop gain of the amplifier", sp.Eq(A, gain)),
-            Step("Substitute into the nodal solution", sp.Eq(sp.Symbol("Z_t"), zt)),
-            Step("Loop gain", sp.Eq(sp.Symbol("T"), loop)),
+            Step("Substitute into the nodal solution", sp.Eq(Z_t, zt)),
+            Step("Loop gain", sp.Eq(T_loop, loop)),
         ],
         results={"transimpedance": zt, "loop_gain": loop, "noise_gain": nodal["noise_gain"],
                  "open_loop_gain": gain},
@@ -193,7 +208,7 @@ def tia_second_order() -> Derivation:
         Results ``transimpedance`` Z_0 omega_0^2/(s^2 + s omega_0/Q + omega_0^2) [ohm],
         ``dc_transimpedance`` Z_0 [ohm], ``natural_frequency`` f_0 [Hz], ``omega_0`` [rad/s],
         ``q`` Q, ``damping`` zeta, ``bandwidth`` f_-3dB [Hz] (exact), ``peaking`` |Z_t|max/Z_0
-        (for Q > 1/sqrt(2)), ``natural_frequency_gbw_limit`` and ``q_gbw_limit`` (A_0 -> inf),
+        (Q/sqrt(1 - 1/(4 Q^2)) for Q > 1/sqrt(2), else 1), ``peaking_of_q`` the same in Q, ``natural_frequency_gbw_limit`` and ``q_gbw_limit`` (A_0 -> inf),
         ``bandwidth_ratio`` f_-3dB/f_0 as a function of Q.
 
     Notes
@@ -215,32 +230,41 @@ def tia_second_order() -> Derivation:
     canonical = z0 * omega_0 ** 2 / (s ** 2 + s * omega_0 / Q + omega_0 ** 2)
     # -3 dB: |H(j omega)|^2 = 1/((1 - x)^2 + x/Q^2) = 1/2 with x = (omega/omega_0)^2
     mag2_inv = (1 - x) ** 2 + x / Q ** 2
-    x3 = [r for r in sp.solve(sp.Eq(mag2_inv, 2), x) if not r.could_extract_minus_sign()]
-    x3 = sp.simplify(x3[0]) if len(x3) == 1 else sp.simplify(max(x3, key=lambda r: r.subs(Q, 1)))
-    ratio = sp.sqrt(x3)
+    half_power = sp.Eq(mag2_inv, 2)
+    x3 = [r for r in sp.solve(half_power, x) if complex(sp.N(r.subs(Q, sp.Rational(1, 3)))).real > 0]
+    x3 = sp.simplify(x3[0])
+    # numerically stable form of the same root: x^2 - b x - 1 = 0, b = 2 - 1/Q^2 < 2, so the
+    # root (b + sqrt(b^2 + 4))/2 = 2/(sqrt(b^2 + 4) - b) with no cancellation for small Q
+    b_q = 2 - 1 / Q ** 2
+    x3_stable = 2 / (sp.sqrt(b_q ** 2 + 4) - b_q)
+    if sp.simplify(sp.radsimp(x3 - x3_stable)) != 0:  # pragma: no cover - derivation guard
+        raise RuntimeError("half-power root: stable form differs from the solved root")
+    ratio = sp.sqrt(x3_stable)
     bandwidth = f0 * ratio.subs(Q, q_expr)
     # peaking: the minimum of (1-x)^2 + x/Q^2 over x
     x_pk = sp.solve(sp.diff(mag2_inv, x), x)[0]
-    peaking = sp.simplify(1 / sp.sqrt(mag2_inv.subs(x, x_pk)))
+    peaking_q = sp.simplify(1 / sp.sqrt(mag2_inv.subs(x, x_pk)))
+    # below Q = 1/sqrt(2) the stationary point x_pk is negative: the maximum is the DC value 1
+    peaking = sp.Piecewise((peaking_q, Q > 1 / sp.sqrt(2)), (1, True))
     f0_lim = sp.limit(f0, A_0, sp.oo)
     q_lim = sp.simplify(sp.limit(q_expr, A_0, sp.oo))
     steps = [
         Step("Dominant-pole transimpedance from nodal analysis (see tia_single_pole)",
-             sp.Eq(sp.Symbol("Z_t"), zt_full)),
+             sp.Eq(Z_t, zt_full)),
         Step("Ideal diode: $R_s = 0$, $R_{sh} \\to \\infty$; input capacitance $C_i = C_d + C_{in}$",
-             sp.Eq(sp.Symbol("Z_t"), zt_ci)),
+             sp.Eq(Z_t, zt_ci)),
         Step("Compare the denominator $a_2 s^2 + a_1 s + a_0$ with the canonical form",
-             sp.Eq(sp.Symbol("Z_t"), canonical)),
+             sp.Eq(Z_t, canonical)),
         Step("Natural frequency $\\omega_0 = \\sqrt{a_0/a_2}$", sp.Eq(omega_0, w0)),
         Step("Quality factor $Q = \\sqrt{a_0 a_2}/a_1$", sp.Eq(Q, q_expr)),
-        Step("DC transimpedance $Z_0 = N/a_0$", sp.Eq(sp.Symbol("Z_0"), z0)),
+        Step("DC transimpedance $Z_0 = N/a_0$", sp.Eq(Z_0, z0)),
         Step("Magnitude response in $x = (\\omega/\\omega_0)^2$",
-             sp.Eq(sp.Abs(sp.Symbol("Z_t") / sp.Symbol("Z_0")) ** 2, 1 / mag2_inv)),
-        Step("Half-power point: solve $(1-x)^2 + x/Q^2 = 2$ for the positive root",
-             sp.Eq(sp.Symbol("f_3dB") / sp.Symbol("f_0"), ratio)),
+             sp.Eq(sp.Abs(Z_t / Z_0) ** 2, 1 / mag2_inv)),
+        Step("Half-power point: solve $(1-x)^2 + x/Q^2 = 2$ for the positive root", sp.Eq(x, x3)),
+        Step("Rationalised (no cancellation for small Q)", sp.Eq(f_3dB / f_0, ratio)),
         Step("Peaking: minimum of $(1-x)^2 + x/Q^2$ at", sp.Eq(x, x_pk)),
-        Step("Peak of $|Z_t|/Z_0$ (for $Q > 1/\\sqrt{2}$)", sp.Eq(sp.Symbol("M_p"), peaking)),
-        Step("Ideal-gain limit $A_0 \\to \\infty$ of $f_0$", sp.Eq(sp.Symbol("f_0"), f0_lim)),
+        Step("Peak of $|Z_t|/Z_0$ (for $Q > 1/\\sqrt{2}$; else the DC value 1)", sp.Eq(M_p, peaking)),
+        Step("Ideal-gain limit $A_0 \\to \\infty$ of $f_0$", sp.Eq(f_0, f0_lim)),
         Step("Ideal-gain limit of $Q$", sp.Eq(Q, q_lim)),
     ]
     return Derivation(
@@ -300,7 +324,7 @@ def tia_feedback_capacitor() -> Derivation:
              sp.Eq(C_f, cf_lim)),
         Step("Usual approximation: drop the 1 (valid for $2\\pi\\, GBW R_f C_i \\gg 1$)",
              sp.Eq(C_f, cf_approx)),
-        Step("Ratio approximation / exact", sp.Eq(sp.Symbol("r"), ratio)),
+        Step("Ratio approximation / exact", sp.Eq(r_cf, ratio)),
         Step("Feedback zero at the intercept of $1/\\beta$ and $A$ (about 45 degrees phase margin)",
              sp.Eq(C_f, cf_45)),
     ]
@@ -312,8 +336,9 @@ def tia_feedback_capacitor() -> Derivation:
                  "cf_for_q": cf_q},
         symbols=TIA_SYMBOLS,
         assumptions=("Dominant-pole amplifier, ideal diode (R_s = 0, no shunt resistance).",
-                     "A real solution needs 2 pi GBW R_f C_i > 1/2 (otherwise no C_f >= 0 "
-                     "reaches Q = 1/sqrt(2): the loop is already overdamped).",),
+                     "A positive C_f exists only if the loop is underdamped without it, "
+                     "Q(C_f = 0) > 1/sqrt(2); for A_0 -> infinity that is 2 pi GBW R_f C_i > 1/2. "
+                     "Otherwise cf_butterworth is negative or NaN: no C_f is needed.",),
         references=_REFS,
     )
 
@@ -337,7 +362,8 @@ def tia_phase_margin() -> Derivation:
         omega_a = 2 pi GBW/A_0 (ideal diode), exact; ``phase_margin_of_zeta`` and
         ``phase_margin_of_q`` [deg] for the two-pole loop omega_0^2/(s (s + 2 zeta omega_0)),
         the classical relation PM = atan(2 zeta / sqrt(sqrt(1 + 4 zeta^4) - 2 zeta^2)),
-        exact for the TIA when C_f = 0 and A_0 -> infinity; ``q_of_phase_margin`` its inverse.
+        exact for the TIA when C_f = 0 and A_0 -> infinity; ``q_of_phase_margin`` its inverse
+        Q = sqrt(cos phi_m)/sin phi_m (argument ``phi_m`` in degrees).
     """
     w_a = 2 * sp.pi * GBW / A_0
     w_t = 2 * sp.pi * GBW
@@ -346,9 +372,18 @@ def tia_phase_margin() -> Derivation:
     # |T(j omega)|^2 = 1: a quadratic in omega^2
     u = sp.Symbol("u", positive=True)  # u = omega^2
     mag_eq = sp.Eq(w_t ** 2 * (1 + u * tz ** 2), (u + w_a ** 2) * (1 + u * tp ** 2))
+    poly = sp.Poly(sp.expand(mag_eq.rhs - mag_eq.lhs), u)
+    qa, qb, qc = (poly.coeff_monomial(u ** k) for k in (2, 1, 0))   # qa u^2 + qb u + qc = 0
     u_roots = sp.solve(mag_eq, u)
     u_c = [r for r in u_roots if _positive_root(r.subs(C_f, 1e-13))][0]
-    w_c = sp.sqrt(u_c)
+    # the same positive root in the two cancellation-free forms (qa > 0 > qc): choose by sign of qb
+    disc = sp.sqrt(qb ** 2 - 4 * qa * qc)
+    u_stable = sp.Piecewise((-2 * qc / (qb + disc), qb >= 0), ((disc - qb) / (2 * qa), True))
+    for probe in ({C_f: 1e-13}, {C_f: 1e-11}):
+        vals = {GBW: 1e8, R_f: 1e4, C_i: 5e-12, A_0: 1e5, **probe}
+        if abs(complex(sp.N(u_c.subs(vals))) / complex(sp.N(u_stable.subs(vals))) - 1) > 1e-12:
+            raise RuntimeError("crossover: stable form differs from the solved root")  # pragma: no cover
+    w_c = sp.sqrt(u_stable)
     pm = 180 - sp.atan(w_c / w_a) * 180 / sp.pi + (sp.atan(w_c * tz) - sp.atan(w_c * tp)) * 180 / sp.pi
     # classical two-pole loop
     loop2 = omega_0 ** 2 / (s * (s + 2 * zeta * omega_0))
@@ -367,24 +402,28 @@ def tia_phase_margin() -> Derivation:
     w_t_sol = sp.solve(inv_eq, w)[0]
     # 0 < PM < 90 deg: tan and cos are positive, so the absolute values sympy keeps drop out
     q_pm = sp.simplify(1 / (2 * sp.sqrt(w_t_sol.subs(t, sp.tan(pm_sym))))).replace(sp.Abs, lambda a: a)
-    q_pm = sp.simplify(sp.trigsimp(q_pm))
+    q_pm_rad = sp.simplify(sp.trigsimp(q_pm))
+    q_pm = q_pm_rad.subs(pm_sym, pm_sym * sp.pi / 180)  # phase margin in degrees throughout
     steps = [
         Step("Loop gain of the TIA with a dominant-pole amplifier and an ideal diode",
-             sp.Eq(sp.Symbol("T"), loop)),
+             sp.Eq(T_loop, loop)),
         Step("Crossover: $|T(j\\omega)|^2 = 1$ is a quadratic in $u = \\omega^2$", mag_eq),
-        Step("Its positive root", sp.Eq(sp.Symbol("omega_c"), w_c)),
-        Step("Phase margin: $180° + \\arg T(j\\omega_c)$ in degrees", sp.Eq(sp.Symbol("phi_m"), pm)),
+        Step("Its positive root", sp.Eq(omega_c, sp.sqrt(u_c))),
+        Step("Written without cancellation ($a u^2 + b u + c = 0$, $a > 0 > c$)",
+             sp.Eq(omega_c, w_c)),
+        Step("Phase margin: $180° + \\arg T(j\\omega_c)$ in degrees", sp.Eq(pm_sym, pm)),
         Step("Classical two-pole loop (the TIA with $C_f = 0$, $A_0 \\to \\infty$, "
              "$\\omega_0^2 = \\omega_t/(R_f C_i)$, $2\\zeta\\omega_0 = 1/(R_f C_i)$)",
-             sp.Eq(sp.Symbol("T"), loop2)),
-        Step("Its closed loop is the canonical second-order response", sp.Eq(sp.Symbol("H"), closed)),
+             sp.Eq(T_loop, loop2)),
+        Step("Its closed loop is the canonical second-order response", sp.Eq(H, closed)),
         Step("Crossover: $\\omega_0^4 = \\omega^2(\\omega^2 + 4\\zeta^2\\omega_0^2)$",
-             sp.Eq(sp.Symbol("omega_c"), wc2)),
-        Step("Phase margin $= 90° - \\arctan(\\omega_c / 2\\zeta\\omega_0)$", sp.Eq(sp.Symbol("phi_m"), pm2)),
-        Step("In terms of $Q = 1/(2\\zeta)$", sp.Eq(sp.Symbol("phi_m"), pm2_q)),
+             sp.Eq(omega_c, wc2)),
+        Step("Phase margin $= 90° - \\arctan(\\omega_c / 2\\zeta\\omega_0)$", sp.Eq(pm_sym, pm2)),
+        Step("In terms of $Q = 1/(2\\zeta)$", sp.Eq(pm_sym, pm2_q)),
         Step("Inverse: square $\\tan\\phi_m$ and solve for $\\zeta^2$", inv_eq),
-        Step("Solution", sp.Eq(zeta ** 2, w_t_sol.subs(t, sp.Symbol("tan_phi_m")))),
-        Step("Q for a phase margin $0 < \\phi_m < 90°$ (radians)", sp.Eq(Q, q_pm)),
+        Step("Solution", sp.Eq(zeta ** 2, w_t_sol.subs(t, tan_phi_m))),
+        Step("Q for a phase margin $0 < \\phi_m < 90°$", sp.Eq(Q, q_pm_rad)),
+        Step("With $\\phi_m$ in degrees", sp.Eq(Q, q_pm)),
     ]
     return Derivation(
         title="Phase margin of the transimpedance loop and its relation to Q",
@@ -392,7 +431,7 @@ def tia_phase_margin() -> Derivation:
         results={"phase_margin": pm, "crossover": w_c / (2 * sp.pi),
                  "phase_margin_of_zeta": pm2, "phase_margin_of_q": pm2_q,
                  "q_of_phase_margin": q_pm, "loop_gain": loop},
-        symbols={**TIA_SYMBOLS, pm_sym: ("phase margin (in q_of_phase_margin: in radians)", "rad"),
+        symbols={**TIA_SYMBOLS, pm_sym: ("phase margin", "deg"),
                  u: ("omega squared", "rad^2/s^2"), t: ("tangent of the phase margin", "1"),
                  w: ("damping ratio squared", "1")},
         assumptions=("Dominant-pole amplifier and ideal diode for the exact TIA phase margin.",

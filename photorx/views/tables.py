@@ -18,9 +18,10 @@ Each table is a :class:`pandas.DataFrame`. The usual long form has the columns
     Text shown instead of the engineering-formatted value.
 
 Any other columns (``"note"``, ``"limit"``, ``"status"``...) are shown as they are. A wide
-table (for instance one row per noise source and one column per figure) may give the units
-of its numeric columns in ``df.attrs["units"] = {"column": "unit"}``; those columns are then
-shown with engineering prefixes too. CSV and JSON exports keep the SI floats and the unit
+table (for instance one row per noise source and one column per figure) gives the units of
+its numeric columns in the header (``"output rms [V]"``) or in
+``df.attrs["units"] = {"column": "unit"}``; those columns are then shown with engineering
+prefixes too (the header without its unit). CSV and JSON exports keep the SI floats and the unit
 column so that they can be read back by programs.
 """
 
@@ -328,9 +329,15 @@ def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
         if col == "value":
             shown["value"] = _display_cells(table)
         else:
-            unit = units.get(col, "")
-            shown[str(col)] = [display_value(v, unit) for v in table[col].tolist()]
+            name, unit = str(col), units.get(col)
+            match = _HEADER_UNIT.fullmatch(name)
+            if unit is None and match:  # "output rms [V]": the unit is in the header
+                name, unit = match.group(1), match.group(2)
+            shown[name] = [display_value(v, unit or "") for v in table[col].tolist()]
     return shown
+
+
+_HEADER_UNIT = re.compile(r"(.*\S)\s*\[([^\[\]]+)\]")
 
 
 def _html_table(shown: pd.DataFrame) -> str:

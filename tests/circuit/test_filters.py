@@ -8,7 +8,12 @@ import pytest
 import scipy.signal as ss
 from scipy import integrate
 
-from photorx.circuit.filters import PostFilter, filter_enbw_factor, filter_response, normalized_poles
+from photorx.circuit.filters import (
+    PostFilter,
+    filter_enbw_factor,
+    filter_response,
+    normalized_poles,
+)
 from photorx.errors import DesignError
 
 REFERENCE = Path(__file__).resolve().parents[2] / "reference"
@@ -31,7 +36,9 @@ def test_bessel_matches_scipy_bessel_mag_normalised(order):
     b, a = ss.bessel(order, 2 * np.pi * fc, analog=True, norm="mag")
     _, h_ref = ss.freqs(b, a, 2 * np.pi * F * fc)
     np.testing.assert_allclose(filter_response(F * fc, "bessel", order, fc), h_ref, rtol=1e-9)
-    np.testing.assert_allclose(abs(PostFilter("bessel", order, fc).response(fc)), 2 ** -0.5, rtol=1e-12)
+    np.testing.assert_allclose(
+        abs(PostFilter("bessel", order, fc).response(fc)), 2**-0.5, rtol=1e-12
+    )
 
 
 def test_butterworth_enbw_published():
@@ -41,7 +48,9 @@ def test_butterworth_enbw_published():
     assert list(table["order"]) == [1, 2, 3, 4]
     for order, factor in zip(table["order"], table["enbw_over_f3db"]):
         assert filter_enbw_factor("butterworth", int(order)) == pytest.approx(factor, abs=6e-4)
-        assert PostFilter("butterworth", int(order), 2e6).enbw() == pytest.approx(factor * 2e6, abs=6e-4 * 2e6)
+        assert PostFilter("butterworth", int(order), 2e6).enbw() == pytest.approx(
+            factor * 2e6, abs=6e-4 * 2e6
+        )
 
 
 @pytest.mark.parametrize("order", range(1, 7))
@@ -59,8 +68,10 @@ def test_bessel_enbw_against_scipy_response(order):
     def power(x):
         return abs(ss.freqs(b, a, [x])[1][0]) ** 2
 
-    ref = integrate.quad(power, 0, 1, epsrel=1e-10)[0] + integrate.quad(power, 1, np.inf, epsrel=1e-10,
-                                                                      limit=200)[0]
+    ref = (
+        integrate.quad(power, 0, 1, epsrel=1e-10)[0]
+        + integrate.quad(power, 1, np.inf, epsrel=1e-10, limit=200)[0]
+    )
     assert filter_enbw_factor("bessel", order) == pytest.approx(ref, rel=1e-7)
 
 
@@ -90,14 +101,17 @@ def test_scalar_and_array_broadcast_over_cutoff():
     assert np.ndim(filter_response(1e6, "butterworth", 2, 1e6)) == 0
 
 
-@pytest.mark.parametrize("kwargs, name", [
-    (dict(kind="chebyshev", order=2, cutoff=1e6), "kind"),
-    (dict(kind="bessel", order=0, cutoff=1e6), "order"),
-    (dict(kind="bessel", order=7, cutoff=1e6), "order"),
-    (dict(kind="bessel", order=2.5, cutoff=1e6), "order"),
-    (dict(kind="butterworth", order=2, cutoff=-1.0), "cutoff"),
-    (dict(kind="butterworth", order=2, cutoff=np.inf), "cutoff"),
-])
+@pytest.mark.parametrize(
+    "kwargs, name",
+    [
+        ({"kind": "chebyshev", "order": 2, "cutoff": 1e6}, "kind"),
+        ({"kind": "bessel", "order": 0, "cutoff": 1e6}, "order"),
+        ({"kind": "bessel", "order": 7, "cutoff": 1e6}, "order"),
+        ({"kind": "bessel", "order": 2.5, "cutoff": 1e6}, "order"),
+        ({"kind": "butterworth", "order": 2, "cutoff": -1.0}, "cutoff"),
+        ({"kind": "butterworth", "order": 2, "cutoff": np.inf}, "cutoff"),
+    ],
+)
 def test_bad_inputs_name_the_parameter(kwargs, name):
     with pytest.raises(DesignError, match=name) as err:
         PostFilter(**kwargs)

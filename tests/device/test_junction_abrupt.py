@@ -34,7 +34,7 @@ def _example_junction(ex):
                               area=ex.get("area_cm2", 1.0) * 1e-4, temperature=300.0)
 
 
-# -- textbook worked examples (sources named in the reference file; from memory) ---------------------
+# -- textbook worked examples (sources named in the reference file; from memory) -------------------
 @pytest.mark.parametrize("ex", EXAMPLES, ids=[e["source"][:30] for e in EXAMPLES])
 def test_textbook_worked_examples(ex):
     j = _example_junction(ex)
@@ -169,7 +169,7 @@ def test_breakdown_follows_universal_law():
         assert g.breakdown_voltage() == pytest.approx(vb, rel=0.03)
 
 
-# -- bad input --------------------------------------------------------------------------------------
+# -- bad input -------------------------------------------------------------------------------------
 @pytest.mark.parametrize("kw, name", [
     (dict(na=-1e21), "na"), (dict(nd=0.0), "nd"), (dict(nd=1e3), "nd"), (dict(na=1e30), "na"),
     (dict(area=-1e-6), "area"), (dict(temperature=20.0), "temperature"),
@@ -204,3 +204,31 @@ def test_bias_limits_raise_not_nan():
 def test_string_material_accepted():
     j = prx.AbruptJunction("GaAs", na=1e24, nd=1e22, area=1e-6)
     assert j.material is prx.material("GaAs")
+
+
+@pytest.mark.parametrize("name", ["Si", "Ge", "GaAs", "InP", "InGaAs"])
+@pytest.mark.parametrize("temperature", [50.0, 600.0])
+def test_temperature_range_edges_finite_and_vbi_below_gap(name, temperature):
+    # over the whole offered range Vbi stays positive and below Eg/q for doping below Nc and
+    # Nv (non-degenerate junction; Sze & Ng ch. 2, common practice), and nothing is NaN
+    mat = prx.material(name)
+    na, nd = 1e17 * per_cm3, 1e15 * per_cm3
+    assert na < mat.nv(temperature) and nd < mat.nc(temperature)
+    try:
+        j = prx.AbruptJunction(mat, na=na, nd=nd, area=1e-6, temperature=temperature)
+    except DesignError as err:  # hot material: ni exceeds the doping, refused by name
+        bad = {"na": na, "nd": nd}[err.parameter]
+        assert mat.intrinsic_density(temperature) >= bad
+        return
+    vbi = j.built_in_potential()
+    assert 0 < vbi < mat.band_gap(temperature)
+    assert np.all(np.isfinite(j.capacitance(np.array([-0.5 * vbi, 0.0, 5.0]))))
+
+
+def test_temperature_array_broadcasts():
+    t = np.array([250.0, 300.0, 350.0])[:, None]
+    j = prx.AbruptJunction(SI, na=1e24, nd=1e21, area=1e-6, temperature=t)
+    c = j.capacitance(np.array([0.0, 5.0]))
+    assert c.shape == (3, 2)
+    one = prx.AbruptJunction(SI, na=1e24, nd=1e21, area=1e-6, temperature=350.0)
+    np.testing.assert_allclose(c[2], one.capacitance(np.array([0.0, 5.0])), rtol=1e-14)

@@ -64,7 +64,8 @@ def test_below_punch_through_progressive_depletion():
     v = np.array([0.0, 1.0, 5.0, 0.9 * j.punch_through_voltage()])
     x_p, x_n = j.depletion_edges(v)
     na, nid = 1e19 * per_cm3, 1e14 * per_cm3
-    ref = np.sqrt(2 * SI.permittivity * (j.built_in_potential() + v) / (sc.e * nid * (1 + nid / na)))
+    ref = np.sqrt(2 * SI.permittivity * (j.built_in_potential() + v)
+                  / (sc.e * nid * (1 + nid / na)))
     np.testing.assert_allclose(x_n, ref, rtol=1e-12)
     assert np.all(x_n < 50 * um)
     np.testing.assert_allclose(na * x_p, nid * x_n, rtol=1e-12)  # charge neutrality

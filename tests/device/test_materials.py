@@ -51,7 +51,7 @@ def test_every_value_carries_a_citation():
                 assert len(mat.sources[f.name]) > 20, (name, f.name)
 
 
-# -- Sze and Ng 3rd ed. Appendix G at 300 K ----------------------------------------------------------
+# -- Sze and Ng 3rd ed. Appendix G at 300 K --------------------------------------------------------
 @pytest.mark.parametrize("name", SZE)
 def test_table_values_at_300k(name):
     ref = TABLE[name]
@@ -83,7 +83,7 @@ def test_tabulated_ni_consistent_with_nc_nv_eg(name):
 
 
 def test_si_intrinsic_density_versus_temperature_misiakos():
-    # Misiakos & Tsamakis (1993) fit, rtol from the reference file (0.15)
+    # Misiakos & Tsamakis (1993) fit, rtol from the reference file (0.10)
     t = np.linspace(MISIAKOS["t_min"], MISIAKOS["t_max"], 16)
     ref = MISIAKOS["a_per_cm3"] * (t / 300.0) ** MISIAKOS["b"] * np.exp(-MISIAKOS["c_kelvin"] / t)
     np.testing.assert_allclose(material("Si").intrinsic_density(t), ref * 1e6,
@@ -116,7 +116,7 @@ def test_critical_field_near_tabulated_breakdown_field():
     assert ec[1] / ec[0] == pytest.approx(100 ** 0.125, rel=1e-12)
 
 
-# -- temperature behaviour (facts of the trade) -------------------------------------------------------
+# -- temperature behaviour (facts of the trade) ----------------------------------------------------
 @settings(max_examples=40, deadline=None)
 @given(name=st.sampled_from(ALL), t1=st.floats(50.0, 599.0), dt=st.floats(0.5, 100.0))
 def test_band_gap_falls_and_ni_rises_with_temperature(name, t1, dt):

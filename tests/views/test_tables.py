@@ -191,3 +191,15 @@ def test_atomic_write_mode_is_not_private(tmp_path):
     mask = os.umask(0)
     os.umask(mask)
     assert path.stat().st_mode & 0o777 == 0o666 & ~mask
+
+
+def test_units_in_column_headers():
+    noise = pd.DataFrame({"source": ["Rf thermal"], "output rms [V]": [1.5e-4],
+                          "input density [A/rtHz]": [2.5e-12], "share [%]": [26.5]})
+    b = Budget({"noise by source": noise})
+    shown = b.display_table("noise by source")
+    assert list(shown.columns) == ["source", "output rms", "input density", "share"]
+    assert shown.iloc[0].tolist() == ["Rf thermal", "150 uV", "2.5 pA/rtHz", "26.5 %"]
+    # the CSV keeps the header with its unit and the SI float
+    df = pd.read_csv(__import__("io").StringIO(b.to_csv()))
+    assert df["output rms [V]"].tolist() == [1.5e-4]

@@ -1,0 +1,170 @@
+"""One self-contained HTML report of a receiver design: numbers, plots, budget, cautions.
+
+The report asks the package for every number (the receiver's evaluation and budget, the
+amplifier loop's responses, the noise spectrum, a bias sweep) and hands them to
+:mod:`photorx.views.plots`; it computes no physics itself. Plots are embedded as base64
+PNG (or SVG) so the single file can be mailed or archived.
+"""
+
+from __future__ import annotations
+
+import html
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import DesignError
+from ._files import atomic_write_text
+from .cautions import cautions_html
+from .tables import html_page
+
+__all__ = ["build_report", "write_report", "report_figures"]
+
+
+def _scalar(value) -> float:
+    return float(np.asarray(value, dtype=float))
+
+
+def _frequency_grid(rx, n: int = 400) -> np.ndarray:
+    """Log grid from 1 Hz-ish to well past the loop's unity-gain frequency (display only)."""
+    top = 100.0 * _scalar(rx.tia.amp.gbw)
+    return np.geomspace(max(top * 1e-9, 0.1), top, n)
+
+
+def _bias_grid(rx, n: int) -> np.ndarray:
+    """Bias axis of the trade-off plots: 0 V to the bias limit (or twice the operating bias)."""
+    v0 = _scalar(rx.reverse_bias)
+    limit = getattr(rx, "max_bias", None)
+    top = _scalar(limit) if limit is not None else max(2.0 * v0, 10.0)
+    return np.linspace(0.0, max(top, v0), n)
+
+
+def _network(rx):
+    """The photodiode's equivalent circuit at the operating point (from the receiver)."""
+    if hasattr(rx, "equivalent_circuit"):
+        return rx.equivalent_circuit()
+    return rx.photodiode.equivalent_circuit(
+        rx.reverse_bias, optical_power=rx.optical_power, wavelength=rx.wavelength,
+        background_power=rx.background_power)
+
+
+def _noise(rx, net):
+    if hasattr(rx, "noise"):
+        return rx.noise()
+    return rx.tia.noise(net, temperature=rx.temperature, post_filter=rx.post_filter)
+
+
+def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
+    """The report's figures as ``(title, data URI, caption)``; a failed part gives a caption only.
+
+    Parameters
+    ----------
+    rx : Receiver
+        The design.
+    bias_points : int
+        Points of the bias trade-off sweep.
+    fmt : {"png", "svg"}
+        Image format embedded in the page.
+    """
+    from . import plots
+    from ..analysis.sweep import sweep
+
+    out = []
+
+    def add(title, make, caption=""):
+        try:
+            fig = make()
+        except DesignError as exc:
+            out.append((title, None, f"not available: {exc}"))
+            return
+        out.append((title, plots.figure_to_base64(fig, fmt), caption))
+
+    f = _frequency_grid(rx)
+    net = _network(rx)
+    bias = _bias_grid(rx, bias_points)
+    v0 = _scalar(rx.reverse_bias)
+    frame = sweep(rx, reverse_bias=bias)
+
+    def col(name):
+        return frame[name].to_numpy(dtype=float) if name in frame.columns else None
+
+    cap = col("capacitance")
+    if cap is not None:
+        at = float(np.interp(v0, bias, cap))
+        add("Operating point: capacitance against bias",
+            lambda: plots.plot_curve(bias, cap, xlabel="reverse bias", ylabel="capacitance",
+                                     xunit="V", yunit="F", mark=(v0, at),
+                                     title="Photodiode capacitance"),
+            "Total photodiode capacitance; the dot is the operating bias.")
+    add("Loop gain and closed-loop response",
+        lambda: plots.plot_bode(f, loop_gain=rx.tia.loop_gain(f, net),
+                                closed_loop=rx.tia.transimpedance(f, net)),
+        "Loop gain T = A*beta (its 0 dB crossing sets the phase margin) and the closed-loop "
+        "transimpedance in dB re 1 ohm.")
+    step = getattr(rx.tia, "step_response", None)
+    if step is not None:
+        def make_step():
+            t, v = step(net)
+            return plots.plot_step(t, v, unit="", final=1.0)
+        add("Step response", make_step, "Output for a photocurrent step, normalised to its "
+            "final value; dotted lines at 10 % and 90 %.")
+    ns = _noise(rx, net)
+    fn = f[f >= 1.0]
+    add("Output noise density by source",
+        lambda: plots.plot_noise_stack(fn, ns.by_source(fn), unit="V"),
+        "Noise power density of each source at the output (stacked: uncorrelated powers add).")
+    series = [(label, col(name), unit, log) for label, name, unit, log in (
+        ("bandwidth", "bandwidth", "Hz", False),
+        ("phase margin", "phase_margin", "deg", False),
+        ("input noise", "input_noise_rms", "A", True),
+        ("NEP", "nep", "W/rtHz", True),
+        ("dark current", "dark_current", "A", True)) if col(name) is not None]
+    if series:
+        add("Bias trade-off", lambda: plots.plot_bias_tradeoff(bias, series, mark=v0),
+            "Figures of the whole receiver against reverse bias; the dashed line is the "
+            "operating bias.")
+    return out
+
+
+def build_report(rx, title: str = "photorx receiver report", bias_points: int = 41,
+                 fmt: str = "png") -> str:
+    """The report as one HTML document (plots embedded, no external files).
+
+    Parameters
+    ----------
+    rx : Receiver
+        The design.
+    title : str
+        Page title.
+    bias_points : int
+        Points of the bias trade-off sweep.
+    fmt : {"png", "svg"}
+        Image format of the embedded plots.
+    """
+    from ..designfile import dumps_design
+
+    budget = rx.budget()
+    parts = [f"<h1>{html.escape(title)}</h1>",
+             "<p>Computed by photorx from the design below. Every figure is a model estimate "
+             "to be verified on hardware; see the cautions at the end.</p>"]
+    try:
+        design_text = dumps_design(rx)
+    except DesignError as exc:
+        design_text = f"(design not expressible as a design file: {exc})"
+    parts += ["<h2>Design</h2>", f"<pre>{html.escape(design_text)}</pre>"]
+    parts += ["<h2>Budget</h2>", budget._html_tables(3)]
+    parts.append("<h2>Plots</h2>")
+    for fig_title, uri, caption in report_figures(rx, bias_points, fmt):
+        parts.append(f"<h3>{html.escape(fig_title)}</h3>")
+        if uri is not None:
+            parts.append(f'<figure><img alt="{html.escape(fig_title)}" src="{uri}">'
+                         f"<figcaption>{html.escape(caption)}</figcaption></figure>")
+        else:
+            parts.append(f"<p><em>{html.escape(caption)}</em></p>")
+    parts.append(cautions_html(2))
+    return html_page(title, "\n".join(parts) + "\n")
+
+
+def write_report(rx, path, title: str = "photorx receiver report", **options) -> Path:
+    """Write :func:`build_report` to ``path`` atomically; returns the path."""
+    return atomic_write_text(path, build_report(rx, title=title, **options))

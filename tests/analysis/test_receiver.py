@@ -1,0 +1,128 @@
+"""Receiver: the composed figures agree with the stage-level results, and the bias trade holds.
+
+The receiver implements no physics, so its checks are (a) agreement with each stage's own
+result object on the same design (whose outside-world checks live in the stage tests)
+and (b) the trade every receiver designer knows (common practice): with more reverse
+bias the junction capacitance and the amplifier noise fall, while transit time and dark
+current rise.
+"""
+
+import numpy as np
+import pytest
+from hypothesis import given, settings, strategies as st
+
+import photorx as prx
+from photorx.units import GHz, MHz, kohm, mm, nm, pF, per_cm3, uW, um
+
+
+@pytest.fixture(scope="module")
+def rx():
+    si = prx.material("Si")
+    j = prx.PinJunction(si, i_thickness=30 * um, i_doping=1e12 * per_cm3, area=(0.4 * mm) ** 2,
+                        p_doping=1e19 * per_cm3, n_doping=1e19 * per_cm3)
+    pd = prx.Photodiode(junction=j)
+    amp = prx.OpAmp(gbw=1 * GHz, dc_gain=1e4, voltage_noise=4e-9, current_noise=2e-15,
+                    input_capacitance=1.5 * pF, output_swing=2.0)
+    tia = prx.Tia(amp, rf=10 * kohm, cf=0.3 * pF)
+    return prx.Receiver(photodiode=pd, tia=tia, reverse_bias=5.0, wavelength=850 * nm,
+                        optical_power=10 * uW)
+
+
+def test_operating_point_matches_photodiode(rx):
+    r = rx.evaluate()
+    pd = rx.photodiode_at_temperature()
+    # rtol 1e-12: the receiver must forward the photodiode's own numbers unchanged
+    np.testing.assert_allclose(r.capacitance, pd.capacitance(5.0), rtol=1e-12)
+    np.testing.assert_allclose(r.responsivity, pd.responsivity(850e-9, 5.0), rtol=1e-12)
+    np.testing.assert_allclose(r.dark_current, pd.dark_current(5.0), rtol=1e-12)
+    np.testing.assert_allclose(r.photocurrent, pd.responsivity(850e-9, 5.0) * 10e-6, rtol=1e-12)
+    np.testing.assert_allclose(r.depletion_width, pd.junction.depletion_width(5.0), rtol=1e-12)
+
+
+def test_loop_figures_match_tia_analysis(rx):
+    r = rx.evaluate()
+    m = rx.tia.analyze(rx.equivalent_circuit())
+    for name in ("phase_margin", "crossover", "peaking_db", "rise_time", "dc_transimpedance"):
+        np.testing.assert_allclose(getattr(r, name), abs(getattr(m, name)), rtol=1e-9, err_msg=name)
+    assert bool(r.stable) is bool(m.stable)
+
+
+def test_noise_figures_match_noise_spectrum(rx):
+    r = rx.evaluate()
+    ns = rx.noise()
+    # both integrate the same PSD to rtol 1e-4 on their own grids
+    np.testing.assert_allclose(r.output_noise_rms, ns.output_rms(rx.noise_band_low, np.inf), rtol=1e-3)
+    np.testing.assert_allclose(r.input_noise_rms, ns.input_rms(rx.noise_band_low, np.inf), rtol=1e-3)
+    np.testing.assert_allclose(r.noise_bandwidth, ns.enbw(), rtol=1e-3)
+
+
+def test_chain_bandwidth_is_minus_3db_of_composed_response(rx):
+    r = rx.evaluate()
+    pd = rx.photodiode_at_temperature()
+    net = rx.equivalent_circuit()
+
+    def mag(f):
+        return abs(pd.intrinsic_response(f, 5.0, 850e-9) * rx.tia.transimpedance(f, net))
+
+    ref = mag(1.0)
+    # common practice: the -3 dB point is where |H| = |H(0)|/sqrt(2)
+    assert mag(r.bandwidth) == pytest.approx(ref / np.sqrt(2), rel=1e-6)
+    assert mag(0.9 * r.bandwidth) > ref / np.sqrt(2)
+    # the chain is never faster than its slowest part
+    assert r.bandwidth <= min(r.loop_bandwidth, r.transit_bandwidth) * (1 + 1e-9) or r.peaking_db > 0
+
+
+def test_snr_and_sensitivity_follow_the_sensitivity_formulas(rx):
+    r = rx.evaluate()
+    from photorx.analysis import sensitivity as s
+
+    expected = s.analog_snr(10e-6, r.responsivity, r.circuit_noise_rms, r.noise_bandwidth, 1.0,
+                            r.dark_current)
+    np.testing.assert_allclose(r.snr, expected, rtol=1e-12)
+    assert r.sensitivity_dbm == pytest.approx(10 * np.log10(r.sensitivity / 1e-3), rel=1e-12)
+    # NEP * sqrt(ENBW) is the minimum detectable power (definition, common practice)
+    np.testing.assert_allclose(r.nep * np.sqrt(r.noise_bandwidth), r.min_detectable_power, rtol=1e-12)
+
+
+def test_array_evaluation_matches_scalar_evaluations(rx):
+    import dataclasses
+
+    biases = np.array([1.0, 5.0, 15.0])
+    arr = dataclasses.replace(rx, reverse_bias=biases).evaluate()
+    for i, v in enumerate(biases):
+        one = dataclasses.replace(rx, reverse_bias=v).evaluate()
+        for name in ("capacitance", "bandwidth", "phase_margin", "input_noise_rms", "snr", "sensitivity"):
+            np.testing.assert_allclose(arr.values[name][i], one.values[name], rtol=1e-6, err_msg=name)
+
+
+@settings(max_examples=15, deadline=None)
+@given(v1=st.floats(0.0, 20.0), dv=st.floats(0.5, 20.0))
+def test_bias_trade(rx, v1, dv):
+    """Common practice: more bias -> less capacitance and noise, longer transit, more dark current."""
+    import dataclasses
+
+    r = dataclasses.replace(rx, reverse_bias=np.array([v1, v1 + dv])).evaluate()
+    assert r.capacitance[1] <= r.capacitance[0] * (1 + 1e-12)
+    assert r.dark_current[1] >= r.dark_current[0] * (1 - 1e-12)
+    assert r.transit_time[1] >= r.transit_time[0] * (1 - 1e-12)
+    assert r.input_noise_rms[1] <= r.input_noise_rms[0] * (1 + 1e-3)
+
+
+def test_budget_tables(rx):
+    b = rx.budget()
+    text = b.to_markdown()
+    assert "phase margin" in text and "noise" in text
+    assert "IEC 60825-1" in text  # the cautions travel with every export
+
+
+def test_bad_inputs_name_the_parameter(rx):
+    import dataclasses
+
+    with pytest.raises(prx.DesignError, match="optical_power"):
+        dataclasses.replace(rx, optical_power=-1e-6)
+    with pytest.raises(prx.DesignError, match="wavelength"):
+        dataclasses.replace(rx, wavelength=0.0)
+    with pytest.raises(prx.DesignError, match="target_ber"):
+        dataclasses.replace(rx, target_ber=0.7)
+    with pytest.raises(prx.DesignError, match="tia"):
+        dataclasses.replace(rx, tia="10k")
