@@ -20,6 +20,7 @@ of a saved file is stable under load/save.
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import math
 import sys
@@ -46,6 +47,9 @@ __all__ = [
 ]
 
 REQUIRED = "<required>"
+#: Default of keys whose absence leaves the constructor's own default in force; such keys
+#: are written only when the design's value differs from that default.
+OMIT = "<constructor default>"
 
 
 @dataclass(frozen=True)
@@ -63,7 +67,7 @@ class Key:
         quantity of another dimension is an error. ``""`` for a plain number.
     default : object
         Value used when the key is absent; :data:`REQUIRED` makes it mandatory; ``None``
-        makes it optional with no value.
+        makes it optional with no value; :data:`OMIT` leaves the constructor's default.
     argument : str
         Constructor argument (defaults to ``name``).
     write : str or None
@@ -72,8 +76,9 @@ class Key:
     check : str
         Range check: ``">0"``, ``">=0"``, ``"0..1"``, ``"(0..1]"``, ``"(0..0.5)"`` or ``""``.
     kind : str
-        ``"quantity"``, ``"text"``, ``"integer"``, ``"list"`` (of quantities) or ``"ratio"``
-        (a plain number or decibels, ``"10 dB"``).
+        ``"quantity"``, ``"text"``, ``"integer"``, ``"list"`` (of quantities), ``"ratio"``
+        (a plain number or decibels, ``"10 dB"``) or ``"table"`` (a quantity, or a list of
+        ``[wavelength, value]`` pairs).
     when : tuple of str
         The key applies only when the section's selector (``model`` or ``kind``) takes one
         of these values; empty = always.
@@ -149,6 +154,49 @@ SCHEMA: tuple[Key, ...] = (
     Key("photodiode.junction", "temperature", "K", None, write="K", check=">0", when=_PHYSICAL,
         doc="Junction temperature when it differs from the operating point's.",
         example="300 K"),
+    # -- photodiode (beyond its junction); absent keys keep the Photodiode defaults -----------
+    Key("photodiode", "responsivity", "A/W", OMIT, argument="given_responsivity", write="A/W",
+        kind="table", check=">=0",
+        doc="Given responsivity instead of the absorption model: a number, or a table of "
+            "[wavelength, responsivity] pairs (required with the parametric junction).",
+        example="0.9 A/W"),
+    Key("photodiode", "reflectance", "", OMIT, check="0..1",
+        doc="Front power reflectance (default: bare surface of the material).",
+        example="0.03"),
+    Key("photodiode", "top_thickness", "m", OMIT, write="um", check=">=0",
+        doc="Undepleted absorbing layer above the depletion layer (default 0.3 um; 0 for a "
+            "transparent window).", example="0.2 um"),
+    Key("photodiode", "absorber_thickness", "m", OMIT, write="um", check=">0",
+        doc="Absorbing material below the top layer (default inf: thick substrate).",
+        example="2 um"),
+    Key("photodiode", "top_diffusion_length", "m", OMIT, write="um", check=">0",
+        doc="Minority-carrier diffusion length in the top layer (default 1 um).",
+        example="1 um"),
+    Key("photodiode", "lifetime", "s", OMIT, check=">0",
+        doc="Minority-carrier lifetime in the undepleted bottom layer (default by material).",
+        example="1 us"),
+    Key("photodiode", "generation_lifetime", "s", OMIT, check=">0",
+        doc="Generation lifetime of the depletion layer (default by material).",
+        example="1 ms"),
+    Key("photodiode", "leakage_resistance", "ohm", OMIT, check=">0",
+        doc="Ohmic surface leakage resistance (default inf).", example="100 Gohm"),
+    Key("photodiode", "series_resistance", "ohm", OMIT, check=">=0",
+        doc="Series resistance (default 10 ohm).", example="10 ohm"),
+    Key("photodiode", "package_capacitance", "F", OMIT, check=">=0",
+        doc="Package and pad capacitance in parallel with the junction (default 0).",
+        example="0.1 pF"),
+    Key("photodiode", "illuminated_side", None, OMIT, kind="text", choices=("p", "n"),
+        doc="Doping type of the illuminated top layer (default p, p-on-n).", example="p"),
+    Key("photodiode", "intrinsic_bandwidth", "Hz", OMIT, check=">0",
+        doc="Given intrinsic (transit) bandwidth replacing the transit model.",
+        example="5 GHz"),
+    Key("photodiode", "dark_current", "A", OMIT, argument="reference_dark_current", check=">0",
+        doc="Measured dark current at dark_current_bias (replaces the dark-current model).",
+        example="1 nA"),
+    Key("photodiode", "dark_current_bias", "V", OMIT, argument="reference_bias",
+        doc="Reverse bias of the measured dark current.", example="5 V"),
+    Key("photodiode", "shunt_resistance", "ohm", OMIT, argument="zero_bias_resistance",
+        check=">0", doc="Measured zero-bias shunt resistance R0.", example="1 Gohm"),
     # -- amplifier -----------------------------------------------------------------------------
     Key("amplifier", "gbw", "Hz", REQUIRED, check=">0", doc="Gain-bandwidth product.",
         example="1 GHz"),
@@ -321,6 +369,17 @@ def _parse_value(key: Key, raw, source: str):
         if not isinstance(raw, list):
             raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
         return tuple(_parse_scalar(key, item, prefix) for item in raw)
+    if key.kind == "table" and isinstance(raw, list):
+        pairs = []
+        for item in raw:
+            if not (isinstance(item, list) and len(item) == 2):
+                raise DesignError(f"{prefix} = {raw!r}: expected a list of [wavelength, "
+                                  f"value] pairs, e.g. [[\"850 nm\", \"{key.example}\"]]",
+                                  parameter=key.where)
+            wl = _parse_scalar(Key(key.section, key.name, "m", check=">0", example="850 nm"),
+                               item[0], prefix)
+            pairs.append((wl, _parse_scalar(key, item[1], prefix)))
+        return tuple(p[0] for p in pairs), tuple(p[1] for p in pairs)
     if key.kind == "ratio" and isinstance(raw, str) and raw.strip().endswith("dB"):
         db = _parse_scalar(Key(key.section, key.name, ""), raw.strip()[:-2], prefix)
         return _checked(key, 10.0 ** (db / 10.0), prefix)
@@ -411,7 +470,7 @@ def read_design(source, name: str = "") -> dict[str, dict]:
             elif key.default is REQUIRED:
                 raise DesignError(f"{where}missing key {key.where}: expected {_expected(key)}",
                                   parameter=key.where)
-            elif key.default is not None:
+            elif key.default is not None and key.default is not OMIT:
                 parsed[key.arg] = key.default
         spec[section] = parsed
     return spec
@@ -538,7 +597,7 @@ def _decimal_text(d: Decimal) -> str:
     return f"{'-' if sign else ''}{mant}e{d.adjusted()}"
 
 
-_WRITE_SCALE = {"um^2": -12, "mm^2": -6, "cm^-3": 6, "cm^-4": 8, "nm": -9, "um": -6, "K": 0}
+_WRITE_SCALE = {"A/W": 0, "um^2": -12, "mm^2": -6, "cm^-3": 6, "cm^-4": 8, "nm": -9, "um": -6, "K": 0}
 
 
 def format_quantity(value: float, unit: str, write: str | None = None) -> str:
@@ -577,6 +636,10 @@ def _written(key: Key, value):
         return int(value)
     if key.kind == "list":
         return [format_quantity(_scalar(v, key.where), key.unit, key.write) for v in value]
+    if key.kind == "table" and isinstance(value, tuple):
+        wavelengths, values = value
+        return [[format_quantity(w, "m", "nm"), format_quantity(v, key.unit, key.write)]
+                for w, v in zip(wavelengths, values)]
     v = _scalar(value, key.where)
     if key.unit in ("", None):
         return v
@@ -619,11 +682,22 @@ def _design_values(rx) -> dict[str, dict]:
                     values["temperature"] = junction.temperature
             else:
                 value = getattr(obj, key.arg)
-                if value is None:
+                if value is None or (key.default is OMIT and _is_default(obj, key.arg, value)):
                     continue
                 values[key.name] = value
         out[section] = values
     return out
+
+
+def _is_default(obj, argument: str, value) -> bool:
+    """True when ``value`` is the dataclass default of ``argument`` (so it need not be written)."""
+    for fld in dataclasses.fields(obj):
+        if fld.name == argument and fld.default is not dataclasses.MISSING:
+            try:
+                return bool(np.all(np.asarray(value) == np.asarray(fld.default)))
+            except (TypeError, ValueError):
+                return False
+    return False
 
 
 def dumps_design(rx, name: str = "", description: str = "") -> str:

@@ -307,3 +307,29 @@ def test_array_broadcasting_and_bad_names():
         tia_second_order().expr("no_such_result")
     with pytest.raises(DesignError, match="args"):
         tia_second_order().lambdify("q", args=["A_0", "GBW"])
+
+
+@SETTINGS
+@given(pm_design)
+def test_second_order_figures_match_engine_metrics(p):
+    # engine: photorx.circuit.metrics.tia_figures (closed-loop poles, bisection on a log grid).
+    # The closed forms are exact for this loop (dominant-pole amplifier, ideal diode); the
+    # engine refines crossings by bisection, so agreement is asserted to rtol 1e-7 (figures)
+    # and 1e-6 degree / 1e-6 dB (phase margin, peaking)
+    from photorx.circuit.metrics import tia_figures
+
+    fig = tia_figures(p["gbw"], p["dc_gain"], (), p["rf"], p["cf"], p["cd"], np.inf, 0.0, p["cin"])
+    assert fig["stable"]
+    so, pmd = tia_second_order(), tia_phase_margin()
+    a = so_args(p)
+
+    def ev(d, name):
+        return d.lambdify(name)(**{k: a[k] for k in d.arguments(name)})
+
+    np.testing.assert_allclose(fig["dc_transimpedance"], ev(so, "dc_transimpedance"), rtol=1e-12)
+    np.testing.assert_allclose(fig["q"], ev(so, "q"), rtol=1e-9)
+    np.testing.assert_allclose(fig["damping"], ev(so, "damping"), rtol=1e-9)
+    np.testing.assert_allclose(fig["bandwidth"], ev(so, "bandwidth"), rtol=1e-7)
+    np.testing.assert_allclose(fig["peaking_db"], 20 * np.log10(ev(so, "peaking")), atol=1e-6)
+    np.testing.assert_allclose(fig["phase_margin"], ev(pmd, "phase_margin"), atol=1e-6)
+    np.testing.assert_allclose(fig["crossover"], ev(pmd, "crossover"), rtol=1e-7)

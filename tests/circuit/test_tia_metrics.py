@@ -1,10 +1,7 @@
 """Loop figures (photorx.circuit.metrics) against python-control, scipy.signal and textbook forms.
 
-The reference models here are built independently of photorx's polynomial algebra: the loop
-gain is assembled with python-control's transfer-function arithmetic straight from the circuit
-(A(s), Yf = 1/Rf + s Cf, Yd = 1/(Rs + Rsh || 1/(s Cd)), Yin = Yd + s Cin,
-beta = Yf / (Yf + Yin)); the closed loop Zt = Zf * Zd/(Zd + Rs) * T/(1 + T) likewise.
-Frequencies are scaled to rad/us inside those models to keep the polynomial coefficients near 1.
+The python-control reference models are in tia_reference_models.py (built from the circuit,
+independently of photorx's polynomial algebra).
 """
 
 from __future__ import annotations
@@ -23,44 +20,7 @@ from photorx.circuit.tia import Tia
 from photorx.device.equivalent_circuit import EquivalentCircuit
 from photorx.errors import DesignError
 
-SCALE = 1e6  # model time unit 1 us: s_model = s / SCALE
-
-# designs: (name, parameters); cover Rs, finite Rsh, extra poles, Cf = 0, a conditionally tight loop
-DESIGNS = {
-    "plain": dict(gbw=100e6, dc_gain=1e5, poles=(), rf=1e5, cf=0.3e-12, cd=10e-12, rsh=np.inf,
-                  rs=0.0, cin=2e-12),
-    "rs_rsh_pole": dict(gbw=200e6, dc_gain=3e4, poles=(400e6,), rf=2e4, cf=0.8e-12, cd=5e-12,
-                        rsh=2e6, rs=50.0, cin=3e-12),
-    "two_poles": dict(gbw=1e9, dc_gain=1e5, poles=(2e9, 5e9), rf=5e3, cf=0.2e-12, cd=2e-12,
-                      rsh=1e8, rs=10.0, cin=1e-12),
-    "no_cf_pole": dict(gbw=50e6, dc_gain=2e5, poles=(150e6,), rf=1e5, cf=0.0, cd=20e-12,
-                       rsh=1e9, rs=0.0, cin=5e-12),
-}
-
-
-def _loop_tf(p):
-    """Loop gain T(s) as a python-control TransferFunction (s in rad/us)."""
-    s = control.tf("s")
-    a0 = p["dc_gain"]
-    amp = control.tf([a0], [1.0]) / (1 + s * a0 / (2 * np.pi * p["gbw"]) * SCALE)
-    for fp in p["poles"]:
-        amp = amp / (1 + s * SCALE / (2 * np.pi * fp))
-    cs = lambda c: c * SCALE  # noqa: E731 - capacitance in the scaled model
-    yf = 1 / p["rf"] + s * cs(p["cf"])
-    gsh = 0.0 if np.isinf(p["rsh"]) else 1 / p["rsh"]
-    ycd = gsh + s * cs(p["cd"])                        # junction admittance
-    yd = ycd / (1 + p["rs"] * ycd)                     # behind Rs
-    yin = yd + s * cs(p["cin"])
-    beta = yf / (yf + yin)
-    return amp * beta, yf, ycd
-
-
-def _closed_tf(p):
-    """Closed-loop transimpedance Zt(s) [ohm] (s in rad/us), minimal realisation."""
-    t, yf, ycd = _loop_tf(p)
-    divider = 1 / (1 + p["rs"] * ycd)
-    return control.minreal(divider / yf * t / (1 + t), verbose=False)
-
+from tia_reference_models import DESIGNS, SCALE, closed_tf as _closed_tf, loop_tf as _loop_tf
 
 @pytest.mark.parametrize("name", ["plain", "rs_rsh_pole", "two_poles", "no_cf_pole"])
 def test_margins_against_python_control(name):

@@ -1,0 +1,305 @@
+"""Checks of photorx.device.photodiode.Photodiode and the demo photodiodes."""
+
+import dataclasses
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy import constants as sc
+
+import photorx as prx
+from photorx.device import speed
+from photorx.device.demo import demo_ingaas_pin, demo_silicon_pin
+from photorx.device.photodiode import Photodiode
+from photorx.errors import DesignError
+from photorx.units import mm, per_cm3, pF, um
+
+SETTINGS = settings(max_examples=20, deadline=None)
+
+
+@pytest.fixture(scope="module")
+def si_abrupt():
+    j = prx.AbruptJunction(prx.material("Si"), na=1e19 * per_cm3, nd=1e14 * per_cm3,
+                           area=(1 * mm) ** 2)
+    return Photodiode(junction=j)
+
+
+@pytest.fixture(scope="module")
+def si_pin():
+    return demo_silicon_pin()
+
+
+@pytest.fixture(scope="module")
+def ingaas_pin():
+    return demo_ingaas_pin()
+
+
+# --- construction -------------------------------------------------------------------
+def test_junction_alone_works_for_every_physical_junction():
+    si = prx.material("Si")
+    junctions = [
+        prx.AbruptJunction(si, na=1e19 * per_cm3, nd=1e15 * per_cm3, area=(1 * mm) ** 2),
+        prx.LinearlyGradedJunction(si, gradient=1e20 * 1e8, area=(0.5 * mm) ** 2),
+        prx.PinJunction(si, i_thickness=20 * um, i_doping=1e13 * per_cm3, area=(1 * mm) ** 2,
+                        p_doping=1e19 * per_cm3, n_doping=1e19 * per_cm3),
+    ]
+    for j in junctions:
+        pd = Photodiode(junction=j)
+        assert pd.capacitance(5.0) > 0
+        assert 0 < pd.responsivity(850e-9, 5.0) < 850e-9 / 1.23984e-6
+        assert pd.dark_current(5.0) > 0
+        assert pd.shunt_resistance(0.0) > 0
+        assert 0 < pd.transit_bandwidth(5.0) < np.inf
+
+
+def test_arrays_broadcast(si_pin):
+    v = np.array([0.0, 2.0, 10.0])[:, None]
+    wl = np.array([450e-9, 650e-9, 850e-9, 950e-9])
+    assert si_pin.responsivity(wl, v).shape == (3, 4)
+    assert si_pin.quantum_efficiency(wl, v).shape == (3, 4)
+    assert si_pin.capacitance(v).shape == (3, 1)
+    assert si_pin.dark_current(v[:, 0]).shape == (3,)
+    f = np.logspace(5, 9, 5)
+    assert si_pin.intrinsic_response(f, v, 850e-9).shape == (3, 5)
+    assert si_pin.transit_bandwidth(v[:, 0], 850e-9).shape == (3,)
+    assert isinstance(si_pin.responsivity(850e-9, 5.0), float)
+
+
+def test_responsivity_is_qe_times_lambda_over_1p23984(si_pin):
+    # R = eta q lambda / (h c) (scipy.constants); rtol 1e-12.
+    wl = np.array([500e-9, 850e-9, 1000e-9])
+    eta = si_pin.quantum_efficiency(wl, 5.0)
+    np.testing.assert_allclose(si_pin.responsivity(wl, 5.0), eta * sc.e * wl / (sc.h * sc.c),
+                               rtol=1e-12)
+
+
+@SETTINGS
+@given(st.floats(0.0, 30.0), st.floats(0.05, 2.0))
+def test_more_bias_more_red_response(v1, frac):
+    # Property (Sze and Ng, ch. 13; the bias trade-off of the design notes): the depletion
+    # layer widens with reverse bias, so the long-wavelength quantum efficiency rises.
+    j = prx.AbruptJunction(prx.material("Si"), na=1e19 * per_cm3, nd=1e14 * per_cm3,
+                           area=(1 * mm) ** 2)
+    pd = Photodiode(junction=j, absorber_thickness=300 * um, lifetime=1e-7)
+    v2 = v1 + frac * (1 + v1)
+    assert pd.quantum_efficiency(1000e-9, v2) > pd.quantum_efficiency(1000e-9, v1)
+
+
+def test_cutoff_gives_zero_response(ingaas_pin, si_pin):
+    # Common practice: silicon stops responding beyond ~1.1 um, InGaAs beyond ~1.7 um.
+    assert si_pin.responsivity(1150e-9, 5.0) == 0.0
+    assert ingaas_pin.responsivity(1750e-9, 5.0) == 0.0
+    assert ingaas_pin.responsivity(1650e-9, 5.0) > 0.5
+
+
+def test_wavelength_outside_table_names_range(si_pin):
+    with pytest.raises(DesignError, match="300 to 1200 nm") as err:
+        si_pin.responsivity(250e-9, 5.0)
+    assert err.value.parameter == "wavelength"
+
+
+def test_demo_responsivities_common_practice(si_pin, ingaas_pin):
+    # Common practice: silicon p-i-n diodes give about 0.5-0.65 A/W at 850 nm; InGaAs p-i-n
+    # diodes about 0.8-1.0 A/W at 1310 and 1550 nm.
+    assert 0.5 <= si_pin.responsivity(850e-9, 10.0) <= 0.685
+    for wl in (1310e-9, 1550e-9):
+        assert 0.8 <= ingaas_pin.responsivity(wl, 5.0) <= 1.0
+
+
+def test_photovoltaic_operation(si_pin):
+    # Zero bias: no net dark current, shunt resistance = R0, the current is the
+    # photocurrent alone.
+    assert si_pin.dark_current(0.0) == 0.0
+    net = si_pin.equivalent_circuit(0.0, optical_power=1e-6, wavelength=850e-9)
+    assert net.shunt_resistance == pytest.approx(si_pin.shunt_resistance(0.0), rel=1e-12)
+    assert net.current == pytest.approx(si_pin.responsivity(850e-9, 0.0) * 1e-6, rel=1e-12)
+
+
+def test_forward_bias_adds_diffusion_capacitance(si_abrupt):
+    # Sze and Ng, ch. 2: in forward bias the stored minority charge adds tau I / (2 V_T).
+    v = -0.3
+    cj = si_abrupt.junction.capacitance(v)
+    i_f = -si_abrupt.dark_current_components(v)["diffusion"]
+    tau = si_abrupt._lifetimes()[0]
+    vt = sc.k * 300.0 / sc.e
+    assert si_abrupt.dark_current(v) < 0
+    assert si_abrupt.capacitance(v) == pytest.approx(cj + tau / 2 * i_f / vt, rel=1e-9)
+    assert si_abrupt.capacitance(2.0) == pytest.approx(si_abrupt.junction.capacitance(2.0),
+                                                       rel=1e-12)
+
+
+def test_equivalent_circuit_current_sums(ingaas_pin):
+    v, p, pb, wl = np.array([1.0, 5.0]), 10e-6, 2e-6, 1550e-9
+    net = ingaas_pin.equivalent_circuit(v, optical_power=p, wavelength=wl, background_power=pb)
+    r = ingaas_pin.responsivity(wl, v)
+    np.testing.assert_allclose(net.current, ingaas_pin.dark_current(v) + r * (p + pb),
+                               rtol=1e-12)
+    np.testing.assert_allclose(net.capacitance, ingaas_pin.capacitance(v), rtol=1e-12)
+    np.testing.assert_allclose(net.shunt_resistance, ingaas_pin.shunt_resistance(v), rtol=1e-12)
+    assert net.series_resistance == ingaas_pin.series_resistance
+    assert isinstance(net, prx.EquivalentCircuit)
+
+
+def test_package_capacitance_adds(si_pin):
+    bare = dataclasses.replace(si_pin, package_capacitance=0.0)
+    assert si_pin.capacitance(5.0) - bare.capacitance(5.0) == pytest.approx(0.2 * pF, rel=1e-9)
+
+
+def test_shunt_resistance_is_inverse_slope_of_dark_current(si_abrupt, ingaas_pin):
+    # R_sh = (dI/dv_r)^-1, by central difference of dark_current; rtol 1e-3.
+    for pd, biases in ((si_abrupt, (0.0, 0.02, 1.0)), (ingaas_pin, (0.0, 0.03))):
+        for v in biases:
+            h = 1e-5
+            slope = (pd.dark_current(v + h) - pd.dark_current(v - h)) / (2 * h)
+            assert pd.shunt_resistance(v) == pytest.approx(1 / slope, rel=1e-3)
+
+
+def test_dark_current_rises_with_reverse_bias(si_abrupt):
+    # Generation-dominated silicon diode: I_dark grows with W, hence with reverse bias.
+    i = si_abrupt.dark_current(np.array([1.0, 5.0, 20.0]))
+    assert np.all(np.diff(i) > 0)
+    parts = si_abrupt.dark_current_components(5.0)
+    assert parts["generation"] > 3 * parts["diffusion"]
+
+
+def test_dark_current_temperature_doubling(si_pin):
+    # Common practice: silicon photodiode dark current doubles about every 8-10 K.
+    i300 = si_pin.dark_current(10.0)
+    i310 = si_pin.at_temperature(310.0).dark_current(10.0)
+    assert 2 ** (10 / 10.5) <= i310 / i300 <= 2 ** (10 / 7.5)
+
+
+def test_transit_bandwidth_at_high_bias_uses_saturation_velocities(ingaas_pin):
+    # Far above punch-through the carriers approach v_sat: f_3dB tends to (and never
+    # exceeds) the uniform-generation Ramo result for W, v_sat,n, v_sat,p (Bowers and
+    # Burrus 1987); within 10 % at 30 V on 2 um (mean field 15 V/um).
+    m = ingaas_pin.material
+    v = 30.0
+    w = ingaas_pin.junction.depletion_width(v)
+    ref = speed.transit_bandwidth(w, m.v_sat_n, m.v_sat_p)
+    assert 0.9 * ref <= ingaas_pin.transit_bandwidth(v) <= ref
+
+
+def test_intrinsic_response_normalised_and_falling(si_pin):
+    f = np.array([0.0, 1e6, 1e8, 1e9, 5e9])
+    h = si_pin.intrinsic_response(f, 10.0, 850e-9)
+    assert h[0] == pytest.approx(1.0, abs=1e-12)
+    assert np.all(np.diff(np.abs(h)) < 0)
+    # at 950 nm more light is absorbed deep in the undepleted substrate: bigger slow tail
+    assert si_pin.diffusion_fraction(950e-9, 10.0) > si_pin.diffusion_fraction(650e-9, 10.0)
+    assert si_pin.diffusion_time_constant(950e-9, 10.0) > 0
+
+
+def test_bandwidth_combines_transit_and_rc(ingaas_pin):
+    # f = (f_t^-2 + f_RC^-2)^-1/2 with f_RC = 1/(2 pi (Rs + RL) C); rtol 1e-12.
+    ft = ingaas_pin.transit_bandwidth(5.0)
+    frc = 1 / (2 * np.pi * (10.0 + 50.0) * ingaas_pin.capacitance(5.0))
+    assert ingaas_pin.bandwidth(5.0, 50.0) == pytest.approx((ft**-2 + frc**-2) ** -0.5,
+                                                            rel=1e-12)
+
+
+# --- simple (given) responsivity ------------------------------------------------------
+def test_given_responsivity_with_physical_junction(si_pin):
+    pd = dataclasses.replace(si_pin, given_responsivity=0.55)
+    np.testing.assert_allclose(pd.responsivity(np.array([650e-9, 850e-9]), 5.0), 0.55)
+    table = ([800e-9, 850e-9, 900e-9], [0.50, 0.56, 0.60])
+    pd = dataclasses.replace(si_pin, given_responsivity=table)
+    assert pd.responsivity(875e-9, 5.0) == pytest.approx(0.58, rel=1e-12)
+    assert pd.quantum_efficiency(850e-9) == pytest.approx(0.56 * 1.23984e-6 / 850e-9, rel=1e-5)
+    with pytest.raises(DesignError, match="800 to 900 nm"):
+        pd.responsivity(950e-9)
+    # the speed model still comes from the junction
+    assert pd.transit_bandwidth(5.0) == pytest.approx(si_pin.transit_bandwidth(5.0))
+
+
+# --- datasheet constructor ----------------------------------------------------------
+def test_from_datasheet_reproduces_inputs():
+    pd = Photodiode.from_datasheet(
+        responsivity={850e-9: 0.55, 905e-9: 0.6}, capacitance=(3e-12, 1.2e-12),
+        capacitance_bias=(0.0, 10.0), dark_current=0.5e-9, dark_current_bias=10.0,
+        shunt_resistance=2e9, series_resistance=20.0, package_capacitance=0.1e-12,
+        bandwidth=300e6)
+    np.testing.assert_allclose(pd.capacitance([0.0, 10.0]), [3.1e-12, 1.3e-12], rtol=1e-12)
+    assert pd.dark_current(10.0) == pytest.approx(0.5e-9, rel=1e-12)
+    assert pd.shunt_resistance(0.0) == pytest.approx(2e9, rel=1e-6)
+    assert pd.responsivity(850e-9) == pytest.approx(0.55)
+    assert abs(pd.intrinsic_response(300e6, 5.0)) ** 2 == pytest.approx(0.5, rel=1e-6)
+    net = pd.equivalent_circuit(10.0, optical_power=1e-6, wavelength=905e-9)
+    assert net.current == pytest.approx(0.5e-9 + 0.6e-6, rel=1e-12)
+    assert net.series_resistance == 20.0
+
+
+def test_from_datasheet_other_forms():
+    pd = Photodiode.from_datasheet(responsivity=0.9, cj0=1e-12, vj=0.6, m=0.5)
+    assert pd.capacitance(1.8) == pytest.approx(0.5e-12, rel=1e-12)
+    assert pd.dark_current(5.0) == 0.0 and pd.shunt_resistance(0.0) == np.inf
+    assert pd.intrinsic_response(1e12, 5.0) == 1.0
+    net = pd.equivalent_circuit(5.0, optical_power=1e-6)  # number: no wavelength needed
+    assert net.current == pytest.approx(0.9e-6)
+    fixed = Photodiode.from_datasheet(responsivity=0.9, capacitance=2e-12, capacitance_bias=5.0,
+                                      shunt_resistance=1e9)
+    np.testing.assert_allclose(fixed.capacitance([0.0, 5.0, 20.0]), 2e-12, rtol=1e-12)
+    assert fixed.dark_current(5.0) == pytest.approx(5.0 / 1e9, rel=1e-12)
+    only_i = Photodiode.from_datasheet(responsivity=0.9, capacitance=2e-12, capacitance_bias=5.0,
+                                       dark_current=1e-9, dark_current_bias=5.0)
+    assert only_i.dark_current(5.0) == pytest.approx(1e-9, rel=1e-12)
+
+
+def test_from_datasheet_inconsistent_numbers_name_parameter():
+    with pytest.raises(DesignError, match="shunt_resistance.*valid range") as err:
+        Photodiode.from_datasheet(responsivity=0.5, capacitance=1e-12, capacitance_bias=5.0,
+                                  dark_current=1e-9, dark_current_bias=10.0,
+                                  shunt_resistance=1e12)
+    assert err.value.parameter == "shunt_resistance"
+    with pytest.raises(DesignError) as err:
+        Photodiode.from_datasheet(responsivity=0.5, capacitance=(1e-12, 2e-12),
+                                  capacitance_bias=(0.0, 5.0))
+    assert err.value.parameter == "capacitance"
+    with pytest.raises(DesignError) as err:
+        Photodiode.from_datasheet(responsivity=0.5, capacitance=1e-12, capacitance_bias=5.0,
+                                  dark_current=1e-9)
+    assert err.value.parameter == "dark_current_bias"
+
+
+# --- bad inputs ---------------------------------------------------------------------
+@pytest.mark.parametrize("kwargs, name", [
+    (dict(reflectance=1.2), "reflectance"),
+    (dict(top_thickness=-1e-6), "top_thickness"),
+    (dict(absorber_thickness=0.0), "absorber_thickness"),
+    (dict(series_resistance=-1.0), "series_resistance"),
+    (dict(package_capacitance=-1e-12), "package_capacitance"),
+    (dict(lifetime=0.0), "lifetime"),
+    (dict(illuminated_side="x"), "illuminated_side"),
+    (dict(given_responsivity=-0.5), "given_responsivity"),
+    (dict(reference_dark_current=1e-9), "reference_bias"),
+    (dict(reference_dark_current=1e-9, reference_bias=0.01), "reference_bias"),
+    (dict(leakage_resistance=0.0), "leakage_resistance"),
+])
+def test_bad_constructor_inputs_name_parameter(si_pin, kwargs, name):
+    with pytest.raises(DesignError) as err:
+        Photodiode(junction=si_pin.junction, **kwargs)
+    assert err.value.parameter == name
+    assert name in str(err.value)
+
+
+def test_bad_call_inputs_name_parameter(si_pin):
+    for call, name in ((lambda: si_pin.equivalent_circuit(5.0, optical_power=1e-6), "wavelength"),
+                       (lambda: si_pin.equivalent_circuit(5.0, optical_power=-1.0),
+                        "optical_power"),
+                       (lambda: si_pin.intrinsic_response(-1.0, 5.0), "f"),
+                       (lambda: si_pin.capacitance(np.nan), "v_r"),
+                       (lambda: si_pin.rc_bandwidth(5.0, load_resistance=-1.0),
+                        "load_resistance")):
+        with pytest.raises(DesignError) as err:
+            call()
+        assert err.value.parameter == name
+
+
+def test_parametric_junction_needs_responsivity():
+    with pytest.raises(DesignError, match="given_responsivity") as err:
+        Photodiode(junction=prx.ParametricJunction(cj0=1e-12, vj=0.7, m=0.5))
+    assert err.value.parameter == "given_responsivity"
+    with pytest.raises(DesignError) as err:
+        Photodiode(junction="not a junction")
+    assert err.value.parameter == "junction"
