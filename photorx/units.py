@@ -130,7 +130,8 @@ def format_eng(value, unit: str = "", digits: int = 3) -> str:
     if v == 0:
         return f"0{sep}{unit}"
     exp3 = int(math.floor(math.log10(abs(v)) / 3) * 3)
-    exp3 = max(min(exp3, 15), -18)
+    if not -18 <= exp3 <= 15:  # beyond the prefixes: scientific notation, not "2.5e+03 Pohm"
+        return f"{v:.{digits}g} {unit}"
     mant = v / 10 ** exp3
     # rounding may carry to 1000 (999.96 -> 1000): step up one prefix
     if abs(float(f"{mant:.{digits}g}")) >= 1000 and exp3 < 15:

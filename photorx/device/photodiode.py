@@ -64,16 +64,14 @@ def _responsivity_table(value):
         wl, r = [p[0] for p in pairs], [p[1] for p in pairs]
     else:
         arr = np.asarray(as_float_array("given_responsivity", value, "A/W"), dtype=float)
-        if arr.ndim == 2 and arr.shape[0] == 2 and arr.shape[1] != 2:
+        if arr.ndim == 2 and arr.shape[0] == 2:  # (wavelengths, responsivities)
             wl, r = arr[0], arr[1]
-        elif arr.ndim == 2 and arr.shape[1] == 2:
+        elif arr.ndim == 2 and arr.shape[1] == 2:  # rows [wavelength, responsivity]
             wl, r = arr[:, 0], arr[:, 1]
-        elif arr.ndim == 2 and arr.shape == (2, 2):
-            wl, r = arr[0], arr[1]
         else:
-            raise DesignError(f"responsivity table has shape {arr.shape}; give a number [A/W] "
-                              "or a table (wavelengths [m], responsivities [A/W]) with >= 2 "
-                              "points", parameter="given_responsivity")
+            raise DesignError(f"given_responsivity table has shape {arr.shape}; give a number "
+                              "[A/W] or a table (wavelengths [m], responsivities [A/W]) with "
+                              ">= 2 points", parameter="given_responsivity")
     wl = np.asarray(require_positive("given_responsivity wavelengths", wl, "m"), dtype=float)
     r = np.asarray(require_nonnegative("given_responsivity", r, "A/W"), dtype=float)
     if wl.size < 2 or np.any(np.diff(wl) <= 0):
@@ -96,8 +94,9 @@ class Photodiode:
     given_responsivity : None, float or table, optional
         None (default): from physics (absorption table of the junction material, layer
         stack, reflectance). A number [A/W]: the same at every wavelength and bias. A
-        table: ``(wavelengths [m], responsivities [A/W])`` (or an (N, 2) array, or a dict
-        wavelength -> responsivity), interpolated linearly; outside it is a DesignError.
+        table: ``(wavelengths [m], responsivities [A/W])`` (also an (N, 2) array of rows
+        [wavelength, responsivity] for N > 2, or a dict wavelength -> responsivity),
+        interpolated linearly; outside it is a DesignError.
     reflectance : float, optional
         Front power reflectance [-], 0 to <1. Default: bare surface,
         ((n - 1)/(n + 1))^2 with n = sqrt(eps_r) of the material (about 0.3 for Si, InGaAs;
@@ -432,7 +431,8 @@ class Photodiode:
         Notes
         -----
         C = C_j(v_r) + tau I_F / (2 n V_T) + C_pkg, the long-diode diffusion capacitance of
-        the forward current I_F (lifetime tau, see :func:`~photorx.device.junction.diffusion_capacitance`).
+        the forward current I_F (lifetime tau, see
+        :func:`~photorx.device.junction.diffusion_capacitance`).
         """
         cj = np.asarray(self.junction.capacitance(v_r))
         i_f, n = self._forward_current(v_r)
@@ -595,7 +595,7 @@ class Photodiode:
         return speed.rc_bandwidth(self.capacitance(v_r), self.series_resistance + np.asarray(rl))
 
     def bandwidth(self, v_r=0.0, load_resistance=50.0, wavelength=None):
-        """Transit and RC limits combined, (f_t^-2 + f_RC^-2)^-1/2 [Hz] (diffusion tail excluded)."""
+        """Transit and RC limits combined, (f_t^-2 + f_RC^-2)^-1/2 [Hz] (no diffusion tail)."""
         return speed.combined_bandwidth(self.transit_bandwidth(v_r, wavelength),
                                         self.rc_bandwidth(v_r, load_resistance))
 

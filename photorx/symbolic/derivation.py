@@ -73,6 +73,13 @@ def _as_eq(name: str, value) -> sp.Eq:
     return sp.Eq(sp.Symbol(name), value, evaluate=False)
 
 
+def _lhs_latex(name: str, eq: sp.Equality) -> str:
+    """LaTeX of a result's left side: its symbol, or the result's name set upright."""
+    if eq.lhs == sp.Symbol(name):
+        return r"\mathrm{" + name.replace("_", r"\_") + "}"
+    return sp.latex(eq.lhs)
+
+
 def _latex_text(text: str) -> str:
     """Escape plain text for ``\\text{...}`` and split out inline ``$math$``."""
     parts = text.split("$")
@@ -247,7 +254,7 @@ class Derivation:
             lines += [r"\item " + _latex_body(st.description),
                       r"\begin{equation*}", st.to_latex(), r"\end{equation*}"]
         lines += [r"\end{enumerate}", r"\paragraph{Results}", r"\begin{align*}"]
-        lines += [sp.latex(eq.lhs) + " &= " + sp.latex(eq.rhs) + r" \\" for eq in self.results.values()]
+        lines += [_lhs_latex(n, eq) + " &= " + sp.latex(eq.rhs) + r" \\" for n, eq in self.results.items()]
         lines += [r"\end{align*}", r"\paragraph{Symbols}", r"\begin{tabular}{lll}",
                   r"Symbol & Meaning & Unit \\ \hline"]
         for s in self._used_symbols():
@@ -270,7 +277,7 @@ class Derivation:
         for i, st in enumerate(self.steps, 1):
             out += [f"{i}. {st.description}", "", f"   $${st.to_latex()}$$", ""]
         out += ["**Results**", ""]
-        out += [f"- {name}: ${sp.latex(eq.lhs)} = {sp.latex(eq.rhs)}$" for name, eq in self.results.items()]
+        out += [f"- {name}: ${_lhs_latex(name, eq)} = {sp.latex(eq.rhs)}$" for name, eq in self.results.items()]
         out += ["", "| Symbol | Meaning | Unit |", "|---|---|---|"]
         for s in self._used_symbols():
             i = self.symbols[s]
@@ -287,7 +294,7 @@ class Derivation:
             rows.append(_latex_text(f"{i}. {st.description}"))
             rows.append(r"\qquad " + st.to_latex())
         rows.append(_latex_text("Results:"))
-        rows += [r"\qquad " + sp.latex(eq.lhs) + " = " + sp.latex(eq.rhs) for eq in self.results.values()]
+        rows += [r"\qquad " + _lhs_latex(n, eq) + " = " + sp.latex(eq.rhs) for n, eq in self.results.items()]
         return "$$\\begin{array}{l}\n" + " \\\\[4pt]\n".join(rows) + "\n\\end{array}$$"
 
     def __repr__(self) -> str:

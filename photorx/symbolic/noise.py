@@ -118,7 +118,8 @@ def tia_input_noise() -> Derivation:
     corner_eq = sp.Eq(e_nw ** 2 * (2 * sp.pi * f * C_T) ** 2, rest)
     # linear in f^2; keep the root as sqrt(rest)/(2 pi C_T e_n) so that R_sh = inf evaluates
     corner = sp.sqrt(rest) / (2 * sp.pi * C_T * e_nw)
-    assert sp.simplify(corner_eq.lhs.subs(f, corner) - corner_eq.rhs) == 0
+    if sp.simplify(corner_eq.lhs.subs(f, corner) - corner_eq.rhs) != 0:  # pragma: no cover
+        raise RuntimeError("noise corner: the root does not solve its equation")
     steps = [
         Step("Kirchhoff's current law at the summing node ($R_s = 0$) with a noise current "
              "$i_x$ drawn out of it", kcl),

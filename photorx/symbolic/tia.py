@@ -226,7 +226,6 @@ def tia_second_order() -> Derivation:
     q_expr = sp.sqrt(sp.factor(a0 * a2)) / sp.factor(a1)
     z0 = sp.factor(num / a0)
     f0 = w0 / (2 * sp.pi)
-    canonical = Q_rhs = None  # noqa: F841 (names for readability below)
     canonical = z0 * omega_0 ** 2 / (s ** 2 + s * omega_0 / Q + omega_0 ** 2)
     # -3 dB: |H(j omega)|^2 = 1/((1 - x)^2 + x/Q^2) = 1/2 with x = (omega/omega_0)^2
     mag2_inv = (1 - x) ** 2 + x / Q ** 2

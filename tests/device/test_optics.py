@@ -1,4 +1,4 @@
-"""Checks of photorx.device.optics: absorption data, collection, quantum efficiency, responsivity."""
+"""Checks of photorx.device.optics: absorption data, collection, quantum efficiency, R."""
 
 import numpy as np
 import pytest
