@@ -17,6 +17,7 @@ from hypothesis import strategies as st
 
 import photorx.designfile as dfile
 from photorx.designfile import SCHEMA, SECTIONS, format_quantity, read_design
+from photorx.designschema import _CHECKS
 from photorx.errors import DesignError
 from photorx.units import parse_quantity
 
@@ -234,7 +235,7 @@ def test_schema_is_consistent():
     for key in SCHEMA:
         assert key.section in SECTIONS, key
         assert key.doc, key
-        assert key.check in dfile._CHECKS or key.check == "", key
+        assert key.check in _CHECKS or key.check == "", key
         ident = (key.section, key.name, key.when)
         assert ident not in seen, key
         seen.add(ident)

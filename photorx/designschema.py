@@ -1,0 +1,440 @@
+"""The design-file schema: one declarative row per key, and validation of a parsed document.
+
+:data:`SCHEMA` lists every key of a design file with its section, SI unit, default,
+constructor argument, range check and help text; :func:`read_design` turns a parsed TOML
+document into SI values, raising :class:`~photorx.errors.DesignError` for unknown sections
+or keys, missing keys, wrong dimensions and out-of-range values, each naming the key with
+its section path (``[photodiode.junction] area``) and what was expected. A new parameter
+is one new :class:`Key` row. :mod:`photorx.designfile` reads, writes and builds receivers
+from it.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+from dataclasses import dataclass
+
+from .errors import DesignError
+from .units import _dimension_name, parse_quantity
+
+__all__ = ["Key", "SCHEMA", "SECTIONS", "REQUIRED", "OMIT", "read_design", "section_keys"]
+
+REQUIRED = "<required>"
+#: Default of keys whose absence leaves the constructor's own default in force; such keys
+#: are written only when the design's value differs from that default.
+OMIT = "<constructor default>"
+
+
+@dataclass(frozen=True)
+class Key:
+    """One row of the design-file schema.
+
+    Attributes
+    ----------
+    section : str
+        Dotted section path, e.g. ``"photodiode.junction"``.
+    name : str
+        Key as written in the file.
+    unit : str or None
+        SI unit of the value (pint syntax): a quantity string is converted to it and a
+        quantity of another dimension is an error. ``""`` for a plain number.
+    default : object
+        Value used when the key is absent; :data:`REQUIRED` makes it mandatory; ``None``
+        makes it optional with no value; :data:`OMIT` leaves the constructor's default.
+    argument : str
+        Constructor argument (defaults to ``name``).
+    write : str or None
+        Unit the value is written in (``"nm"``, ``"cm^-3"``, ``"area"`` for um^2 or mm^2);
+        None picks an engineering prefix of ``unit``.
+    check : str
+        Range check: ``">0"``, ``">=0"``, ``"0..1"``, ``"(0..1]"``, ``"(0..0.5)"`` or ``""``.
+    kind : str
+        ``"quantity"``, ``"text"``, ``"integer"``, ``"list"`` (of quantities), ``"ratio"``
+        (a plain number or decibels, ``"10 dB"``) or ``"table"`` (a quantity, or a list of
+        ``[wavelength, value]`` pairs).
+    when : tuple of str
+        The key applies only when the section's selector (``model`` or ``kind``) takes one
+        of these values; empty = always.
+    choices : tuple of str
+        Allowed values of a text key.
+    doc : str
+        Help text for the template and for error messages.
+    example : str
+        Example value shown in messages and commented template lines.
+    """
+
+    section: str
+    name: str
+    unit: str | None = ""
+    default: object = REQUIRED
+    argument: str | None = None
+    write: str | None = None
+    check: str = ""
+    kind: str = "quantity"
+    when: tuple = ()
+    choices: tuple = ()
+    doc: str = ""
+    example: str = ""
+
+    @property
+    def arg(self) -> str:
+        return self.argument or self.name
+
+    @property
+    def where(self) -> str:
+        return f"[{self.section}] {self.name}"
+
+
+_JM = ("abrupt", "pin", "graded", "parametric")
+_PHYSICAL = ("abrupt", "pin", "graded")
+
+#: The design-file schema: one row per key. Order is the order of written files.
+SCHEMA: tuple[Key, ...] = (
+    # -- free text ----------------------------------------------------------------------------
+    Key("design", "name", None, "", kind="text", doc="Short name of the design."),
+    Key("design", "description", None, "", kind="text", doc="What the design is for."),
+    # -- photodiode junction -------------------------------------------------------------------
+    Key("photodiode.junction", "model", None, REQUIRED, kind="text", choices=_JM,
+        doc="Junction model: abrupt (step), pin, graded (linearly graded) or parametric "
+            "(Cj0/(1+Vr/Vj)^m, for datasheet numbers).", example="pin"),
+    Key("photodiode.junction", "material", None, REQUIRED, kind="text", when=_PHYSICAL,
+        doc="Semiconductor: Si, Ge, GaAs, InP or InGaAs (In0.53Ga0.47As).", example="Si"),
+    Key("photodiode.junction", "area", "m^2", REQUIRED, write="area", check=">0",
+        when=_PHYSICAL, doc="Junction (active) area.", example="(100 um)^2"),
+    Key("photodiode.junction", "na", "m^-3", REQUIRED, write="cm^-3", check=">0",
+        when=("abrupt",), doc="Acceptor doping of the p side.", example="1e19 cm^-3"),
+    Key("photodiode.junction", "nd", "m^-3", REQUIRED, write="cm^-3", check=">0",
+        when=("abrupt",), doc="Donor doping of the n side.", example="1e15 cm^-3"),
+    Key("photodiode.junction", "i_thickness", "m", REQUIRED, write="um", check=">0",
+        when=("pin",), doc="Thickness of the intrinsic (absorbing) layer.", example="2 um"),
+    Key("photodiode.junction", "i_doping", "m^-3", REQUIRED, write="cm^-3", check=">0",
+        when=("pin",), doc="Residual doping of the intrinsic layer.", example="1e14 cm^-3"),
+    Key("photodiode.junction", "p_doping", "m^-3", REQUIRED, write="cm^-3", check=">0",
+        when=("pin",), doc="Doping of the p contact layer.", example="1e19 cm^-3"),
+    Key("photodiode.junction", "n_doping", "m^-3", REQUIRED, write="cm^-3", check=">0",
+        when=("pin",), doc="Doping of the n contact layer.", example="1e19 cm^-3"),
+    Key("photodiode.junction", "gradient", "m^-4", REQUIRED, write="cm^-4", check=">0",
+        when=("graded",), doc="Net doping gradient.", example="1e20 cm^-4"),
+    Key("photodiode.junction", "cj0", "F", REQUIRED, check=">0", when=("parametric",),
+        doc="Zero-bias junction capacitance.", example="1 pF"),
+    Key("photodiode.junction", "vj", "V", REQUIRED, check=">0", when=("parametric",),
+        doc="Junction potential.", example="0.7 V"),
+    Key("photodiode.junction", "m", "", REQUIRED, when=("parametric",),
+        doc="Grading coefficient, 0 to 2 (0.5 abrupt, 1/3 graded, 0 fixed capacitance).",
+        example="0.5"),
+    Key("photodiode.junction", "fc", "", 0.5, when=("parametric",),
+        doc="Forward-bias linearisation point as a fraction of vj, 0 to 0.95.", example="0.5"),
+    Key("photodiode.junction", "temperature", "K", None, write="K", check=">0", when=_PHYSICAL,
+        doc="Junction temperature when it differs from the operating point's.",
+        example="300 K"),
+    # -- photodiode (beyond its junction); absent keys keep the Photodiode defaults -----------
+    Key("photodiode", "responsivity", "A/W", OMIT, argument="given_responsivity", write="A/W",
+        kind="table", check=">=0",
+        doc="Given responsivity instead of the absorption model: a number, or a table of "
+            "[wavelength, responsivity] pairs (required with the parametric junction).",
+        example="0.9 A/W"),
+    Key("photodiode", "reflectance", "", OMIT, check="0..1",
+        doc="Front power reflectance (default: bare surface of the material).",
+        example="0.03"),
+    Key("photodiode", "top_thickness", "m", OMIT, write="um", check=">=0",
+        doc="Undepleted absorbing layer above the depletion layer (default 0.3 um; 0 for a "
+            "transparent window).", example="0.2 um"),
+    Key("photodiode", "absorber_thickness", "m", OMIT, write="um", check=">0",
+        doc="Absorbing material below the top layer (default inf: thick substrate).",
+        example="2 um"),
+    Key("photodiode", "top_diffusion_length", "m", OMIT, write="um", check=">0",
+        doc="Minority-carrier diffusion length in the top layer (default 1 um).",
+        example="1 um"),
+    Key("photodiode", "lifetime", "s", OMIT, check=">0",
+        doc="Minority-carrier lifetime in the undepleted bottom layer (default by material).",
+        example="1 us"),
+    Key("photodiode", "generation_lifetime", "s", OMIT, check=">0",
+        doc="Generation lifetime of the depletion layer (default by material).",
+        example="1 ms"),
+    Key("photodiode", "leakage_resistance", "ohm", OMIT, check=">0",
+        doc="Ohmic surface leakage resistance (default inf).", example="100 Gohm"),
+    Key("photodiode", "series_resistance", "ohm", OMIT, check=">=0",
+        doc="Series resistance (default 10 ohm).", example="10 ohm"),
+    Key("photodiode", "package_capacitance", "F", OMIT, check=">=0",
+        doc="Package and pad capacitance in parallel with the junction (default 0).",
+        example="0.1 pF"),
+    Key("photodiode", "illuminated_side", None, OMIT, kind="text", choices=("p", "n"),
+        doc="Doping type of the illuminated top layer (default p, p-on-n).", example="p"),
+    Key("photodiode", "intrinsic_bandwidth", "Hz", OMIT, check=">0",
+        doc="Given intrinsic (transit) bandwidth replacing the transit model.",
+        example="5 GHz"),
+    Key("photodiode", "dark_current", "A", OMIT, argument="reference_dark_current", check=">0",
+        doc="Measured dark current at dark_current_bias (replaces the dark-current model).",
+        example="1 nA"),
+    Key("photodiode", "dark_current_bias", "V", OMIT, argument="reference_bias",
+        doc="Reverse bias of the measured dark current.", example="5 V"),
+    Key("photodiode", "shunt_resistance", "ohm", OMIT, argument="zero_bias_resistance",
+        check=">0", doc="Measured zero-bias shunt resistance R0.", example="1 Gohm"),
+    # -- amplifier -----------------------------------------------------------------------------
+    Key("amplifier", "gbw", "Hz", REQUIRED, check=">0", doc="Gain-bandwidth product.",
+        example="1 GHz"),
+    Key("amplifier", "dc_gain", "", 1e5, check=">0", doc="DC open-loop gain [V/V].",
+        example="1e5"),
+    Key("amplifier", "poles", "Hz", (), kind="list", check=">0",
+        doc="Extra poles beyond the dominant one.", example='["3 GHz"]'),
+    Key("amplifier", "voltage_noise", "V/rtHz", REQUIRED, check=">=0",
+        doc="White input voltage noise density.", example="5 nV/rtHz"),
+    Key("amplifier", "current_noise", "A/rtHz", REQUIRED, check=">=0",
+        doc="White input current noise density.", example="2 pA/rtHz"),
+    Key("amplifier", "voltage_noise_corner", "Hz", 0.0, check=">=0",
+        doc="1/f corner of the voltage noise (0 = none).", example="10 kHz"),
+    Key("amplifier", "current_noise_corner", "Hz", 0.0, check=">=0",
+        doc="1/f corner of the current noise (0 = none).", example="1 kHz"),
+    Key("amplifier", "input_capacitance", "F", 0.0, check=">=0",
+        doc="Common-mode plus differential input capacitance.", example="1 pF"),
+    Key("amplifier", "output_swing", "V", 2.0, check=">0",
+        doc="Largest output magnitude before clipping.", example="1.5 V"),
+    # -- feedback ------------------------------------------------------------------------------
+    Key("feedback", "rf", "ohm", REQUIRED, check=">0", doc="Feedback resistance.",
+        example="10 kohm"),
+    Key("feedback", "cf", "F", REQUIRED, check=">=0",
+        doc="Feedback capacitance (include the resistor's parasitic).", example="0.2 pF"),
+    # -- operating point -----------------------------------------------------------------------
+    Key("operating_point", "reverse_bias", "V", REQUIRED,
+        doc="Reverse bias across the photodiode (negative = forward).", example="5 V"),
+    Key("operating_point", "wavelength", "m", REQUIRED, write="nm", check=">0",
+        doc="Signal wavelength.", example="1310 nm"),
+    Key("operating_point", "optical_power", "W", REQUIRED, check=">=0",
+        doc="Average optical signal power at the photodiode (W or dBm).", example="-20 dBm"),
+    Key("operating_point", "temperature", "K", 300.0, write="K", check=">0",
+        doc="Device temperature (K or degC).", example="300 K"),
+    Key("operating_point", "background_power", "W", 0.0, check=">=0",
+        doc="Background (ambient) optical power.", example="0 W"),
+    # -- signal --------------------------------------------------------------------------------
+    Key("signal", "modulation_depth", "", 1.0, check="(0..1]",
+        doc="Analog modulation depth of the signal.", example="1.0"),
+    Key("signal", "bit_rate", "bit/s", None, check=">0",
+        doc="Bit rate of a digital receiver (enables the BER sensitivity).",
+        example="10 Gbit/s"),
+    Key("signal", "extinction_ratio", "", math.inf, kind="ratio", check=">1",
+        doc="Extinction ratio P1/P0 (a number or decibels).", example="10 dB"),
+    Key("signal", "target_ber", "", 1e-12, check="(0..0.5)", doc="Target bit-error ratio.",
+        example="1e-12"),
+    # -- optional post filter ------------------------------------------------------------------
+    Key("post_filter", "kind", None, REQUIRED, kind="text",
+        choices=("butterworth", "bessel", "brickwall"), doc="Filter family.",
+        example="bessel"),
+    Key("post_filter", "order", None, 4, kind="integer", doc="Order 1 to 6.", example="4"),
+    Key("post_filter", "cutoff", "Hz", REQUIRED, check=">0", doc="-3 dB frequency.",
+        example="7 GHz"),
+    # -- optional limits -----------------------------------------------------------------------
+    Key("limits", "max_dark_current", "A", None, check=">0",
+        doc="Largest acceptable dark current.", example="10 nA"),
+    Key("limits", "max_bias", "V", None, check=">0",
+        doc="Largest bias the supply provides.", example="20 V"),
+    # -- optional analysis settings ------------------------------------------------------------
+    Key("analysis", "noise_band_low", "Hz", 1.0, check=">0",
+        doc="Lower edge of the noise integration (1/f noise diverges at 0 Hz).",
+        example="1 Hz"),
+)
+
+#: Sections in file order, with whether each must be present.
+SECTIONS = {
+    "design": False,
+    "photodiode": True,
+    "photodiode.junction": True,
+    "amplifier": True,
+    "feedback": True,
+    "operating_point": True,
+    "signal": False,
+    "post_filter": False,
+    "limits": False,
+    "analysis": False,
+}
+
+#: Selector key of sections whose keys depend on a model choice.
+_SELECTOR = {"photodiode.junction": "model", "photodiode": "model"}
+
+def section_keys(section: str) -> list[Key]:
+    """The schema rows of one section, in order."""
+    return [k for k in SCHEMA if k.section == section]
+
+
+def _flatten(doc: dict, source: str) -> dict[str, dict]:
+    """TOML document -> {section path: {key: value}}; unknown sections are errors."""
+    out: dict[str, dict] = {}
+
+    def walk(table: dict, path: str):
+        values = {}
+        for key, value in table.items():
+            sub = f"{path}.{key}" if path else key
+            if isinstance(value, dict):
+                if sub not in SECTIONS:
+                    raise DesignError(f"{source}unknown section [{sub}]; known sections: "
+                                      f"{', '.join(f'[{s}]' for s in SECTIONS)}"
+                                      f"{_suggest(sub, SECTIONS)}", parameter=sub)
+                walk(value, sub)
+            elif not path:
+                raise DesignError(f"{source}key '{key}' outside any section; put it under one of "
+                                  f"{', '.join(f'[{s}]' for s in SECTIONS)}", parameter=key)
+            else:
+                values[key] = value
+        if path:
+            out[path] = values
+
+    walk(doc, "")
+    return out
+
+
+def _suggest(word: str, options) -> str:
+    close = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
+    return f" (did you mean '{close[0]}'?)" if close else ""
+
+
+def _expected(key: Key) -> str:
+    if key.kind == "text":
+        return "one of " + ", ".join(repr(c) for c in key.choices) if key.choices else "text"
+    if key.kind == "integer":
+        return "an integer"
+    if key.kind == "list":
+        return f"a list, each {_dimension_name(key.unit)} in {key.unit}, e.g. {key.example}"
+    if key.kind == "ratio":
+        return f"a number or decibels, e.g. '{key.example}'"
+    if key.unit == "":
+        return f"a plain number, e.g. {key.example}"
+    if key.unit == "bit/s":
+        return f"a bit rate in bit/s, e.g. '{key.example}'"
+    return f"{_dimension_name(key.unit)} in {key.unit}, e.g. '{key.example}'"
+
+
+_CHECKS = {
+    ">0": (lambda v: v > 0, "> 0"),
+    ">=0": (lambda v: v >= 0, ">= 0"),
+    ">1": (lambda v: v > 1, "> 1"),
+    "0..1": (lambda v: 0 <= v <= 1, "0 to 1"),
+    "(0..1]": (lambda v: 0 < v <= 1, "> 0 and <= 1"),
+    "(0..1)": (lambda v: 0 < v < 1, "> 0 and < 1"),
+    "(0..0.5)": (lambda v: 0 < v < 0.5, "> 0 and < 0.5"),
+}
+
+
+def _parse_value(key: Key, raw, source: str):
+    """One raw TOML value -> SI value (float, int, str or tuple); errors name the key."""
+    prefix = f"{source}{key.where}"
+    if key.kind == "text":
+        if not isinstance(raw, str):
+            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+        value = raw.strip()
+        if key.choices and value.lower() not in key.choices:
+            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}"
+                              f"{_suggest(value.lower(), key.choices)}", parameter=key.where)
+        return value.lower() if key.choices else value
+    if key.kind == "integer":
+        if isinstance(raw, bool) or not isinstance(raw, int):
+            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+        return int(raw)
+    if key.kind == "list":
+        if not isinstance(raw, list):
+            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+        return tuple(_parse_scalar(key, item, prefix) for item in raw)
+    if key.kind == "table" and isinstance(raw, list):
+        pairs = []
+        for item in raw:
+            if not (isinstance(item, list) and len(item) == 2):
+                raise DesignError(f"{prefix} = {raw!r}: expected a list of [wavelength, "
+                                  f"value] pairs, e.g. [[\"850 nm\", \"{key.example}\"]]",
+                                  parameter=key.where)
+            wl = _parse_scalar(Key(key.section, key.name, "m", check=">0", example="850 nm"),
+                               item[0], prefix)
+            pairs.append((wl, _parse_scalar(key, item[1], prefix)))
+        return tuple(p[0] for p in pairs), tuple(p[1] for p in pairs)
+    if key.kind == "ratio" and isinstance(raw, str) and raw.strip().endswith("dB"):
+        db = _parse_scalar(Key(key.section, key.name, ""), raw.strip()[:-2], prefix)
+        return _checked(key, 10.0 ** (db / 10.0), prefix)
+    return _parse_scalar(key, raw, prefix)
+
+
+def _parse_scalar(key: Key, raw, prefix: str) -> float:
+    if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
+        raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+    try:
+        value = parse_quantity(raw, key.unit or None)
+    except DesignError as exc:
+        raise DesignError(f"{prefix}: {exc}; expected {_expected(key)}",
+                          parameter=key.where) from None
+    if key.unit == "" and isinstance(raw, str) and not _is_plain_number(raw):
+        # parse_quantity without a unit accepts any dimension; a plain number must be plain
+        raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+    if math.isnan(value):
+        raise DesignError(f"{prefix} = nan: expected {_expected(key)}", parameter=key.where)
+    return _checked(key, value, prefix)
+
+
+def _is_plain_number(text: str) -> bool:
+    try:
+        float(text)
+        return True
+    except ValueError:
+        return False
+
+
+def _checked(key: Key, value: float, prefix: str) -> float:
+    if key.check:
+        ok, text = _CHECKS[key.check]
+        if not ok(value):
+            unit = f" {key.unit}" if key.unit else ""
+            raise DesignError(f"{prefix} = {value:.6g}{unit} is out of range; valid range: "
+                              f"{text}{unit}", parameter=key.where)
+    return value
+
+
+def read_design(source, name: str = "") -> dict[str, dict]:
+    """Parse and validate a design document without building any object.
+
+    Parameters
+    ----------
+    source : dict
+        The TOML document as parsed by :mod:`tomllib`.
+    name : str
+        File name used as a prefix in error messages.
+
+    Returns
+    -------
+    dict
+        ``{section: {argument: SI value}}`` for every section present (absent optional
+        keys take their defaults; keys with a ``None`` default are left out).
+    """
+    where = f"{name}: " if name else ""
+    sections = _flatten(source, where)
+    for section, required in SECTIONS.items():
+        if required and section not in sections:
+            raise DesignError(f"{where}missing section [{section}]", parameter=section)
+    spec: dict[str, dict] = {}
+    for section, values in sections.items():
+        keys = section_keys(section)
+        selector = _SELECTOR.get(section)
+        chosen = None
+        if selector and any(k.name == selector for k in keys):
+            sel_key = next(k for k in keys if k.name == selector)
+            if selector not in values:
+                raise DesignError(f"{where}missing key {sel_key.where}: expected "
+                                  f"{_expected(sel_key)}", parameter=sel_key.where)
+            chosen = _parse_value(sel_key, values[selector], where)
+        applicable = {k.name: k for k in keys if not k.when or chosen in k.when}
+        for key in values:
+            if key not in applicable:
+                other = [k for k in keys if k.name == key]
+                if other:
+                    raise DesignError(f"{where}[{section}] {key}: does not apply to {selector} = "
+                                      f"'{chosen}' (only to {', '.join(other[0].when)})",
+                                      parameter=f"[{section}] {key}")
+                raise DesignError(f"{where}[{section}] unknown key '{key}'"
+                                  f"{_suggest(key, applicable)}; known keys: "
+                                  f"{', '.join(applicable)}", parameter=f"[{section}] {key}")
+        parsed = {}
+        for key in applicable.values():
+            if key.name in values:
+                parsed[key.arg] = _parse_value(key, values[key.name], where)
+            elif key.default is REQUIRED:
+                raise DesignError(f"{where}missing key {key.where}: expected {_expected(key)}",
+                                  parameter=key.where)
+            elif key.default is not None and key.default is not OMIT:
+                parsed[key.arg] = key.default
+        spec[section] = parsed
+    return spec
