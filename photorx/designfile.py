@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import re
 import sys
 import textwrap
 from decimal import Decimal
@@ -66,18 +67,19 @@ def _build(spec: dict, where: str = ""):
     from .circuit.filters import PostFilter
     from .circuit.tia import Tia
 
-    def make(section, factory, **kwargs):
+    def make(sections, factory, **kwargs):
         try:
             return factory(**kwargs)
         except DesignError as exc:
-            raise DesignError(f"{where}[{section}] {exc}",
-                              parameter=f"[{section}] {exc.parameter or ''}".strip()) from None
+            raise _in_file(exc, sections, where) from None
 
     jspec = dict(spec["photodiode.junction"])
-    if jspec["model"] != "parametric":
+    j_sections = ("photodiode.junction",)
+    if jspec["model"] != "parametric" and "temperature" not in jspec:
         # the junction runs at the operating temperature unless the file says otherwise
-        jspec.setdefault("temperature", spec["operating_point"]["temperature"])
-    junction = make("photodiode.junction", _junction_factory, **jspec)
+        jspec["temperature"] = spec["operating_point"]["temperature"]
+        j_sections = ("photodiode.junction", "operating_point")
+    junction = make(j_sections, _junction_factory, **jspec)
     photodiode = make("photodiode", _photodiode_factory, junction=junction, **spec["photodiode"])
     amp = make("amplifier", OpAmp, **spec["amplifier"])
     tia = make("feedback", Tia, amp=amp, **spec["feedback"])
@@ -87,8 +89,27 @@ def _build(spec: dict, where: str = ""):
     kwargs.update(spec.get("signal", {}))
     kwargs.update(spec.get("limits", {}))
     kwargs.update(spec.get("analysis", {}))
-    return make("operating_point", Receiver, photodiode=photodiode, tia=tia, post_filter=post,
-                **kwargs)
+    return make(("operating_point", "signal", "limits", "analysis"), Receiver,
+                photodiode=photodiode, tia=tia, post_filter=post, **kwargs)
+
+
+def _in_file(exc: DesignError, sections, where: str) -> DesignError:
+    """A constructor's DesignError restated with the file's key and section path.
+
+    The constructor names its argument (``given_responsivity``); the file's key may differ
+    (``responsivity``), so the message is rewritten with the key and prefixed with
+    ``[section]``.
+    """
+    sections = (sections,) if isinstance(sections, str) else tuple(sections)
+    message, section = str(exc), sections[0]
+    keys = [k for k in SCHEMA if k.section in sections]
+    for key in keys:
+        if key.arg == exc.parameter:
+            section = key.section  # the last listed section that has it: where it came from
+        if key.arg != key.name:
+            message = re.sub(rf"\b{re.escape(key.arg)}\b", key.name, message)
+    name = next((k.name for k in keys if k.arg == exc.parameter), exc.parameter or "")
+    return DesignError(f"{where}[{section}] {message}", parameter=f"[{section}] {name}".strip())
 
 
 def _junction_factory(model, material=None, **kwargs):
@@ -103,7 +124,7 @@ def _junction_factory(model, material=None, **kwargs):
     try:
         mat = get_material(material)
     except DesignError as exc:
-        raise DesignError(f"material: {exc}", parameter="material") from None
+        raise DesignError(str(exc), parameter="material") from None
     return cls(material=mat, **kwargs)
 
 

@@ -356,8 +356,8 @@ def _parse_scalar(key: Key, raw, prefix: str) -> float:
     try:
         value = parse_quantity(raw, key.unit or None)
     except DesignError as exc:
-        raise DesignError(f"{prefix}: {exc}; expected {_expected(key)}",
-                          parameter=key.where) from None
+        hint = "" if "was expected" in str(exc) else f"; expected {_expected(key)}"
+        raise DesignError(f"{prefix}: {exc}{hint}", parameter=key.where) from None
     if key.unit == "" and isinstance(raw, str) and not _is_plain_number(raw):
         # parse_quantity without a unit accepts any dimension; a plain number must be plain
         raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)

@@ -8,6 +8,7 @@ run of the installed console script in a subprocess. Exit codes follow common pr
 from __future__ import annotations
 
 import json
+import re
 import shutil
 import subprocess
 import sys
@@ -137,7 +138,9 @@ def test_design_error_names_key(capsys, tmp_path):
     from photorx.designfile import design_template
 
     path = tmp_path / "bad.toml"
-    path.write_text(design_template().replace('cf = "40 fF"', 'cf = "40 kohm"'))
+    text = re.sub(r'(?m)^cf = ".*"$', 'cf = "40 kohm"', design_template())
+    assert 'cf = "40 kohm"' in text
+    path.write_text(text)
     code, _, err = run(capsys, "budget", str(path))
     assert code == 2
     assert_one_line_error(err)

@@ -258,3 +258,133 @@ def test_amplifier_keys_match_constructor():
 def test_spec_arrays_cannot_be_written():
     with pytest.raises(DesignError, match="array"):
         dfile._scalar(np.array([1.0, 2.0]), "[operating_point] reverse_bias")
+
+
+# -- whole designs: build, round trip, constructor errors with the file's key ---------------------
+@pytest.fixture(scope="module")
+def demos():
+    return {name: dfile.load_design(name) for name in dfile.DEMO_DESIGNS}
+
+
+def test_demo_designs_load(demos):
+    from photorx.analysis.receiver import Receiver
+
+    for name, rx in demos.items():
+        assert isinstance(rx, Receiver), name
+    rx = demos["ingaas-pin-1310"]
+    assert rx == dfile.demo_receiver() == dfile.load_design()
+    # the file's values reach the objects unchanged (exact decimals, rtol=0)
+    assert rx.tia.rf == 3e3 and rx.tia.cf == 60e-15 and rx.wavelength == 1310e-9
+    assert rx.photodiode.junction.area == 5000e-12
+    assert rx.photodiode.junction.material.name == "InGaAs"
+    assert rx.post_filter.kind == "bessel" and rx.post_filter.cutoff == 1.2e9
+    assert rx.extinction_ratio == pytest.approx(10.0, rel=1e-15)
+    # the junction runs at the operating temperature
+    photometer = demos["si-photometer"]
+    assert photometer.photodiode.junction.temperature == photometer.temperature == 295.0
+
+
+@pytest.mark.parametrize("name", list(dfile.DEMO_DESIGNS))
+def test_round_trip_is_exact_and_text_stable(demos, name, tmp_path):
+    rx = demos[name]
+    path = dfile.save_design(rx, tmp_path / f"{name}.toml", name=name)
+    again = dfile.load_design(path)
+    assert again == rx
+    text = path.read_text()
+    assert dfile.dumps_design(again, name=name) == text
+    assert dfile.dumps_design(dfile.loads_design(text), name=name) == text
+
+
+def test_round_trip_of_changed_values(demos, tmp_path):
+    # values with long binary expansions survive: the writer uses repr's digits
+    import dataclasses
+
+    from photorx.circuit.filters import PostFilter
+
+    rx = demos["ingaas-pin-1310"]
+    amp = dataclasses.replace(rx.tia.amp, gbw=1 / 3 * 1e10, poles=(2.2e10, 3.3e10))
+    tia = dataclasses.replace(rx.tia, amp=amp, rf=4.7e3, cf=0.1 + 0.2e-12)
+    junction = dataclasses.replace(rx.photodiode.junction, temperature=310.0)
+    pd_ = dataclasses.replace(rx.photodiode, junction=junction, series_resistance=12.5,
+                              leakage_resistance=1e12)
+    changed = dataclasses.replace(rx, tia=tia, photodiode=pd_, reverse_bias=-0.2,
+                                  optical_power=1.2345678901234567e-6,
+                                  post_filter=PostFilter("butterworth", 3, 9.9e8),
+                                  max_dark_current=None, bit_rate=None)
+    path = dfile.save_design(changed, tmp_path / "changed.toml")
+    assert dfile.load_design(path) == changed
+    text = path.read_text()
+    assert "temperature = \"310 K\"" in text      # the junction's own temperature is kept
+    assert "max_dark_current" not in text and "bit_rate" not in text
+
+
+def test_datasheet_style_design_round_trips(tmp_path):
+    text = BASE.replace(
+        '''model = "pin"
+material = "InGaAs"
+area = "1250 um^2"
+i_thickness = "2 um"
+i_doping = "5e14 cm^-3"
+p_doping = "1e18 cm^-3"
+n_doping = "1e18 cm^-3"''', '''model = "parametric"
+cj0 = "0.5 pF"
+vj = "0.7 V"
+m = 0.5''').replace("[photodiode]\n", '''[photodiode]
+responsivity = [["1270 nm", "0.85 A/W"], ["1310 nm", "0.9 A/W"], ["1550 nm", "0.95 A/W"]]
+dark_current = "0.5 nA"
+dark_current_bias = "5 V"
+intrinsic_bandwidth = "8 GHz"
+''')
+    rx = dfile.loads_design(text, "ds.toml")
+    pd_ = rx.photodiode
+    assert pd_.given_responsivity == ((1270e-9, 1310e-9, 1550e-9), (0.85, 0.9, 0.95))
+    assert pd_.reference_dark_current == 0.5e-9 and pd_.intrinsic_bandwidth == 8e9
+    path = dfile.save_design(rx, tmp_path / "ds.toml")
+    assert dfile.load_design(path) == rx
+    assert '["1310 nm", "0.9 A/W"]' in path.read_text().replace("\n    ", " ")
+
+
+def test_template_is_the_default_demo():
+    rx = dfile.loads_design(dfile.design_template(), "template.toml")
+    assert rx == dfile.demo_receiver()
+
+
+@pytest.mark.parametrize("old, new, words", [
+    # constructor checks, restated with the file's section and key
+    ('temperature = "300 K"', 'temperature = "5000 K"',
+     ["[operating_point] temperature", "5000", "[50, 600]"]),
+    ('material = "InGaAs"', 'material = "Unobtainium"',
+     ["[photodiode.junction] material", "Unobtainium", "Si"]),
+    ('i_doping = "5e14 cm^-3"', 'i_doping = "5e19 cm^-3"', ["[photodiode.junction] i_doping"]),
+    ("order = 4", "order = 9", ["[post_filter] order", "1 to 6"]),
+    ("[photodiode]\n", '[photodiode]\ndark_current = "1 nA"\n',
+     ["[photodiode] dark_current_bias", "required with dark_current"]),
+])
+def test_constructor_errors_name_the_file_key(old, new, words):
+    assert old in BASE
+    with pytest.raises(DesignError) as err:
+        dfile.loads_design(BASE.replace(old, new, 1), "t.toml")
+    message = str(err.value)
+    assert message.startswith("t.toml: [")
+    for w in words:
+        assert w in message, (w, message)
+
+
+def test_parametric_junction_needs_responsivity():
+    text = BASE.replace('model = "pin"', 'model = "parametric"\ncj0 = "1 pF"\nvj = "0.7 V"\nm = 0.5')
+    text = "\n".join(line for line in text.splitlines()
+                     if not line.startswith(("material", "area", "i_", "p_doping", "n_doping")))
+    with pytest.raises(DesignError) as err:
+        dfile.loads_design(text, "t.toml")
+    # the constructor's argument (given_responsivity) is restated as the file key
+    assert "[photodiode] responsivity is required" in str(err.value)
+    assert "given_responsivity" not in str(err.value)
+
+
+def test_array_receiver_cannot_be_saved(demos, tmp_path):
+    from photorx.analysis.parameters import with_parameters
+
+    rx = with_parameters(demos["ingaas-pin-1310"], reverse_bias=np.array([1.0, 2.0]))
+    with pytest.raises(DesignError, match="reverse_bias is an array"):
+        dfile.save_design(rx, tmp_path / "x.toml")
+    assert not (tmp_path / "x.toml").exists()

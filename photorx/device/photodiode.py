@@ -277,9 +277,9 @@ class Photodiode:
         return hasattr(j, "material") and callable(getattr(j, "depletion_width", None))
 
     @property
-    def temperature(self) -> float:
-        """Temperature of the junction [K] (300 K for a parametric junction)."""
-        return float(getattr(self.junction, "temperature", 300.0))
+    def temperature(self):
+        """Temperature of the junction [K] (300 K for a parametric junction); may be an array."""
+        return _out(np.asarray(getattr(self.junction, "temperature", 300.0), dtype=float))
 
     @property
     def material(self):

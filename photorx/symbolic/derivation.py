@@ -25,7 +25,7 @@ import sympy as sp
 from .. import constants as _const
 from ..errors import DesignError
 
-__all__ = ["Step", "SymbolInfo", "Derivation", "q", "k_B", "epsilon_0", "h", "c_0", "CONSTANTS"]
+__all__ = ["Step", "SymbolInfo", "Derivation", "eq", "q", "k_B", "epsilon_0", "h", "c_0", "CONSTANTS"]
 
 #: elementary charge, Boltzmann constant and vacuum permittivity as sympy symbols
 q = sp.Symbol("q", positive=True)
@@ -45,6 +45,11 @@ _CONSTANT_INFO = {
     h: ("Planck constant", "J s"),
     c_0: ("speed of light in vacuum", "m/s"),
 }
+
+
+def eq(lhs, rhs) -> sp.Equality:
+    """An unevaluated equation ``lhs = rhs``: a result shown with its own symbol on the left."""
+    return sp.Eq(lhs, rhs, evaluate=False)
 
 
 @dataclass(frozen=True)

@@ -24,7 +24,7 @@ from functools import lru_cache
 
 import sympy as sp
 
-from .derivation import Derivation, Step, epsilon_0, k_B, q
+from .derivation import Derivation, Step, eq, k_B, q
 
 __all__ = [
     "abrupt_junction",
@@ -170,10 +170,12 @@ def abrupt_junction() -> Derivation:
     return Derivation(
         title="Abrupt p-n junction from Poisson's equation",
         steps=steps,
-        results={"depletion_width": w, "x_n": xn_sol, "x_p": xp_val, "peak_field": peak,
-                 "charge": charge, "capacitance": cap, "capacitance_eps_a_over_w": eps_s * area / w,
-                 "identity_residual": identity, "field": field, "potential": potential,
-                 "built_in_potential": vbi, "depletion_width_one_sided": w_one},
+        results={"depletion_width": eq(W, w), "x_n": eq(x_n, xn_sol), "x_p": eq(x_p, xp_val),
+                 "peak_field": eq(E_max, peak), "charge": eq(Q_sym, charge),
+                 "capacitance": eq(C_sym, cap), "capacitance_eps_a_over_w": eps_s * area / w,
+                 "identity_residual": identity, "field": eq(E_sym(x), field),
+                 "potential": eq(psi_sym(x), potential), "built_in_potential": eq(V_bi, vbi),
+                 "depletion_width_one_sided": w_one},
         symbols=JUNCTION_SYMBOLS,
         assumptions=_DEPLETION + ("Valid for V_r > -V_bi (the depletion region must exist); "
                                   "near and beyond flat band the depletion approximation fails.",),
@@ -218,9 +220,11 @@ def linearly_graded_junction() -> Derivation:
     return Derivation(
         title="Linearly graded junction from Poisson's equation",
         steps=steps,
-        results={"depletion_width": w_sol, "capacitance": cap, "capacitance_eps_a_over_w":
-                 eps_s * area / w_sol, "charge": charge, "peak_field": peak,
-                 "field": _piecewise([fields[0].subs(W, w_sol)], [(-w_sol / 2, w_sol / 2, None)]),
+        results={"depletion_width": eq(W, w_sol), "capacitance": eq(C_sym, cap),
+                 "capacitance_eps_a_over_w": eps_s * area / w_sol, "charge": eq(Q_sym, charge),
+                 "peak_field": eq(E_max, peak),
+                 "field": eq(E_sym(x), _piecewise([fields[0].subs(W, w_sol)],
+                                                  [(-w_sol / 2, w_sol / 2, None)])),
                  "identity_residual": identity},
         symbols=JUNCTION_SYMBOLS,
         assumptions=_DEPLETION + ("V_bi is taken as given; for the graded junction it depends "
@@ -290,8 +294,8 @@ def pin_junction() -> Derivation:
     return Derivation(
         title="PIN junction below and above punch-through",
         steps=steps,
-        results={"depletion_width": w_pw, "capacitance": eps_s * area / w_pw,
-                 "punch_through_voltage": vpt, "depletion_width_below": w_below,
+        results={"depletion_width": eq(W, w_pw), "capacitance": eq(C_sym, eps_s * area / w_pw),
+                 "punch_through_voltage": eq(V_pt, vpt), "depletion_width_below": w_below,
                  "depletion_width_above": w_above, "capacitance_below": cap_below,
                  "capacitance_above": cap_above, "x_n_above": xn_a,
                  "identity_residual_above": identity_a},
@@ -338,7 +342,8 @@ def diffusion_capacitance() -> Derivation:
     return Derivation(
         title="Diffusion capacitance from the stored charge",
         steps=steps,
-        results={"capacitance": c_approx, "capacitance_exact": c_i, "relative_error": rel},
+        results={"capacitance": eq(C_diff, c_approx), "capacitance_exact": c_i,
+                 "relative_error": rel},
         symbols={**JUNCTION_SYMBOLS, t: ("time", "s")},
         assumptions=("Quasi-static charge control (frequencies well below 1/tau).",
                      "For a long-base diode the small-signal diffusion capacitance carries an "

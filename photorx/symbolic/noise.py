@@ -23,7 +23,7 @@ from functools import lru_cache
 
 import sympy as sp
 
-from .derivation import Derivation, Step, c_0, h, k_B, q
+from .derivation import Derivation, Step, c_0, eq, h, k_B, q
 from .tia import TIA_SYMBOLS, tia_second_order
 from .tia import A, A_0, C_d, C_f, C_i, C_in, GBW, R_f, R_sh, Q, s, v_n, v_o, e_n
 
@@ -140,9 +140,10 @@ def tia_input_noise() -> Derivation:
     return Derivation(
         title="Input-referred current noise of the transimpedance amplifier",
         steps=steps,
-        results={"input_noise_psd": psd, "input_noise_density": sp.sqrt(psd), "en_term": en_term,
+        results={"input_noise_psd": eq(S_i, psd), "input_noise_density": sp.sqrt(psd),
+                 "en_term": en_term,
                  "en_transfer": referred, "input_noise_psd_tidy": currents + en_tidy,
-                 "noise_corner": corner},
+                 "noise_corner": eq(f_c, corner)},
         symbols=NOISE_SYMBOLS,
         assumptions=("R_s = 0 (the series resistance adds its own term and splits the "
                      "injection points).",
@@ -212,7 +213,7 @@ def tia_output_noise() -> Derivation:
     return Derivation(
         title="Integrated output noise of the second-order transimpedance response",
         steps=steps,
-        results={"output_noise_ms": ms, "output_noise_rms": sp.sqrt(ms),
+        results={"output_noise_ms": eq(v_rms ** 2, ms), "output_noise_rms": eq(v_rms, sp.sqrt(ms)),
                  "output_noise_ms_circuit": circuit, "white_integral": white, "f2_integral": f2,
                  "enbw": white, "input_noise_rms": sp.sqrt(ms) / Z_0},
         symbols={**NOISE_SYMBOLS, p11: ("Gramian entry", "-"), p12: ("Gramian entry", "-"),
@@ -250,8 +251,8 @@ def nep() -> Derivation:
     return Derivation(
         title="Noise-equivalent power",
         steps=steps,
-        results={"nep": p_sol.subs(r, responsivity), "nep_density": sp.sqrt(s_i) / responsivity,
-                 "responsivity": responsivity, "nep_of_responsivity": p_sol},
+        results={"nep": eq(NEP, p_sol.subs(r, responsivity)), "nep_density": sp.sqrt(s_i) / responsivity,
+                 "responsivity": eq(r, responsivity), "nep_of_responsivity": p_sol},
         symbols={**NOISE_SYMBOLS, i_rms: ("input-referred rms noise current", "A"),
                  s_i: ("input-referred current noise PSD", "A^2/Hz"), r: ("responsivity", "A/W")},
         assumptions=("Power SNR of one in the electrical domain, (R P)^2 = i_rms^2; some texts "

@@ -23,7 +23,7 @@ from functools import lru_cache
 
 import sympy as sp
 
-from .derivation import Derivation, Step
+from .derivation import Derivation, Step, eq
 
 __all__ = [
     "tia_nodal_analysis",
@@ -123,8 +123,8 @@ def tia_nodal_analysis() -> Derivation:
     zt = sp.factor(sp.cancel(sol[v_o] / i_ph))
     # feedback factor: the fraction of v_o that returns to the summing node with i_ph = 0
     kcl_n_open = kcl_n.subs(v_j, v_n * _Z_d / (_Z_d + R_s))
-    beta = sp.factor(sp.cancel(sp.solve(kcl_n_open, v_n)[0] / v_o))
-    loop = A * beta
+    beta_expr = sp.factor(sp.cancel(sp.solve(kcl_n_open, v_n)[0] / v_o))
+    loop = A * beta_expr
     # noise gain: output per volt at the non-inverting input, in the limit A -> infinity
     eqs_e = _nodal_equations(e_n)
     sol_e = sp.solve([eq.subs(i_ph, 0) for eq in eqs_e], [v_j, v_n, v_o], dict=True)[0]
@@ -137,7 +137,7 @@ def tia_nodal_analysis() -> Derivation:
         Step("Amplifier: output = -A(s) times the inverting-input voltage", amp),
         Step("Solve the three linear equations for $v_o / i_{ph}$", sp.Eq(Z_t, zt)),
         Step("Feedback factor: $v_n / v_o$ with the photocurrent off (diode branch as a divider)",
-             sp.Eq(beta, beta)),
+             sp.Eq(beta, beta_expr)),
         Step("Loop gain", sp.Eq(T_loop, loop)),
         Step("Gain from a source at the non-inverting input, finite $A$", sp.Eq(v_o / e_n, ng_finite)),
         Step("Noise gain: its limit for $A \\to \\infty$, equal to $1/\\beta$",
@@ -148,8 +148,9 @@ def tia_nodal_analysis() -> Derivation:
     return Derivation(
         title="Transimpedance amplifier by nodal analysis",
         steps=steps,
-        results={"transimpedance": zt, "feedback_factor": beta, "loop_gain": loop,
-                 "noise_gain": ng, "transimpedance_factored": textbook},
+        results={"transimpedance": eq(Z_t, zt), "feedback_factor": eq(beta, beta_expr),
+                 "loop_gain": eq(T_loop, loop), "noise_gain": eq(G_n, ng),
+                 "transimpedance_factored": textbook},
         symbols=TIA_SYMBOLS,
         assumptions=("Linear small-signal circuit; the amplifier is a voltage-controlled voltage "
                      "source of gain -A(s) with infinite input and zero output impedance; "
@@ -169,8 +170,8 @@ def _with_amplifier(gain, title, extra_refs=()):
             Step("Substitute into the nodal solution", sp.Eq(Z_t, zt)),
             Step("Loop gain", sp.Eq(T_loop, loop)),
         ],
-        results={"transimpedance": zt, "loop_gain": loop, "noise_gain": nodal["noise_gain"],
-                 "open_loop_gain": gain},
+        results={"transimpedance": eq(Z_t, zt), "loop_gain": eq(T_loop, loop),
+                 "noise_gain": eq(G_n, nodal["noise_gain"]), "open_loop_gain": eq(A, gain)},
         symbols=TIA_SYMBOLS,
         assumptions=nodal.assumptions,
         references=_REFS + tuple(extra_refs),
@@ -269,9 +270,10 @@ def tia_second_order() -> Derivation:
     return Derivation(
         title="Transimpedance amplifier: canonical second-order form",
         steps=steps,
-        results={"transimpedance": zt_ci, "dc_transimpedance": z0, "natural_frequency": f0,
-                 "omega_0": w0, "q": q_expr, "damping": 1 / (2 * q_expr), "bandwidth": bandwidth,
-                 "peaking": peaking.subs(Q, q_expr), "natural_frequency_gbw_limit": f0_lim,
+        results={"transimpedance": eq(Z_t, zt_ci), "dc_transimpedance": eq(Z_0, z0),
+                 "natural_frequency": eq(f_0, f0), "omega_0": eq(omega_0, w0), "q": eq(Q, q_expr),
+                 "damping": eq(zeta, 1 / (2 * q_expr)), "bandwidth": eq(f_3dB, bandwidth),
+                 "peaking": eq(M_p, peaking.subs(Q, q_expr)), "natural_frequency_gbw_limit": f0_lim,
                  "q_gbw_limit": q_lim, "bandwidth_ratio": ratio, "peaking_of_q": peaking},
         symbols=TIA_SYMBOLS,
         assumptions=("Dominant-pole amplifier (no further poles), R_s = 0, no shunt resistance.",
@@ -427,7 +429,7 @@ def tia_phase_margin() -> Derivation:
     return Derivation(
         title="Phase margin of the transimpedance loop and its relation to Q",
         steps=steps,
-        results={"phase_margin": pm, "crossover": w_c / (2 * sp.pi),
+        results={"phase_margin": eq(pm_sym, pm), "crossover": w_c / (2 * sp.pi),
                  "phase_margin_of_zeta": pm2, "phase_margin_of_q": pm2_q,
                  "q_of_phase_margin": q_pm, "loop_gain": loop},
         symbols={**TIA_SYMBOLS, pm_sym: ("phase margin", "deg"),

@@ -14,6 +14,7 @@ from hypothesis import strategies as st
 
 import photorx as prx
 from photorx.constants import k as K_B
+from photorx.constants import eps0 as sc_eps0
 from photorx.constants import q as Q_E
 from photorx.device import junction as eng
 from photorx.symbolic import (
@@ -204,3 +205,34 @@ def test_scalar_and_array_inputs():
             epsilon_s=SI.permittivity)
     assert arr.shape == (2, 4)
     assert arr[0, 1] == pytest.approx(float(w(1e24, 1e21, 0.8, 10 / 3, SI.permittivity)), rel=1e-15)
+
+
+def _examples():
+    import tomllib
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[2] / "reference" / "abrupt_junction_examples.toml"
+    return tomllib.loads(path.read_text())["example"]
+
+
+@pytest.mark.parametrize("ex", _examples(), ids=lambda ex: ex["source"][:40])
+def test_abrupt_closed_forms_reproduce_published_examples(ex):
+    # reference/abrupt_junction_examples.toml (Neamen 2003 ch. 7; Streetman and Banerjee 2006
+    # Ex. 5-1/5-2; Sze 2002 ch. 4; all from memory), each at its own rtol (1 %): the books round
+    # kT/q to 0.0259 V, so the built-in potential is evaluated at that thermal voltage and the
+    # electrostatics at the published Vbi
+    dv = abrupt_junction()
+    cm3, eps = 1e6, ex["eps_r"] * sc_eps0
+    na, nd, rtol = ex["na"] * cm3, ex["nd"] * cm3, ex["rtol"]
+    t_book = 0.0259 * Q_E / K_B
+    vbi = dv.lambdify("built_in_potential")(N_A=na, N_D=nd, n_i=ex["ni"] * cm3, T=t_book)
+    assert vbi == pytest.approx(ex["vbi"], rel=rtol)
+    args = dict(N_A=na, N_D=nd, V_bi=ex["vbi"], V_r=ex["v_r"], epsilon_s=eps)
+    assert dv.lambdify("depletion_width")(**args) == pytest.approx(ex["w_um"] * 1e-6, rel=rtol)
+    if "x_n_um" in ex:
+        assert dv.lambdify("x_n")(**args) == pytest.approx(ex["x_n_um"] * 1e-6, rel=rtol)
+    if "c_per_cm2" in ex:
+        assert dv.lambdify("capacitance")(A=1e-4, **args) == pytest.approx(ex["c_per_cm2"], rel=rtol)
+    if "peak_field_v_per_cm" in ex:
+        assert dv.lambdify("peak_field")(**args) == pytest.approx(ex["peak_field_v_per_cm"] * 100,
+                                                                  rel=rtol)
