@@ -21,6 +21,7 @@ of a saved file is stable under load/save.
 from __future__ import annotations
 
 import dataclasses
+import json
 import math
 import re
 import sys
@@ -305,35 +306,42 @@ def _is_default(obj, argument: str, value) -> bool:
 
 
 def dumps_design(rx, name: str = "", description: str = "") -> str:
-    """Design-file text of a receiver (stable: the same receiver always gives the same text)."""
-    import tomli_w
+    """Design-file text of a receiver (stable: the same receiver always gives the same text).
 
+    Sections and keys come in schema order; lists are written inline; keys whose
+    constructor default is in force (and optional keys without a value) are left out.
+    """
     values = _design_values(rx)
     if name or description:
-        values["design"] = {"name": name, "description": description}
-    doc: dict = {}
+        values["design"] = {k: v for k, v in (("name", name), ("description", description)) if v}
+    lines = ["# photorx design file (TOML); quantities carry their units. "
+             "See `photorx template`.", ""]
     for section in SECTIONS:
         if section not in values:
             continue
-        table = {}
-        for key in _keys(section):
-            if key.name in values[section]:
-                table[key.name] = _written(key, values[section][key.name])
-        if not table and not SECTIONS[section]:
+        rows = [f"{key.name} = {_toml_value(_written(key, values[section][key.name]))}"
+                for key in _keys(section) if key.name in values[section]]
+        if not rows and not SECTIONS[section]:
             continue  # an optional section with nothing to say
-        node = doc
-        for part in section.split(".")[:-1]:
-            node = node.setdefault(part, {})
-        node[section.split(".")[-1]] = {**node.get(section.split(".")[-1], {}), **table}
-    header = "# photorx design file (TOML); quantities carry their units. See `photorx template`.\n\n"
-    return header + tomli_w.dumps(_order(doc))
+        lines += [f"[{section}]", *rows, ""]
+    return "\n".join(lines)
 
 
-def _order(doc: dict) -> dict:
-    """Scalars before sub-tables at every level (TOML requires it for readable output)."""
-    scalars = {k: v for k, v in doc.items() if not isinstance(v, dict)}
-    tables = {k: _order(v) for k, v in doc.items() if isinstance(v, dict)}
-    return {**scalars, **tables}
+def _toml_value(value) -> str:
+    """TOML text of a written value: string, integer, float (inf allowed) or inline list."""
+    if isinstance(value, str):
+        return json.dumps(value, ensure_ascii=False)  # JSON strings are TOML basic strings
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        if math.isinf(value):
+            return "inf" if value > 0 else "-inf"
+        return repr(value)
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
+    raise DesignError(f"cannot write {value!r} to a design file")
 
 
 def save_design(rx, path, name: str = "", description: str = "") -> Path:
@@ -366,8 +374,6 @@ def design_template() -> str:
     Optional keys left at their defaults appear commented out with an example value; the
     template itself loads as a valid design.
     """
-    import tomli_w
-
     demo = demo_design_path(DEFAULT_DESIGN)
     doc = tomllib.loads(demo.read_text(encoding="utf-8"))
     sections = _flatten(doc, "")
@@ -395,7 +401,7 @@ def design_template() -> str:
             lines += textwrap.wrap(f"{key.doc} ({need}; {_expected(key)})", width=88,
                                    initial_indent="# ", subsequent_indent="#   ")
             if key.name in values:
-                lines.append(tomli_w.dumps({key.name: values[key.name]}).rstrip())
+                lines.append(f"{key.name} = {_toml_value(values[key.name])}")
             else:
                 lines.append(f"# {key.name} = {_example(key)}")
         if selector and any(k.when for k in keys):

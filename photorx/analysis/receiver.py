@@ -48,6 +48,7 @@ FIGURES = {
     # speed
     "bandwidth": ("Hz", "speed", "-3 dB bandwidth of the whole chain"),
     "loop_bandwidth": ("Hz", "speed", "-3 dB bandwidth of the transimpedance stage"),
+    "photodiode_bandwidth": ("Hz", "speed", "intrinsic bandwidth of the photodiode (transit and diffusion)"),
     "transit_bandwidth": ("Hz", "speed", "transit-limited bandwidth of the photodiode"),
     "transit_time": ("s", "speed", "carrier transit time across the depletion layer"),
     "filter_bandwidth": ("Hz", "speed", "post-filter cutoff"),
@@ -284,42 +285,37 @@ class ReceiverResult:
 # ----------------------------------------------------------------------------------------
 # evaluation: calls each stage's vectorised core once
 # ----------------------------------------------------------------------------------------
-_BW_GRID = np.logspace(-4.0, 1.5, 221)  # relative to the loop bandwidth
+_BW_GRID = np.logspace(-4.0, 1.5, 221)  # relative to a scale frequency of each design
 
 
-def _chain_response(rx, pd_, f, circuit_b):
-    v = np.asarray(rx.reverse_bias, dtype=float)[..., None]
-    wl = np.asarray(rx.wavelength, dtype=float)[..., None]
-    h = pd_.intrinsic_response(f, v, wl) * transimpedance(f, **circuit_b)
-    if rx.post_filter is not None:
-        pf = rx.post_filter
-        h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
-    return h
+def _expand_circuit(circuit):
+    return {k: (tuple(np.asarray(p, dtype=float)[..., None] for p in val) if k == "poles"
+                else np.asarray(val, dtype=float)[..., None]) for k, val in circuit.items()}
 
 
-def _chain_bandwidth(rx, pd_, circuit, loop_bw, zt0):
-    """-3 dB frequency of |H_pd Zt H_filter| for every design: first crossing, then refined."""
-    shape = np.shape(loop_bw)
-    circuit_b = {k: (tuple(np.asarray(p, dtype=float)[..., None] for p in val) if k == "poles"
-                     else np.asarray(val, dtype=float)[..., None]) for k, val in circuit.items()}
-    ref = np.abs(np.asarray(zt0, dtype=float))[..., None] / np.sqrt(2.0)
-    scale = np.where(np.isfinite(loop_bw), loop_bw, 1.0)[..., None]
-    f = scale * _BW_GRID
-    mag = np.abs(_chain_response(rx, pd_, f, circuit_b))
-    below = mag < ref
+def _minus_3db(response, ref, scale, shape):
+    """First frequency where |response| falls below ref/sqrt(2), for every design.
+
+    A log grid of 40 points per decade relative to ``scale`` finds the first crossing
+    (peaking above the reference does not stop the search), then 20 bisections in log f
+    on the exact response refine it to about 1e-7 relative. NaN where no crossing exists
+    or ``scale`` is not finite (an unstable loop has no bandwidth).
+    """
+    scale = np.asarray(scale, dtype=float)
+    level = np.asarray(ref, dtype=float)[..., None] / np.sqrt(2.0)
+    f = np.where(np.isfinite(scale) & (scale > 0), scale, 1.0)[..., None] * _BW_GRID
+    below = np.abs(response(f)) < level
     has = below.any(axis=-1)
-    k = np.argmax(below, axis=-1)
-    k = np.clip(k, 1, f.shape[-1] - 1)
+    k = np.clip(np.argmax(below, axis=-1), 1, f.shape[-1] - 1)
     lo = np.take_along_axis(f, (k - 1)[..., None], -1)
     hi = np.take_along_axis(f, k[..., None], -1)
-    for _ in range(20):  # bisection in log f on the exact response: 1e-7 relative
+    for _ in range(20):
         mid = np.sqrt(lo * hi)
-        m_mid = np.abs(_chain_response(rx, pd_, mid, circuit_b))
-        lo = np.where(m_mid >= ref, mid, lo)
-        hi = np.where(m_mid >= ref, hi, mid)
-    bw = np.sqrt(lo * hi)[..., 0]
-    bw = np.where(has & np.isfinite(loop_bw), bw, np.nan)
-    return np.broadcast_to(bw, shape) if shape else bw
+        above = np.abs(response(mid)) >= level
+        lo = np.where(above, mid, lo)
+        hi = np.where(above, hi, mid)
+    bw = np.where(has & np.isfinite(scale), np.sqrt(lo * hi)[..., 0], np.nan)
+    return np.broadcast_to(bw, shape)
 
 
 def _evaluate(rx: Receiver) -> ReceiverResult:
@@ -339,13 +335,31 @@ def _evaluate(rx: Receiver) -> ReceiverResult:
                                 np.shape(rx.optical_power), np.shape(rx.temperature))
     bc = lambda x: np.broadcast_to(np.asarray(x, dtype=float), shape)  # noqa: E731
 
-    bandwidth = _chain_bandwidth(rx, pd_, circuit, bc(loop["bandwidth"]), bc(loop["dc_transimpedance"]))
-    transit_bw = bc(pd_.transit_bandwidth(v))
-    filter_bw = bc(rx.post_filter.cutoff if rx.post_filter is not None else np.inf)
-    parts = np.stack([bc(loop["bandwidth"]), transit_bw, filter_bw])
-    names = np.array(["amplifier loop", "photodiode transit", "post filter"])
-    limited_by = np.where(np.isfinite(bandwidth), names[np.argmin(np.where(np.isnan(parts), np.inf, parts),
-                                                                  axis=0)], "unstable loop")
+    # Speed: the whole chain H_pd * Zt * H_filter, and the photodiode alone.
+    v_e = np.asarray(v, dtype=float)[..., None]
+    wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
+    circuit_e = _expand_circuit(circuit)
+    pf = rx.post_filter
+
+    def chain(f):
+        h = pd_.intrinsic_response(f, v_e, wl_e) * transimpedance(f, **circuit_e)
+        return h if pf is None else h * filter_response(f, pf.kind, pf.order, pf.cutoff)
+
+    loop_bw = bc(loop["bandwidth"])
+    bandwidth = _minus_3db(chain, bc(loop["dc_transimpedance"]), loop_bw, shape)
+    transit_bw = bc(pd_.transit_bandwidth(v, rx.wavelength))
+    pd_bw = _minus_3db(lambda f: pd_.intrinsic_response(f, v_e, wl_e), bc(1.0),
+                       np.where(np.isfinite(transit_bw), transit_bw, loop_bw), shape)
+    pd_bw = np.where(np.isnan(pd_bw) & ~np.isfinite(transit_bw), np.inf, pd_bw)
+    filter_bw = bc(pf.cutoff if pf is not None else np.inf)
+    parts = np.stack([loop_bw, pd_bw, filter_bw])
+    diffusion_limited = pd_bw < 0.95 * transit_bw
+    names = np.array(["amplifier loop", "photodiode", "post filter"])
+    limited_by = names[np.argmin(np.where(np.isnan(parts), np.inf, parts), axis=0)]
+    limited_by = np.where(limited_by == "photodiode",
+                          np.where(diffusion_limited, "photodiode diffusion tail", "photodiode transit"),
+                          limited_by)
+    limited_by = np.where(np.isfinite(bandwidth), limited_by, "unstable loop")
 
     # Noise: every source integrated over the real response (shared adaptive grid).
     noise_params = dict(
@@ -405,6 +419,7 @@ def _evaluate(rx: Receiver) -> ReceiverResult:
         "shunt_resistance": bc(net.shunt_resistance), "series_resistance": bc(net.series_resistance),
         "breakdown_voltage": breakdown,
         "bandwidth": bandwidth, "loop_bandwidth": bc(loop["bandwidth"]), "transit_bandwidth": transit_bw,
+        "photodiode_bandwidth": pd_bw,
         "transit_time": transit_time, "filter_bandwidth": filter_bw, "limited_by": limited_by,
         "rise_time": bc(loop["rise_time"]), "dc_transimpedance": zt0,
         "stable": np.broadcast_to(stable, shape), "phase_margin": bc(loop["phase_margin"]),

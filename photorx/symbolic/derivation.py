@@ -259,7 +259,8 @@ class Derivation:
             lines += [r"\item " + _latex_body(st.description),
                       r"\begin{equation*}", st.to_latex(), r"\end{equation*}"]
         lines += [r"\end{enumerate}", r"\paragraph{Results}", r"\begin{align*}"]
-        lines += [_lhs_latex(n, eq) + " &= " + sp.latex(eq.rhs) + r" \\" for n, eq in self.results.items()]
+        lines.append(" \\\\\n".join(_lhs_latex(n, eq) + " &= " + sp.latex(eq.rhs)
+                                 for n, eq in self.results.items()))
         lines += [r"\end{align*}", r"\paragraph{Symbols}", r"\begin{tabular}{lll}",
                   r"Symbol & Meaning & Unit \\ \hline"]
         for s in self._used_symbols():

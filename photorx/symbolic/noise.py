@@ -25,7 +25,7 @@ import sympy as sp
 
 from .derivation import Derivation, Step, c_0, eq, h, k_B, q
 from .tia import TIA_SYMBOLS, tia_second_order
-from .tia import A, A_0, C_d, C_f, C_i, C_in, GBW, R_f, R_sh, Q, s, v_n, v_o, e_n
+from .tia import A, C_d, C_f, C_i, C_in, R_f, R_sh, Q, e_n, s, v_n, v_o
 
 __all__ = ["tia_input_noise", "tia_output_noise", "nep", "NOISE_SYMBOLS"]
 

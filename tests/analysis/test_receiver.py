@@ -69,7 +69,11 @@ def test_chain_bandwidth_is_minus_3db_of_composed_response(rx):
     assert mag(r.bandwidth) == pytest.approx(ref / np.sqrt(2), rel=1e-6)
     assert mag(0.9 * r.bandwidth) > ref / np.sqrt(2)
     # the chain is never faster than its slowest part
-    assert r.bandwidth <= min(r.loop_bandwidth, r.transit_bandwidth) * (1 + 1e-9) or r.peaking_db > 0
+    assert r.bandwidth <= min(r.loop_bandwidth, r.photodiode_bandwidth) * (1 + 1e-9) or r.peaking_db > 0
+    # the photodiode's own -3 dB point, from its intrinsic response alone
+    h_pd = abs(pd.intrinsic_response(r.photodiode_bandwidth, 5.0, 850e-9))
+    assert h_pd == pytest.approx(1 / np.sqrt(2), rel=1e-6)
+    assert r.limited_by in {"amplifier loop", "photodiode transit", "photodiode diffusion tail"}
 
 
 def test_snr_and_sensitivity_follow_the_sensitivity_formulas(rx):
