@@ -242,7 +242,8 @@ class ReceiverResult:
     def __getattr__(self, name):
         values = object.__getattribute__(self, "values")
         if name in values:
-            return values[name]
+            value = values[name]
+            return np.asarray(value).item() if np.ndim(value) == 0 else value
         raise AttributeError(f"ReceiverResult has no figure {name!r}; figures: {', '.join(values)}")
 
     def __dir__(self):

@@ -122,12 +122,13 @@ def tia_nodal_analysis() -> Derivation:
     sol = sp.solve([kcl_j, kcl_n, amp], [v_j, v_n, v_o], dict=True)[0]
     zt = sp.factor(sp.cancel(sol[v_o] / i_ph))
     # feedback factor: the fraction of v_o that returns to the summing node with i_ph = 0
-    kcl_n_open = kcl_n.subs(v_j, v_n * _Z_d / (_Z_d + R_s))
+    v_j_open = sp.solve(kcl_j.subs(i_ph, 0), v_j)[0]  # the diode branch as a divider
+    kcl_n_open = kcl_n.subs(v_j, v_j_open)
     beta_expr = sp.factor(sp.cancel(sp.solve(kcl_n_open, v_n)[0] / v_o))
     loop = A * beta_expr
     # noise gain: output per volt at the non-inverting input, in the limit A -> infinity
     eqs_e = _nodal_equations(e_n)
-    sol_e = sp.solve([eq.subs(i_ph, 0) for eq in eqs_e], [v_j, v_n, v_o], dict=True)[0]
+    sol_e = sp.solve([e_.subs(i_ph, 0) for e_ in eqs_e], [v_j, v_n, v_o], dict=True)[0]
     ng_finite = sp.cancel(sol_e[v_o] / e_n)
     ng = sp.factor(sp.limit(ng_finite, A, sp.oo))
     textbook = _Z_f * _Z_d / (_Z_d + R_s) * loop / (1 + loop)

@@ -176,7 +176,7 @@ def plot_bias_tradeoff(bias, series, ax=None, mark=None, title="Bias trade-off")
         Reverse bias [V].
     series : sequence of (label, values, unit, log)
         Each panel: its label, the values on the ``bias`` grid in SI ``unit``, and
-        whether the y axis is logarithmic.
+        whether the y axis may be logarithmic (it is when the values span a decade).
     ax : sequence of Axes, optional
         One axes per series.
     mark : float, optional
@@ -188,7 +188,9 @@ def plot_bias_tradeoff(bias, series, ax=None, mark=None, title="Bias trade-off")
     for a, (label, values, unit, log) in zip(axes, series):
         y = np.asarray(values, dtype=float)
         a.plot(bias, y, color="C0")
-        if log and np.all(y[np.isfinite(y)] > 0):
+        finite = y[np.isfinite(y)]
+        # a log axis only pays when the data span a decade (else its labels are minor ticks)
+        if log and finite.size and np.all(finite > 0) and finite.max() >= 10 * finite.min():
             a.set_yscale("log")
         a.set_ylabel(label)
         _eng(a.yaxis, unit)

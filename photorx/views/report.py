@@ -25,10 +25,35 @@ def _scalar(value) -> float:
     return float(np.asarray(value, dtype=float))
 
 
-def _frequency_grid(rx, n: int = 400) -> np.ndarray:
-    """Log grid from 1 Hz-ish to well past the loop's unity-gain frequency (display only)."""
-    top = 100.0 * _scalar(rx.tia.amp.gbw)
-    return np.geomspace(max(top * 1e-9, 0.1), top, n)
+def _frequency_grid(result, n: int = 400) -> np.ndarray:
+    """Log grid over seven decades up to 30 times the chain bandwidth or the loop crossover."""
+    edges = [_scalar(getattr(result, name)) for name in ("bandwidth", "crossover")]
+    edges = [e for e in edges if np.isfinite(e) and e > 0]
+    top = 30.0 * max(edges) if edges else 1e10
+    return np.geomspace(top * 1e-7, top, n)
+
+
+def _step_response(rx, net, n: int = 800):
+    """Closed-loop step response of the stage, normalised to its final value: (t [s], y).
+
+    Uses the stage's own step response when the circuit package offers one; otherwise the
+    package's closed-loop polynomial, Zt(s) = A0/Den(s)
+    (:func:`photorx.circuit.metrics.closed_loop_polynomial`), simulated with
+    scipy.signal in time normalised to the polynomial's natural scale.
+    """
+    own = getattr(rx.tia, "step_response", None)
+    if own is not None:
+        return own(net)
+    from scipy import signal
+
+    from ..circuit.metrics import closed_loop_polynomial
+
+    den = np.asarray(closed_loop_polynomial(**rx._circuit(net)), dtype=float)
+    den = np.trim_zeros(den, "b")
+    w0 = (den[0] / den[-1]) ** (1.0 / (den.size - 1))  # natural scale [rad/s]
+    dn = den * w0 ** np.arange(den.size) / den[0]      # Den(0) = 1: unit final value
+    t, y = signal.step(signal.lti([1.0], dn[::-1]), N=n)
+    return t / w0, y
 
 
 def _bias_grid(rx, n: int) -> np.ndarray:
@@ -79,7 +104,8 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
             return
         out.append((title, plots.figure_to_base64(fig, fmt), caption))
 
-    f = _frequency_grid(rx)
+    result = rx.evaluate()
+    f = _frequency_grid(result)
     net = _network(rx)
     bias = _bias_grid(rx, bias_points)
     v0 = _scalar(rx.reverse_bias)
@@ -101,17 +127,23 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
                                 closed_loop=rx.tia.transimpedance(f, net)),
         "Loop gain T = A*beta (its 0 dB crossing sets the phase margin) and the closed-loop "
         "transimpedance in dB re 1 ohm.")
-    step = getattr(rx.tia, "step_response", None)
-    if step is not None:
-        def make_step():
-            t, v = step(net)
-            return plots.plot_step(t, v, unit="", final=1.0)
-        add("Step response", make_step, "Output for a photocurrent step, normalised to its "
-            "final value; dotted lines at 10 % and 90 %.")
+    def make_step():
+        t, y = _step_response(rx, net)
+        return plots.plot_step(t, y, unit="", final=1.0,
+                               title="Step response of the transimpedance stage")
+    add("Step response", make_step,
+        "Output of the transimpedance stage for a photocurrent step, normalised to its final "
+        "value; dotted lines at 10 % and 90 %.")
     ns = _noise(rx, net)
-    fn = f[f >= 1.0]
-    add("Output noise density by source",
-        lambda: plots.plot_noise_stack(fn, ns.by_source(fn), unit="V"),
+    fn = f[f >= _scalar(getattr(rx, "noise_band_low", 1.0))]
+
+    def make_noise():
+        from ..analysis.noise import SOURCE_LABELS
+
+        dens = {SOURCE_LABELS.get(k, k): v for k, v in ns.by_source(fn).items()
+                if np.any(np.asarray(v) > 0)}  # sources that contribute nothing are left out
+        return plots.plot_noise_stack(fn, dens, unit="V")
+    add("Output noise density by source", make_noise,
         "Noise power density of each source at the output (stacked: uncorrelated powers add).")
     series = [(label, col(name), unit, log) for label, name, unit, log in (
         ("bandwidth", "bandwidth", "Hz", False),

@@ -139,7 +139,8 @@ def test_top_collection_against_quadrature(alpha, d, ln):
     def f(x):
         return alpha * np.exp(-alpha * x) * np.exp(x / ln - d / ln) * (
             (1 + np.exp(-2 * x / ln)) / (1 + np.exp(-2 * d / ln)))
-    ref = quad(f, 0, d, points=[min(1 / alpha, d)], epsabs=0, epsrel=1e-10, limit=200)[0]
+    pts = [min(1 / alpha, d), max(d - 5 * ln, 0.0)]  # absorption and collection scales
+    ref = quad(f, 0, d, points=pts, epsabs=0, epsrel=1e-10, limit=200)[0]
     assert optics.top_layer_collection(alpha, d, ln) == pytest.approx(ref, rel=1e-7, abs=1e-14)
 
 
