@@ -127,7 +127,9 @@ def _cmd_budget(args) -> int:
         suffix = Path(args.output).suffix.lower().lstrip(".")
         fmt = suffix if suffix in set(EXPORT_FORMATS) | {"markdown", "tex", "htm"} else "text"
     fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
-    budget = _load(args.design).budget()
+    from .designfile import design_name
+
+    budget = _load(args.design).budget(title=design_name(args.design) or None)
     text = str(budget) if fmt == "text" else {
         "csv": budget.to_csv, "md": budget.to_markdown, "latex": budget.to_latex,
         "html": budget.to_html, "json": budget.to_json}[fmt]()
@@ -186,8 +188,10 @@ def _cmd_optimize(args) -> int:
     vary = dict(_parse_vary(v) for v in args.vary)
     constraints = dict(parse_constraint(c) for c in args.constraint or ())
     rx = _load(args.design)
-    res = optimize(rx, vary=vary, objective=args.objective, constraints=constraints)
-    lines = [f"objective: {res.objective} = {res.value:.6g}",
+    res = optimize(rx, vary=vary, objective=args.objective, constraints=constraints,
+                   grid_points=args.grid_points)
+    name = res.objective.split(" ", 1)[-1]
+    lines = [f"objective: {res.objective} = {format_eng(res.value, _figure_unit(name))}",
              f"feasible: {'yes' if res.success else 'no'} ({res.evaluations} evaluations)"]
     lines += [f"  {name} = {format_eng(value, _unit_of(name))}"
               for name, value in res.parameters.items()]
@@ -195,7 +199,9 @@ def _cmd_optimize(args) -> int:
         lines.append("constraints:")
         for row in res.constraints.itertuples(index=False):
             state = "active" if row.active else ("ok" if row.satisfied else "VIOLATED")
-            lines.append(f"  {row.figure} {row.relation} {row.limit:.6g}: {row.value:.6g} ({state})")
+            unit = _figure_unit(row.figure)
+            lines.append(f"  {row.figure} {row.relation} {format_eng(row.limit, unit)}: "
+                         f"{format_eng(row.value, unit)} ({state})")
     print("\n".join(lines))
     if args.save:
         from .designfile import save_design
@@ -208,6 +214,12 @@ def _cmd_optimize(args) -> int:
         print("photorx optimize: no design satisfies every constraint", file=sys.stderr)
         return EXIT_FAILURE
     return EXIT_OK
+
+
+def _figure_unit(name: str) -> str:
+    from .analysis.receiver import FIGURES
+
+    return FIGURES.get(name, ("",))[0]
 
 
 def _unit_of(name: str) -> str:
@@ -232,8 +244,11 @@ def _cmd_template(args) -> int:
 def _cmd_report(args) -> int:
     from .views.report import write_report
 
+    from .designfile import design_name
+
     rx = _load(args.design)
-    title = args.title or (Path(args.design).stem if args.design else "demo receiver")
+    title = (args.title or design_name(args.design)
+             or (Path(args.design).stem if args.design else "photorx receiver report"))
     path = write_report(rx, args.output, title=title)
     print(f"wrote {path}", file=sys.stderr)
     return EXIT_OK
@@ -299,6 +314,8 @@ def build_parser() -> argparse.ArgumentParser:
                         "min:NAME (default: snr)")
     p.add_argument("--constraint", action="append", metavar="FIGURE>=VALUE",
                    help="e.g. 'bandwidth>=1 GHz', 'phase_margin>=60', repeatable")
+    p.add_argument("--grid-points", type=int, default=2000,
+                   help="size of the coarse grid searched before refinement (default: 2000)")
     p.add_argument("--save", metavar="FILE", help="write the optimised design to a design file")
     p.add_argument("--trade-curve", metavar="FILE", help="write the trade curve against bias (CSV)")
     p.set_defaults(func=_cmd_optimize)

@@ -47,7 +47,8 @@ else:  # pragma: no cover
 __all__ = [
     "SCHEMA", "Key", "SECTIONS", "REQUIRED", "OMIT", "DEMO_DESIGNS", "DEFAULT_DESIGN",
     "load_design", "save_design", "loads_design", "dumps_design", "demo_receiver",
-    "demo_design_path", "read_design", "design_template", "write_template",
+    "demo_design_path", "design_name", "read_design", "design_template", "write_template",
+    "format_quantity",
 ]
 
 DEMO_DESIGNS = {
@@ -181,6 +182,19 @@ def demo_design_path(name: str = DEFAULT_DESIGN) -> Path:
         raise DesignError(f"no demo design named {name!r}; known: {', '.join(DEMO_DESIGNS)}",
                           parameter="design")
     return Path(str(resources.files("photorx") / "designs" / f"{name}.toml"))
+
+
+def design_name(path=None) -> str:
+    """The ``[design] name`` of a design file or demo ("" when absent or unreadable)."""
+    try:
+        p = demo_design_path(path or DEFAULT_DESIGN) if path is None or str(path) in DEMO_DESIGNS \
+            else Path(path)
+        doc = tomllib.loads(p.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError, DesignError):
+        return ""
+    design = doc.get("design")
+    name = design.get("name", "") if isinstance(design, dict) else ""
+    return name if isinstance(name, str) else ""
 
 
 def demo_receiver(name: str = DEFAULT_DESIGN):

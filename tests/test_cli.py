@@ -168,3 +168,118 @@ def test_console_script_subprocess(tmp_path):
                           text=True, timeout=60)
     assert done.returncode == 2 and done.stdout == ""
     assert len(done.stderr.strip().splitlines()) == 1 and "Traceback" not in done.stderr
+
+
+# -- with the receiver: budget, sweep, optimize, report -------------------------------------------
+def test_budget_default_demo_text(capsys):
+    code, out, err = run(capsys, "budget")
+    assert code == 0 and err == ""
+    # titled with the demo's [design] name
+    assert out.startswith("Short-reach 1310 nm InGaAs PIN link receiver\n=====")
+    for word in ("phase margin", "bandwidth", "noise by source", "sensitivity"):
+        assert word in out
+
+
+@pytest.mark.parametrize("fmt", ["csv", "json", "md", "latex", "html"])
+def test_budget_export_formats(capsys, tmp_path, fmt):
+    target = tmp_path / f"b.{fmt}"
+    code, out, err = run(capsys, "budget", "--format", fmt, "-o", str(target))
+    assert code == 0 and out == "" and "wrote" in err
+    text = target.read_text()
+    if fmt == "csv":
+        df = pd.read_csv(target)
+        row = df[(df["table"] == "speed") & (df["quantity"] == "DC transimpedance")]
+        # the demo's feedback resistor is 3 kohm; the DC transimpedance is close to it
+        assert float(row["value"].iloc[0]) == pytest.approx(3e3, rel=0.01)
+        assert row["unit"].iloc[0] == "ohm"
+    elif fmt == "json":
+        doc = json.loads(text)
+        assert "speed" in doc["tables"]
+    elif fmt == "html":
+        assert "<table" in text and "IEC 60825-1" in text
+    elif fmt == "md":
+        assert "| quantity" in text
+    else:
+        assert r"\begin{tabular}" in text
+
+
+def test_budget_format_from_suffix_and_demo_name(capsys, tmp_path):
+    target = tmp_path / "b.json"
+    code, _, _ = run(capsys, "budget", "si-pin-850", "-o", str(target))
+    assert code == 0
+    doc = json.loads(target.read_text())
+    rows = {r["quantity"]: r for r in doc["tables"]["operating point"]}
+    assert rows["wavelength"]["value"] == pytest.approx(850e-9, rel=1e-12)
+
+
+def test_budget_of_a_template_file(capsys, tmp_path):
+    target = tmp_path / "t.toml"
+    assert run(capsys, "template", "-o", str(target))[0] == 0
+    code, out, _ = run(capsys, "budget", str(target))
+    assert code == 0 and "phase margin" in out
+
+
+def test_sweep_to_csv(capsys, tmp_path):
+    target = tmp_path / "s.csv"
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--rf", "1 kohm,3 kohm",
+                       "--columns", "bandwidth,phase_margin", "-o", str(target), "--quiet")
+    assert code == 0 and "sweep [" not in err
+    df = pd.read_csv(target)
+    assert list(df.columns) == ["reverse_bias", "rf", "bandwidth", "phase_margin"]
+    assert len(df) == 12
+    np.testing.assert_allclose(sorted(set(df["reverse_bias"])), np.linspace(0, 5, 6), rtol=0)
+    assert set(df["rf"]) == {1e3, 3e3}
+
+
+def test_sweep_progress_and_stdout(capsys):
+    code, out, err = run(capsys, "sweep", "--axis", "cf=20e-15:80e-15:4", "--columns",
+                         "phase_margin", "--progress-threshold", "1")
+    assert code == 0 and "sweep [" in err and "4/4 points" in err
+    df = pd.read_csv(__import__("io").StringIO(out))
+    assert len(df) == 4 and "cf" in df.columns
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["sweep", "--axis", "nonsense=1,2"], ["nonsense"]),
+    (["sweep", "--reverse-bias", "0:20"], ["--reverse-bias", "START:STOP:N"]),
+    (["sweep", "--reverse-bias", "0:5:3", "--columns", "bogus"], ["bogus"]),
+    (["optimize", "--vary", "reverse_bias"], ["NAME=LOW:HIGH"]),
+    (["optimize", "--vary", "reverse_bias=0:10", "--constraint", "bandwidth=1"],
+     ["FIGURE>=VALUE"]),
+])
+def test_sweep_and_optimize_errors(capsys, argv, words):
+    code, out, err = run(capsys, *argv)
+    assert code == 2
+    assert_one_line_error(err)
+    for w in words:
+        assert w in err
+
+
+def test_optimize(capsys, tmp_path):
+    saved, curve = tmp_path / "opt.toml", tmp_path / "trade.csv"
+    code, out, _ = run(capsys, "optimize", "--vary", "cf=20fF:200fF", "--objective",
+                       "sensitivity_dbm", "--constraint", "phase_margin>=60",
+                       "--grid-points", "20", "--save", str(saved), "--trade-curve", str(curve))
+    assert code == 0
+    assert "objective: min sensitivity_dbm" in out and "phase_margin >= 60 deg" in out
+    from photorx.designfile import load_design
+
+    rx = load_design(saved)
+    assert 20e-15 * (1 - 1e-12) <= rx.tia.cf <= 200e-15 * (1 + 1e-12)  # within the bounds
+    assert rx.evaluate().phase_margin >= 60 * (1 - 0.01)
+    assert "reverse_bias" in pd.read_csv(curve).columns
+
+
+def test_optimize_infeasible_exits_1(capsys):
+    code, out, err = run(capsys, "optimize", "--vary", "cf=20fF:30fF", "--constraint",
+                         "phase_margin>=89", "--constraint", "bandwidth>=100 GHz",
+                         "--grid-points", "5")
+    assert code == 1 and "feasible: no" in out and "no design satisfies" in err
+
+
+def test_report(capsys, tmp_path):
+    target = tmp_path / "r.html"
+    code, _, err = run(capsys, "report", "-o", str(target))
+    assert code == 0 and "wrote" in err
+    text = target.read_text()
+    assert text.startswith("<!DOCTYPE html>") and "data:image/png;base64," in text

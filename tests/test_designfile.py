@@ -388,3 +388,37 @@ def test_array_receiver_cannot_be_saved(demos, tmp_path):
     with pytest.raises(DesignError, match="reverse_bias is an array"):
         dfile.save_design(rx, tmp_path / "x.toml")
     assert not (tmp_path / "x.toml").exists()
+
+
+def test_every_constructor_argument_has_a_schema_row():
+    # meta-test: a new constructor argument must get a design-file key (or be structural)
+    import dataclasses
+
+    from photorx.analysis.receiver import Receiver
+    from photorx.circuit.filters import PostFilter
+    from photorx.circuit.tia import Tia
+    from photorx.device import junction as jn
+    from photorx.device.photodiode import Photodiode
+
+    def args(cls):
+        return {f.name for f in dataclasses.fields(cls) if f.init}
+
+    def rows(*sections, model=None):
+        return {k.arg for k in SCHEMA if k.section in sections
+                and (not k.when or model in k.when) and k.name != "model"}
+
+    assert args(Receiver) - {"photodiode", "tia", "post_filter"} == rows(
+        "operating_point", "signal", "limits", "analysis")
+    assert args(Photodiode) - {"junction"} == rows("photodiode")
+    assert args(Tia) - {"amp"} == rows("feedback")
+    assert args(PostFilter) == rows("post_filter")
+    for model, cls in [("abrupt", jn.AbruptJunction), ("pin", jn.PinJunction),
+                       ("graded", jn.LinearlyGradedJunction),
+                       ("parametric", jn.ParametricJunction)]:
+        assert args(cls) == rows("photodiode.junction", model=model), model
+
+
+def test_design_name():
+    assert dfile.design_name() == "Short-reach 1310 nm InGaAs PIN link receiver"
+    assert dfile.design_name("si-pin-850") == "Silicon PIN receiver at 850 nm"
+    assert dfile.design_name("/nonexistent.toml") == ""

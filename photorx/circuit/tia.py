@@ -64,8 +64,9 @@ def input_admittance(f, cd, rsh, rs, cin):
     ``rsh`` may be ``inf`` (no shunt path).
     """
     s = _s(f)
-    zd = 1.0 / (1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float))
-    return 1.0 / (np.asarray(rs, dtype=float) + zd) + s * np.asarray(cin, dtype=float)
+    # Written with the junction admittance yd so that Rsh = inf at f = 0 stays finite.
+    yd = 1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float)
+    return yd / (1.0 + np.asarray(rs, dtype=float) * yd) + s * np.asarray(cin, dtype=float)
 
 
 def feedback_factor(f, rf, cf, cd, rsh, rs, cin):
@@ -116,8 +117,8 @@ def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     """
     s = _s(f)
     zf = 1.0 / feedback_admittance(f, rf, cf)
-    zd = 1.0 / (1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float))
-    divider = zd / (zd + np.asarray(rs, dtype=float))
+    yd = 1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float)
+    divider = 1.0 / (1.0 + np.asarray(rs, dtype=float) * yd)  # Zd/(Zd + Rs), finite at f = 0
     t = loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
     return zf * divider * closed_loop_factor(t)
 

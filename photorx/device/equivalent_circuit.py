@@ -53,7 +53,8 @@ class EquivalentCircuit:
 
         Y = 1 / (Rs + Zd), Zd = Rsh || 1/(j 2 pi f Cd).
         """
-        return 1.0 / (self.series_resistance + self.junction_impedance(f))
+        yd = 1.0 / self.shunt_resistance + 2j * np.pi * np.asarray(f, dtype=float) * self.capacitance
+        return yd / (1.0 + self.series_resistance * yd)
 
     def junction_impedance(self, f):
         """Impedance of Rsh || Cd [ohm], complex."""
@@ -66,5 +67,5 @@ class EquivalentCircuit:
         Zd / (Zd + Rs): the Norton short-circuit current of the source, Cd, Rsh and Rs branch,
         exact whatever the summing-node voltage. Dimensionless, complex.
         """
-        zd = self.junction_impedance(f)
-        return zd / (zd + self.series_resistance)
+        yd = 1.0 / self.shunt_resistance + 2j * np.pi * np.asarray(f, dtype=float) * self.capacitance
+        return 1.0 / (1.0 + self.series_resistance * yd)  # finite at f = 0 with Rsh = inf

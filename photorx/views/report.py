@@ -127,6 +127,7 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
                                 closed_loop=rx.tia.transimpedance(f, net)),
         "Loop gain T = A*beta (its 0 dB crossing sets the phase margin) and the closed-loop "
         "transimpedance in dB re 1 ohm.")
+
     def make_step():
         t, y = _step_response(rx, net)
         return plots.plot_step(t, y, unit="", final=1.0,
@@ -134,6 +135,7 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
     add("Step response", make_step,
         "Output of the transimpedance stage for a photocurrent step, normalised to its final "
         "value; dotted lines at 10 % and 90 %.")
+
     ns = _noise(rx, net)
     fn = f[f >= _scalar(getattr(rx, "noise_band_low", 1.0))]
 
@@ -145,6 +147,7 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
         return plots.plot_noise_stack(fn, dens, unit="V")
     add("Output noise density by source", make_noise,
         "Noise power density of each source at the output (stacked: uncorrelated powers add).")
+
     series = [(label, col(name), unit, log) for label, name, unit, log in (
         ("bandwidth", "bandwidth", "Hz", False),
         ("phase margin", "phase_margin", "deg", False),

@@ -1,0 +1,261 @@
+"""What every interactive panel shares: controls, a figure drawn headless, a message area.
+
+A :class:`Panel` holds its ipywidgets controls (``controls``, a dict by name), one
+matplotlib :class:`~matplotlib.figure.Figure` made without pyplot (so it works with the Agg
+backend and no live frontend), the output area (``image``: the figure rendered to PNG,
+``table``: HTML tables) and a ``message`` area. Moving a control calls :meth:`Panel.update`,
+which asks the package for new numbers, moves the existing artists (``set_data``,
+``set_verts``) and re-renders the same figure: the figure is never recreated.
+
+Bad combinations (an unstable loop, a bias beyond breakdown, any
+:class:`~photorx.errors.DesignError`) are shown in the message area; ``update`` never
+raises for them. Model warnings of the package are listed there too.
+
+Panels compute no physics: every number comes from photorx's public functions and
+objects. This module only converts display units (a slider in cm^-3 or um) to SI.
+"""
+
+from __future__ import annotations
+
+import html
+import io
+import time
+import warnings
+
+import numpy as np
+
+from ..errors import DesignError, PhotorxWarning
+from ..units import format_eng
+
+__all__ = ["Panel", "log_slider", "lin_slider", "frame_html", "rows_html"]
+
+_OK_STYLE = "color:#1a5e20"
+_WARN_STYLE = "color:#8a5a00"
+_ERROR_STYLE = "color:#b00020;font-weight:bold"
+
+
+def _widgets():
+    import ipywidgets
+
+    return ipywidgets
+
+
+def log_slider(description, value, low, high, step=0.02, readout="%.3g"):
+    """A logarithmic slider between ``low`` and ``high`` (display units) starting at ``value``."""
+    w = _widgets()
+    value = float(np.clip(value, low, high))
+    return w.FloatLogSlider(value=value, base=10, min=np.log10(low), max=np.log10(high),
+                            step=step, description=description, readout_format=readout[1:],
+                            continuous_update=False, style={"description_width": "initial"},
+                            layout=w.Layout(width="340px"))
+
+
+def lin_slider(description, value, low, high, step, readout=".3g"):
+    """A linear slider in display units."""
+    w = _widgets()
+    value = float(np.clip(value, low, high))
+    return w.FloatSlider(value=value, min=low, max=high, step=step, description=description,
+                         readout_format=readout, continuous_update=False,
+                         style={"description_width": "initial"}, layout=w.Layout(width="340px"))
+
+
+def rows_html(rows, header=("quantity", "value")) -> str:
+    """A small HTML table from ``(name, text)`` rows (texts already formatted)."""
+    head = "".join(f"<th style='text-align:left;padding:0 8px'>{html.escape(h)}</th>"
+                   for h in header)
+    body = "".join("<tr>" + "".join(f"<td style='padding:0 8px'>{html.escape(str(c))}</td>"
+                                    for c in row) + "</tr>" for row in rows)
+    return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+
+
+def frame_html(frame, units=None, digits=4) -> str:
+    """A pandas DataFrame as HTML with numbers in engineering notation.
+
+    ``units`` maps a column to its SI unit; a column header ending in ``[unit]`` is read
+    the same way.
+    """
+    units = dict(units or {})
+    shown = frame.copy()
+    for col in shown.columns:
+        name = str(col)
+        unit = units.get(name)
+        if unit is None and name.endswith("]") and "[" in name:
+            unit = name[name.rindex("[") + 1:-1]
+            if unit == "%":
+                unit = ""
+        if shown[col].dtype.kind in "fi":
+            shown[col] = [format_eng(float(v), unit or "", digits) for v in shown[col]]
+    return shown.to_html(escape=True, border=0)
+
+
+class Panel:
+    """Base of every panel: controls, a headless figure, an output area and a message area.
+
+    Attributes
+    ----------
+    controls : dict of str to ipywidgets.Widget
+        The controls by name; set ``panel.controls[name].value`` to drive the panel.
+    figure : matplotlib.figure.Figure
+        The panel's figure, made once and updated in place.
+    axes : dict of str to matplotlib.axes.Axes
+        Its axes by name.
+    lines : dict of str to matplotlib artists
+        The artists that :meth:`update` moves.
+    image : ipywidgets.Image
+        The figure rendered to PNG (the output area's plot).
+    table : ipywidgets.HTML
+        Tables and figures of merit shown beside the plot.
+    message : ipywidgets.HTML
+        Errors (red), model warnings (amber) and notes; empty when all is well.
+    widget : ipywidgets.Box
+        The whole panel, for display (``display(panel)`` also works).
+    last_update_seconds : float
+        Wall time of the last :meth:`update`, without the PNG rendering.
+    error : str
+        The last error message, or ``""``.
+    """
+
+    title = "panel"
+    figsize = (9.0, 5.0)
+    dpi = 72
+
+    def __init__(self, render=True):
+        w = _widgets()
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+        from matplotlib.figure import Figure
+
+        self.render_enabled = bool(render)
+        self.controls = {}
+        self.axes = {}
+        self.lines = {}
+        self.error = ""
+        self.notes = []
+        self.last_update_seconds = float("nan")
+        self.last_render_seconds = float("nan")
+        self.figure = Figure(figsize=self.figsize)
+        FigureCanvasAgg(self.figure)  # headless canvas: no pyplot, no frontend needed
+        self.image = w.Image(format="png", layout=w.Layout(max_width="100%"))
+        self.table = w.HTML()
+        self.message = w.HTML()
+        self.output = w.VBox([self.image, self.table])
+        self._updating = False
+        self._build_controls()
+        self._build_figure()
+        self.figure.tight_layout()
+        for control in self.controls.values():
+            if hasattr(control, "value"):
+                control.observe(self._on_change, names="value")
+        self.widget = w.VBox([w.HTML(f"<h3>{html.escape(self.title)}</h3>"),
+                              self._layout_controls(), self.message, self.output])
+        self.update()
+
+    # -- to be provided by subclasses -------------------------------------------------------
+    def _build_controls(self):  # pragma: no cover - abstract
+        raise NotImplementedError
+
+    def _build_figure(self):  # pragma: no cover - abstract
+        raise NotImplementedError
+
+    def _refresh(self):  # pragma: no cover - abstract
+        """Ask the package for numbers and move the artists; may raise DesignError."""
+        raise NotImplementedError
+
+    def _layout_controls(self):
+        w = _widgets()
+        items = [c for c in self.controls.values()]
+        rows = [w.HBox(items[i:i + 3]) for i in range(0, len(items), 3)]
+        return w.VBox(rows)
+
+    # -- behaviour ---------------------------------------------------------------------------
+    def value(self, name):
+        """Current value of control ``name``."""
+        return self.controls[name].value
+
+    def set(self, **values):
+        """Set several controls at once and update once (for scripts and tests)."""
+        self._updating = True
+        try:
+            for name, v in values.items():
+                self.controls[name].value = v
+        finally:
+            self._updating = False
+        self.update()
+
+    def _on_change(self, change):
+        if not self._updating:
+            self.update()
+
+    def update(self):
+        """Recompute through the package, update the artists in place, then re-render.
+
+        Returns
+        -------
+        bool
+            True when the update succeeded; False when an error is shown in ``message``.
+        """
+        start = time.perf_counter()
+        self.notes = []
+        ok = True
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", PhotorxWarning)
+            try:
+                self._refresh()
+                self.error = ""
+            except DesignError as exc:
+                self.error = str(exc)
+                ok = False
+        for item in caught:
+            if issubclass(item.category, PhotorxWarning):
+                self.notes.append(f"model warning: {item.message}")
+        self._show_messages()
+        self.last_update_seconds = time.perf_counter() - start
+        if self.render_enabled:
+            self.render()
+        return ok
+
+    def _show_messages(self):
+        parts = []
+        if self.error:
+            parts.append(f"<div style='{_ERROR_STYLE}'>{html.escape(self.error)}</div>")
+        for note in dict.fromkeys(self.notes):
+            style = _WARN_STYLE if note.startswith(("model warning", "warning")) else _OK_STYLE
+            parts.append(f"<div style='{style}'>{html.escape(note)}</div>")
+        self.message.value = "".join(parts)
+
+    def note(self, text):
+        """Add a line to the message area for this update."""
+        self.notes.append(str(text))
+
+    def fail(self, text, parameter=None):
+        """Stop this update with a message (raises DesignError, caught by :meth:`update`)."""
+        raise DesignError(str(text), parameter=parameter)
+
+    def render(self):
+        """Draw the figure to PNG into ``image`` (the same figure every time)."""
+        start = time.perf_counter()
+        buf = io.BytesIO()
+        self.figure.savefig(buf, format="png", dpi=self.dpi, pil_kwargs={"compress_level": 1})
+        self.image.value = buf.getvalue()
+        self.last_render_seconds = time.perf_counter() - start
+
+    # -- helpers for subclasses -------------------------------------------------------------
+    @staticmethod
+    def rescale(ax, x_tight=True):
+        """Autoscale an axes to its (moved) artists."""
+        ax.relim(visible_only=True)
+        ax.autoscale_view(tight=None)
+        if x_tight:
+            ax.autoscale(enable=True, axis="x", tight=True)
+
+    @staticmethod
+    def set_line(line, x, y):
+        """Move a line; NaN/inf values are hidden (matplotlib skips non-finite points)."""
+        y = np.asarray(y, dtype=float)
+        line.set_data(np.asarray(x, dtype=float), np.where(np.isfinite(y), y, np.nan))
+
+    # -- display -----------------------------------------------------------------------------
+    def _repr_mimebundle_(self, **kwargs):
+        return self.widget._repr_mimebundle_(**kwargs)
+
+    def __repr__(self):
+        return f"<{type(self).__name__}: {self.title}>"

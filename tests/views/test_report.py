@@ -1,0 +1,96 @@
+"""Tests of photorx.views.report: one self-contained HTML file with tables, plots and cautions.
+
+The step response drawn in the report is checked against the loop figures the circuit
+stage computes (overshoot and rise time) with an independent time-domain simulation by
+scipy.signal.
+"""
+
+from __future__ import annotations
+
+import base64
+import re
+from html.parser import HTMLParser
+
+import numpy as np
+import pytest
+
+pytest.importorskip("matplotlib")
+
+from photorx.designfile import load_design  # noqa: E402
+from photorx.views import _files  # noqa: E402
+from photorx.views import report  # noqa: E402
+
+
+@pytest.fixture(scope="module")
+def rx():
+    return load_design()
+
+
+@pytest.fixture(scope="module")
+def page(rx):
+    return report.build_report(rx, title="Demo report", bias_points=9)
+
+
+class _Tags(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.tags, self.srcs = [], []
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append(tag)
+        self.srcs += [v for k, v in attrs if k in ("src", "href")]
+
+
+def test_report_is_self_contained(page):
+    parser = _Tags()
+    parser.feed(page)
+    assert page.startswith("<!DOCTYPE html>") and "<title>Demo report</title>" in page
+    # every image is embedded; nothing is fetched from elsewhere
+    assert parser.srcs and all(s.startswith("data:image/") for s in parser.srcs)
+    for uri in parser.srcs:
+        assert base64.b64decode(uri.split(",", 1)[1]).startswith(b"\x89PNG")
+
+
+def test_report_sections(page):
+    titles = re.findall(r"<h3>([^<]*)</h3>", page)
+    for expected in ["Loop gain and closed-loop response", "Step response",
+                     "Output noise density by source", "Bias trade-off",
+                     "Operating point: capacitance against bias",
+                     "operating point", "speed", "stability", "noise by source", "sensitivity"]:
+        assert expected in titles, expected
+    assert "not available" not in page
+    assert page.count("<table") >= 6
+    assert "IEC 60825-1" in page and "verified on hardware" in page
+    assert "[feedback]" in page and 'rf = &quot;3 kohm&quot;' in page  # the design itself
+
+
+def test_figures_in_svg(rx):
+    figs = report.report_figures(rx, bias_points=3, fmt="svg")
+    assert len(figs) == 5
+    assert all(uri.startswith("data:image/svg+xml;base64,") for _, uri, _ in figs)
+
+
+def test_step_response_matches_loop_figures(rx):
+    # scipy.signal's simulation of the closed-loop polynomial against the circuit stage's
+    # overshoot and 10-90 % rise time (its own analytic step evaluation)
+    net = rx.equivalent_circuit()
+    t, y = report._step_response(rx, net, n=4000)
+    metrics = rx.tia.analyze(net)
+    assert y[-1] == pytest.approx(1.0, abs=2e-3)
+    assert max(y.max() - 1.0, 0.0) == pytest.approx(metrics.overshoot, abs=2e-3)
+    t10 = np.interp(0.1, y[: np.argmax(y >= 0.9) + 1], t[: np.argmax(y >= 0.9) + 1])
+    t90 = t[np.argmax(y >= 0.9)]
+    assert t90 - t10 == pytest.approx(metrics.rise_time, rel=0.01)
+
+
+def test_write_report_atomic(rx, tmp_path, monkeypatch):
+    target = tmp_path / "r.html"
+
+    def fail(fd):
+        raise OSError("disk full")
+
+    monkeypatch.setattr(report, "build_report", lambda rx, **kw: "<html>" + "x" * 10000)
+    monkeypatch.setattr(_files.os, "fsync", fail)
+    with pytest.raises(OSError):
+        report.write_report(rx, target)
+    assert list(tmp_path.iterdir()) == []
