@@ -75,7 +75,8 @@ def parse_axis(name: str, spec: str) -> np.ndarray:
             raise ValueError
         return np.asarray(values, dtype=float)
     except ValueError:
-        raise DesignError(f"--{name.replace('_', '-')} {spec!r}: write START:STOP:N (e.g. 0:20:81), "
+        raise DesignError(f"--{name.replace('_', '-')} {spec!r}: write START:STOP:N "
+                          "(e.g. 0:20:81), "
                           "START:STOP:N:log or a comma-separated list", parameter=name) from None
 
 

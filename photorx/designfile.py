@@ -8,8 +8,8 @@ units library *pint* through :func:`photorx.units.parse_quantity`; plain numbers
 
 Every key lives in one declarative table, :data:`~photorx.designschema.SCHEMA` (section,
 key, unit, default, constructor argument, check, help text); reading, validation, writing
-and the commented template are all driven by it, so a new parameter is one new row. Unknown sections or
-keys, missing keys, wrong dimensions and out-of-range values raise
+and the commented template are all driven by it, so a new parameter is one new row.
+Unknown sections or keys, missing keys, wrong dimensions and out-of-range values raise
 :class:`~photorx.errors.DesignError` naming the key with its section path
 (``[photodiode.junction] area``) and what was expected.
 
@@ -216,7 +216,9 @@ def _decimal_text(d: Decimal) -> str:
     return f"{'-' if sign else ''}{mant}e{d.adjusted()}"
 
 
-_WRITE_SCALE = {"A/W": 0, "um^2": -12, "mm^2": -6, "cm^-3": 6, "cm^-4": 8, "nm": -9, "um": -6, "K": 0}
+#: fixed write units -> power of ten of their factor to SI
+_WRITE_SCALE = {"A/W": 0, "um^2": -12, "mm^2": -6, "cm^-3": 6, "cm^-4": 8, "nm": -9, "um": -6,
+                "K": 0}
 
 
 def format_quantity(value: float, unit: str, write: str | None = None) -> str:

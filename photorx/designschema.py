@@ -294,6 +294,9 @@ def _expected(key: Key) -> str:
         return "an integer"
     if key.kind == "list":
         return f"a list, each {_dimension_name(key.unit)} in {key.unit}, e.g. {key.example}"
+    if key.kind == "table":
+        return (f"{_dimension_name(key.unit)} in {key.unit} such as '{key.example}', or a "
+                "list of [wavelength, value] pairs")
     if key.kind == "ratio":
         return f"a number or decibels, e.g. '{key.example}'"
     if key.unit == "":

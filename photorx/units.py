@@ -1,4 +1,4 @@
-"""SI scale factors, engineering-notation display and parsing of quantities as the trade writes them.
+"""SI scale factors, engineering-notation display and parsing of quantities as written in the trade.
 
 photorx computes in SI everywhere. The factors here only make user code read like a
 data sheet: ``area = (100 * um) ** 2``, ``nd = 1e15 * per_cm3``, ``rf = 10 * kohm``.
@@ -174,7 +174,8 @@ _DIMENSION_NAMES = (
     ("m**-4", "a doping gradient"), ("F", "a capacitance"), ("ohm", "a resistance"),
     ("Hz", "a frequency"), ("s", "a time"), ("A", "a current"), ("V", "a voltage"),
     ("W", "a power"), ("K", "a temperature"), ("V/rtHz", "a voltage noise density"),
-    ("A/rtHz", "a current noise density"), ("A/W", "a responsivity"), ("m**-1", "an inverse length"),
+    ("A/rtHz", "a current noise density"), ("A/W", "a responsivity"),
+    ("m**-1", "an inverse length"),
 )
 
 

@@ -112,7 +112,7 @@ def test_template_to_stdout_and_file(capsys, tmp_path):
     assert code == 0
 
 
-# -- design errors: one line, exit 2 -----------------------------------------------------------------
+# -- design errors: one line, exit 2 ----------------------------------------------------------
 def test_missing_design_file(capsys, tmp_path):
     code, out, err = run(capsys, "budget", str(tmp_path / "nope.toml"))
     assert code == 2 and out == ""
@@ -145,6 +145,13 @@ def test_design_error_names_key(capsys, tmp_path):
     assert code == 2
     assert_one_line_error(err)
     assert "[feedback] cf" in err and "capacitance" in err
+
+
+def test_unwritable_output_exits_1(capsys, tmp_path):
+    target = tmp_path / "no-such-dir" / "t.toml"
+    code, _, err = run(capsys, "template", "-o", str(target))
+    assert code == 1 and str(target) in err and ".tmp" not in err
+    assert_one_line_error(err)
 
 
 def test_unexpected_error_is_one_line(capsys, monkeypatch):

@@ -371,7 +371,8 @@ def test_constructor_errors_name_the_file_key(old, new, words):
 
 
 def test_parametric_junction_needs_responsivity():
-    text = BASE.replace('model = "pin"', 'model = "parametric"\ncj0 = "1 pF"\nvj = "0.7 V"\nm = 0.5')
+    text = BASE.replace('model = "pin"',
+                        'model = "parametric"\ncj0 = "1 pF"\nvj = "0.7 V"\nm = 0.5')
     text = "\n".join(line for line in text.splitlines()
                      if not line.startswith(("material", "area", "i_", "p_doping", "n_doping")))
     with pytest.raises(DesignError) as err:
@@ -422,3 +423,21 @@ def test_design_name():
     assert dfile.design_name() == "Short-reach 1310 nm InGaAs PIN link receiver"
     assert dfile.design_name("si-pin-850") == "Silicon PIN receiver at 850 nm"
     assert dfile.design_name("/nonexistent.toml") == ""
+
+
+def test_graded_junction_design_round_trips(tmp_path):
+    text = BASE.replace('''model = "pin"
+material = "InGaAs"
+area = "1250 um^2"
+i_thickness = "2 um"
+i_doping = "5e14 cm^-3"
+p_doping = "1e18 cm^-3"
+n_doping = "1e18 cm^-3"''', '''model = "graded"
+material = "Si"
+area = "0.25 mm^2"
+gradient = "1e20 cm^-4"''').replace('wavelength = "1310 nm"', 'wavelength = "850 nm"')
+    rx = dfile.loads_design(text, "g.toml")
+    assert type(rx.photodiode.junction).__name__ == "LinearlyGradedJunction"
+    assert rx.photodiode.junction.gradient == 1e28      # 1e20 cm^-4 = 1e28 m^-4
+    assert rx.photodiode.junction.area == 0.25e-6
+    assert dfile.load_design(dfile.save_design(rx, tmp_path / "g.toml")) == rx

@@ -1,4 +1,4 @@
-"""Tests of photorx.units: scale factors, engineering display and parsing of trade-written quantities.
+"""Tests of photorx.units: scale factors, engineering display, parsing of trade-written quantities.
 
 Scale factors are checked against scipy.constants' SI prefixes (BIPM, *The International
 System of Units*, 9th ed., 2019, Table 7). Exact comparisons (rtol=0) are used where the

@@ -25,7 +25,10 @@ def atomic_write_bytes(path, data: bytes) -> Path:
     """Write ``data`` to ``path`` atomically; return the path."""
     path = Path(path)
     directory = path.parent if str(path.parent) else Path(".")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=directory)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=directory)
+    except OSError as exc:  # name the file the user asked for, not the temporary one
+        raise OSError(exc.errno, exc.strerror, str(path)) from None
     try:
         # mkstemp makes the file private (0600); give it the mode a plain open() would
         os.chmod(tmp, 0o666 & ~_umask())

@@ -130,6 +130,7 @@ class Panel:
         self.lines = {}
         self.error = ""
         self.notes = []
+        self.alarms = []
         self.last_update_seconds = float("nan")
         self.last_render_seconds = float("nan")
         self.figure = Figure(figsize=self.figsize)
@@ -195,6 +196,7 @@ class Panel:
         """
         start = time.perf_counter()
         self.notes = []
+        self.alarms = []
         ok = True
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", PhotorxWarning)
@@ -215,8 +217,8 @@ class Panel:
 
     def _show_messages(self):
         parts = []
-        if self.error:
-            parts.append(f"<div style='{_ERROR_STYLE}'>{html.escape(self.error)}</div>")
+        for text in ([self.error] if self.error else []) + self.alarms:
+            parts.append(f"<div style='{_ERROR_STYLE}'>{html.escape(text)}</div>")
         for note in dict.fromkeys(self.notes):
             style = _WARN_STYLE if note.startswith(("model warning", "warning")) else _OK_STYLE
             parts.append(f"<div style='{style}'>{html.escape(note)}</div>")
@@ -225,6 +227,10 @@ class Panel:
     def note(self, text):
         """Add a line to the message area for this update."""
         self.notes.append(str(text))
+
+    def alarm(self, text):
+        """Show ``text`` as an error in the message area while the panel still draws."""
+        self.alarms.append(str(text))
 
     def fail(self, text, parameter=None):
         """Stop this update with a message (raises DesignError, caught by :meth:`update`)."""

@@ -159,8 +159,9 @@ class JunctionPanel(Panel):
         self.set_line(self.lines["width"], v, width / um)
         self.set_line(self.lines["charge"], v, charge)
         self.set_line(self.lines["c_junction"], v, cj)
-        self.set_line(self.lines["c_diffusion"], v[fwd], np.where(c_diff[fwd] > 0, c_diff[fwd],
-                                                                  np.nan))
+        floor = 1e-3 * np.min(cj)  # keep the log axis on the scale of the junction
+        self.set_line(self.lines["c_diffusion"], v[fwd],
+                      np.where(c_diff[fwd] > floor, c_diff[fwd], np.nan))
         self.set_line(self.lines["c_total"], v, c_total)
         rows = [("built-in potential", format_eng(vbi, "V")),
                 ("breakdown (estimate)", format_eng(vbr, "V")),
@@ -275,8 +276,15 @@ class PhotodiodePanel(Panel):
         if not physical_t:
             self.note("note: this photodiode is described by datasheet values; the temperature "
                       "control does not apply to it")
-        bias = self.value("bias")
         span = self.value("max_bias")
+        if self.controls["bias"].max != span:
+            self._updating = True  # moving the slider's end may clip its value: one update
+            try:
+                self.controls["bias"].max = span
+                self.controls["bias"].step = span / 200
+            finally:
+                self._updating = False
+        bias = self.value("bias")
         wl = self.value("wavelength") * nm
         junction = pd_.junction
         if hasattr(junction, "breakdown_voltage"):
