@@ -6,6 +6,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DesignError
+from .noise import SOURCE_LABELS
 from .receiver import _TABLE_ORDER, FIGURES
 
 __all__ = ["receiver_budget"]
@@ -32,6 +33,13 @@ def receiver_budget(rx, title: str | None = None):
         raise DesignError("budget() needs a single design point; use photorx.sweep() for arrays",
                           parameter="receiver")
     values = result.to_dict()
+    values["dominant_noise_source"] = SOURCE_LABELS.get(values["dominant_noise_source"],
+                                                        values["dominant_noise_source"])
+    # A check without its limit is not a pass: say so instead of "yes".
+    for name, given in (("bias_within_limit", rx.max_bias), ("dark_current_within_limit", rx.max_dark_current),
+                        ("bandwidth_for_bit_rate", rx.bit_rate)):
+        if given is None:
+            values[name] = "no limit set" if name != "bandwidth_for_bit_rate" else "no bit rate set"
     tables = {}
     for table in _TABLE_ORDER:
         rows = [dict(quantity=desc, value=_plain(values[name]), unit=unit)

@@ -143,7 +143,8 @@ class _Space:
         with np.errstate(divide="ignore"):
             logv = np.exp(np.log(np.where(self.log, self.low, 1.0))
                           + u * np.log(np.where(self.log, self.high / np.where(self.log, self.low, 1.0), 1.0)))
-        return np.where(self.log, logv, lin)
+        # exp(log) can overshoot a bound by one rounding step; the bounds are hard limits
+        return np.clip(np.where(self.log, logv, lin), self.low, self.high)
 
     def to_unit(self, values):
         v = np.asarray(values, dtype=float)

@@ -77,7 +77,7 @@ FIGURES = {
     "snr": ("", "sensitivity", "analog SNR (power ratio) at the optical power"),
     "snr_db": ("dB", "sensitivity", "analog SNR"),
     "max_photocurrent": ("A", "sensitivity", "photocurrent at the output-swing limit"),
-    "dynamic_range_db": ("dB", "sensitivity", "output-swing limit over the noise floor"),
+    "dynamic_range_db": ("dB", "sensitivity", "output-swing limit over the noise floor (20 log10 of the current ratio)"),
     "target_ber": ("", "sensitivity", "target bit-error ratio"),
     "sensitivity": ("W", "sensitivity", "average optical power for the target BER"),
     "sensitivity_dbm": ("dBm", "sensitivity", "sensitivity for the target BER"),

@@ -142,13 +142,20 @@ class Panel:
         self._updating = False
         self._build_controls()
         self._build_figure()
-        self.figure.tight_layout()
         for control in self.controls.values():
             if hasattr(control, "value"):
                 control.observe(self._on_change, names="value")
         self.widget = w.VBox([w.HTML(f"<h3>{html.escape(self.title)}</h3>"),
                               self._layout_controls(), self.message, self.output])
+        self.render_enabled = False
         self.update()
+        self.render_enabled = bool(render)
+        try:  # lay out once, with data in the axes; later updates keep the layout
+            self.figure.tight_layout()
+        except ValueError:  # an empty log axis after a failed first update
+            pass
+        if self.render_enabled:
+            self.render()
 
     # -- to be provided by subclasses -------------------------------------------------------
     def _build_controls(self):  # pragma: no cover - abstract
