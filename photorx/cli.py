@@ -39,10 +39,28 @@ class _Parser(argparse.ArgumentParser):
 # ------------------------------------------------------------------------------------------
 # argument helpers
 # ------------------------------------------------------------------------------------------
-def _quantity(text: str) -> float:
+def _quantity(text: str, name: str | None = None) -> float:
+    """Parse ``text``; when ``name`` is a known parameter or figure, require its unit."""
     from .units import parse_quantity
 
-    return parse_quantity(text.strip())
+    return parse_quantity(text.strip(), _expected_unit(name))
+
+
+def _expected_unit(name: str | None):
+    """SI unit of a design parameter (from the design-file schema) or of a receiver figure."""
+    if not name:
+        return None
+    from .analysis.receiver import FIGURES
+    from .designschema import SCHEMA
+
+    name = name.split(".")[-1]
+    for key in SCHEMA:
+        if name in (key.argument, key.name) and key.kind == "quantity" and key.unit:
+            return key.unit
+    unit = FIGURES.get(name, (None,))[0]
+    if unit in (None, "", "deg", "dB", "dBm"):
+        return None
+    return unit.replace("rtHz", "Hz^0.5")
 
 
 def parse_axis(name: str, spec: str) -> np.ndarray:
@@ -60,7 +78,7 @@ def parse_axis(name: str, spec: str) -> np.ndarray:
                 parts = parts[:-1]
             if len(parts) != 3:
                 raise ValueError
-            start, stop = _quantity(parts[0]), _quantity(parts[1])
+            start, stop = _quantity(parts[0], name), _quantity(parts[1], name)
             n = int(parts[2])
             if n < 1:
                 raise ValueError
@@ -70,10 +88,12 @@ def parse_axis(name: str, spec: str) -> np.ndarray:
                                       parameter=name)
                 return np.geomspace(start, stop, n)
             return np.linspace(start, stop, n)
-        values = [_quantity(v) for v in text.split(",") if v.strip()]
+        values = [_quantity(v, name) for v in text.split(",") if v.strip()]
         if not values:
             raise ValueError
         return np.asarray(values, dtype=float)
+    except DesignError:
+        raise
     except ValueError:
         raise DesignError(f"--{name.replace('_', '-')} {spec!r}: write START:STOP:N "
                           "(e.g. 0:20:81), "
@@ -89,7 +109,7 @@ def parse_constraint(text: str) -> tuple[str, tuple[str, float]]:
     if not m:
         raise DesignError(f"--constraint {text!r}: write FIGURE>=VALUE or FIGURE<=VALUE, "
                           "e.g. 'bandwidth>=1 GHz'", parameter="constraint")
-    return m.group(1), (m.group(2), _quantity(m.group(3)))
+    return m.group(1), (m.group(2), _quantity(m.group(3), m.group(1)))
 
 
 def _parse_vary(text: str) -> tuple[str, tuple[float, float]]:
@@ -98,7 +118,8 @@ def _parse_vary(text: str) -> tuple[str, tuple[float, float]]:
     if not sep or len(parts) != 2 or not name.strip():
         raise DesignError(f"--vary {text!r}: write NAME=LOW:HIGH, e.g. reverse_bias=0:20",
                           parameter="vary")
-    return name.strip().replace("-", "_"), (_quantity(parts[0]), _quantity(parts[1]))
+    name = name.strip().replace("-", "_")
+    return name, (_quantity(parts[0], name), _quantity(parts[1], name))
 
 
 def _load(design):

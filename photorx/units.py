@@ -216,6 +216,10 @@ def _exact_scale(number: str, factor: float) -> float:
     return float(number) * factor
 
 
+_BARE_PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "k": 1e3, "M": 1e6,
+                  "G": 1e9, "T": 1e12}
+
+
 def parse_quantity(text, unit: str | None = None) -> float:
     """Parse a quantity written as the trade writes it and return it in SI.
 
@@ -224,7 +228,8 @@ def parse_quantity(text, unit: str | None = None) -> float:
     text : str or float
         ``"2.2 pF"``, ``"10 kohm"``, ``"10 kΩ"``, ``"1e15 cm^-3"``, ``"1310 nm"``,
         ``"5 nV/rtHz"``, ``"-20 dBm"``, ``"25 degC"``, ``"(100 um)^2"``, ``"inf ohm"``.
-        A bare number (Python number or numeric string) is taken as SI already.
+        A bare number (Python number or numeric string) is taken as SI already, and a
+        number with a bare SI prefix (``"10k"``, ``"2.2p"``) as that multiple of SI.
     unit : str, optional
         Expected SI unit (pint syntax, e.g. ``"F"``, ``"ohm"``, ``"m^-3"``, ``"W"``).
         When given, a quantity of another dimension is a :class:`DesignError` and the
@@ -251,6 +256,10 @@ def parse_quantity(text, unit: str | None = None) -> float:
     match = re.fullmatch(rf"({_NUMBER})\s*(.*)", raw)
     if match and not match.group(2).strip():
         return float(match.group(1))  # bare number: SI already
+    if match and match.group(2).strip() in _BARE_PREFIXES:
+        # "10k", "2.2p": a bare SI prefix, as resistor and capacitor values are often written;
+        # the unit is the expected one (pint alone would read "k" as Boltzmann's constant).
+        return _exact_scale(match.group(1), _BARE_PREFIXES[match.group(2).strip()])
     if match and match.group(2).strip() == "dBm":
         watts = float(dbm_to_watt(float(match.group(1))))
         if target is None:
