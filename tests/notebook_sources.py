@@ -1,0 +1,182 @@
+"""Source of the notebooks in notebooks/: run ``python tests/notebook_sources.py`` to rewrite them.
+
+The notebooks are thin: a short explanation of the stage, then a panel of
+:mod:`photorx.views.widgets` built on a demo design. They are stored with outputs cleared;
+tests/test_notebooks.py checks that and executes each one. Not collected by pytest.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import nbformat
+
+NOTEBOOK_DIR = Path(__file__).resolve().parents[1] / "notebooks"
+
+_SETUP = """%matplotlib inline
+import photorx as prx
+from photorx.views import widgets as pw"""
+
+NOTEBOOKS = {
+    "01_junction.ipynb": [
+        ("markdown", """# 1. The junction
+
+A photodiode is first of all a p-n junction. Reverse bias widens the depletion layer: the
+charge stored on each side grows, and the capacitance, which is what the amplifier sees,
+falls. How fast it falls depends on the doping profile: as the inverse square root of the
+total potential for an abrupt junction, the inverse cube root for a linearly graded one,
+and hardly at all for a p-i-n diode once the intrinsic layer is fully depleted
+(punch-through). Too much bias ends in avalanche breakdown.
+
+In forward bias the stored minority carriers add a diffusion capacitance that soon dwarfs
+the depletion capacitance. Circuit simulators describe the junction by three numbers, Cj0,
+Vj and m in Cj0 / (1 + V_R/Vj)^m; the panel fits them to the physical model.
+
+The panel starts from the junction of the demo design (an invented InGaAs p-i-n diode).
+Change the junction type, material, dopings, i-layer thickness, area or temperature; the
+table lists the built-in potential, the breakdown estimate and the fitted parameters."""),
+        ("code", _SETUP + """
+
+rx = prx.demo_receiver()
+panel = pw.junction_panel(rx)
+panel"""),
+        ("markdown", """The controls can also be driven from code, for example to compare the
+three junction types at the same area; the fitted parametric junction is kept on the panel:"""),
+        ("code", """panel.set(kind="abrupt")
+panel.fitted"""),
+    ],
+    "02_photodiode.ipynb": [
+        ("markdown", """# 2. The photodiode
+
+Light absorbed in the depletion layer is collected quickly by drift; light absorbed in the
+undepleted layers must first diffuse to it, slowly, and part of it recombines on the way.
+So the quantum efficiency depends on the wavelength (through the absorption length) and on
+the bias (through the depletion width). Speed has two limits: the carriers' transit time
+across the depletion layer, which grows with its width, and the RC time of the diode's
+capacitance with its load. The dark current has a diffusion part, a generation part that
+grows with the depleted volume, and surface leakage; all of them rise steeply with
+temperature.
+
+This notebook uses the invented silicon p-i-n receiver at 850 nm. Move the bias,
+wavelength, temperature and load to see each figure change."""),
+        ("code", _SETUP + """
+
+rx = prx.load_design("si-pin-850")
+panel = pw.photodiode_panel(rx)
+panel"""),
+    ],
+    "03_amplifier_loop.ipynb": [
+        ("markdown", """# 3. The amplifier loop
+
+In a transimpedance stage the photodiode capacitance sits at the amplifier's inverting
+input. The feedback factor therefore falls with frequency and the noise gain 1/beta rises,
+so the loop gain T = A beta reaches 0 dB with an extra lag: without a feedback capacitor
+the loop rings or oscillates. A small Cf across Rf puts a pole in the noise gain and
+restores the phase margin, at the price of some bandwidth.
+
+The Bode plot shows the open-loop gain, the noise gain and the loop gain; the closed-loop
+response, the step response and the margins follow each change of Rf, Cf, the amplifier's
+gain-bandwidth product and the reverse bias (which sets the diode capacitance). The
+*design Cf* button chooses Cf on the full model for the target you pick."""),
+        ("code", _SETUP + """
+
+rx = prx.demo_receiver()
+panel = pw.loop_panel(rx)
+panel"""),
+        ("markdown", """The same design step from code: choose Cf for a 60 degree phase margin and
+read the loop figures."""),
+        ("code", """panel.set(target="phase margin 60 deg")
+panel.design_cf()
+panel.metrics"""),
+    ],
+    "04_noise.ipynb": [
+        ("markdown", """# 4. Noise
+
+Every resistor and every current contributes noise: the thermal noise of Rf, of the
+diode's shunt and series resistance, the amplifier's current noise, the shot noise of the
+dark, signal and background currents, and the amplifier's voltage noise, which the noise
+gain lifts at high frequency (the e_n C term). The sources are uncorrelated, so their
+powers add: the stacked plot shows which one dominates where. Integrated over the real
+response of the stage and its post filter, they give the input-referred noise current,
+the noise-equivalent power and the signal-to-noise ratio.
+
+Change the bias, Rf, the optical power and the post filter; the table lists every source's
+share of the total."""),
+        ("code", _SETUP + """
+
+rx = prx.demo_receiver()
+panel = pw.noise_panel(rx)
+panel"""),
+    ],
+    "05_bias_tradeoff.ipynb": [
+        ("markdown", """# 5. The bias trade-off
+
+Reverse bias couples the three budgets. More bias shrinks the capacitance (a faster, more
+stable loop with less e_n C noise) and widens the depletion layer (longer transit, better
+response at long wavelengths), but raises the dark current and its shot noise, and the
+supply and breakdown set a ceiling. This panel sweeps the whole receiver against bias,
+marks the operating point and the constraints, finds the best bias (and optionally Rf and
+Cf) with the optimiser, and writes the budget tables (CSV, Markdown, LaTeX, ...) and the
+report into a folder of your choice.
+
+Results are model estimates: verify them on hardware, respect laser eye safety
+(IEC 60825-1), take care with high-voltage bias supplies and protect photodiode inputs
+against electrostatic discharge."""),
+        ("code", _SETUP + """
+
+rx = prx.demo_receiver()
+panel = pw.tradeoff_panel(rx)
+panel"""),
+        ("markdown", """Run the optimiser from code: maximise the SNR with the constraints set on
+the panel; the optimum is marked on the plots and listed under them."""),
+        ("code", """result = panel.run_optimizer()
+result.parameters, result.success"""),
+    ],
+    "06_closed_forms.ipynb": [
+        ("markdown", """# 6. Closed forms
+
+The numeric engine solves the full models; the textbook closed forms explain them. Each
+derivation here starts from its governing equations (Poisson's equation in the depletion
+approximation, charge control, Kirchhoff's current law at the summing node, the noise
+sources' spectral densities) and is carried out by sympy step by step. Beside each
+derivation, its results are evaluated at the demo design's values and compared with the
+numeric engine; the bar chart shows the relative difference of each quantity."""),
+        ("code", _SETUP + """
+
+rx = prx.demo_receiver()
+panel = pw.closed_forms_panel(rx)
+panel"""),
+        ("markdown", "The comparison table of another derivation, from code:"),
+        ("code", """panel.set(derivation="feedback capacitor")
+panel.checks"""),
+    ],
+}
+
+
+def build(name):
+    """The notebook ``name`` as an nbformat NotebookNode (outputs empty)."""
+    nb = nbformat.v4.new_notebook()
+    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3",
+                                 "language": "python"}
+    nb.metadata["language_info"] = {"name": "python"}
+    for kind, source in NOTEBOOKS[name]:
+        cell = (nbformat.v4.new_markdown_cell(source) if kind == "markdown"
+                else nbformat.v4.new_code_cell(source))
+        cell.pop("id", None)
+        nb.cells.append(cell)
+    return nb
+
+
+def write_all(folder=NOTEBOOK_DIR):
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    for name in NOTEBOOKS:
+        nb = build(name)
+        for i, cell in enumerate(nb.cells):  # stable ids keep diffs small
+            cell["id"] = f"{Path(name).stem[:2]}-{i}"
+        nbformat.validate(nb)
+        nbformat.write(nb, folder / name)
+
+
+if __name__ == "__main__":
+    write_all()
