@@ -133,7 +133,7 @@ class Panel:
         self.alarms = []
         self.last_update_seconds = float("nan")
         self.last_render_seconds = float("nan")
-        self.figure = Figure(figsize=self.figsize)
+        self.figure = Figure(figsize=self.figsize, dpi=self.dpi)
         FigureCanvasAgg(self.figure)  # headless canvas: no pyplot, no frontend needed
         self.image = w.Image(format="png", layout=w.Layout(max_width="100%"))
         self.table = w.HTML()
@@ -168,6 +168,9 @@ class Panel:
         """Ask the package for numbers and move the artists; may raise DesignError."""
         raise NotImplementedError
 
+    def _sync_controls(self):
+        """Adjust controls that depend on others (e.g. a slider's end); no update here."""
+
     def _layout_controls(self):
         w = _widgets()
         items = [c for c in self.controls.values()]
@@ -180,17 +183,29 @@ class Panel:
         return self.controls[name].value
 
     def set(self, **values):
-        """Set several controls at once and update once (for scripts and tests)."""
+        """Set several controls at once and update once (for scripts and tests).
+
+        Returns
+        -------
+        bool
+            What :meth:`update` returned: False when an error is shown in ``message``.
+        """
         self._updating = True
         try:
             for name, v in values.items():
                 self.controls[name].value = v
+                self._sync_controls()
         finally:
             self._updating = False
-        self.update()
+        return self.update()
 
     def _on_change(self, change):
         if not self._updating:
+            self._updating = True
+            try:
+                self._sync_controls()
+            finally:
+                self._updating = False
             self.update()
 
     def update(self):
@@ -245,9 +260,15 @@ class Panel:
 
     def render(self):
         """Draw the figure to PNG into ``image`` (the same figure every time)."""
+        from matplotlib.ticker import NullLocator
+
         start = time.perf_counter()
+        for ax in self.figure.axes:  # minor ticks of log axes cost more to draw than they show
+            for axis, scale in ((ax.xaxis, ax.get_xscale()), (ax.yaxis, ax.get_yscale())):
+                if scale == "log" and not isinstance(axis.get_minor_locator(), NullLocator):
+                    axis.set_minor_locator(NullLocator())
         buf = io.BytesIO()
-        self.figure.savefig(buf, format="png", dpi=self.dpi, pil_kwargs={"compress_level": 1})
+        self.figure.canvas.print_png(buf, pil_kwargs={"compress_level": 1})
         self.image.value = buf.getvalue()
         self.last_render_seconds = time.perf_counter() - start
 

@@ -149,7 +149,7 @@ class LoopPanel(Panel):
         for key, (xl, yl) in labels.items():
             a[key].set_xlabel(xl)
             a[key].set_ylabel(yl)
-            a[key].grid(True, which="both", alpha=0.3)
+            a[key].grid(True, alpha=0.3)
         a["magnitude"].legend(fontsize="x-small", loc="lower left")
 
     def design(self):
@@ -174,8 +174,7 @@ class LoopPanel(Panel):
             self._show_messages()
             return None
         slider = self.controls["cf"]
-        cf = float(np.clip(max(result.cf, _CF_MIN), slider.min_value if hasattr(
-            slider, "min_value") else 10 ** slider.min, 10 ** slider.max))
+        cf = float(np.clip(max(result.cf, _CF_MIN), 10 ** slider.min, 10 ** slider.max))
         self._design_note = (f"designed Cf = {format_eng(result.cf, 'F')} for "
                              f"{self.value('target')} (two-pole closed form "
                              f"{format_eng(result.closed_form_cf, 'F')})"
@@ -211,7 +210,7 @@ class LoopPanel(Panel):
             self.set_line(self.lines["crossover"], [], [])
             self.set_line(self.lines["phase_mark"], [], [])
         zt0 = m.dc_transimpedance
-        self.set_line(self.lines["closed_loop"], f, _db(zt / zt0))
+        self.set_line(self.lines["closed_loop"], f, _db(zt / zt0) if m.stable else np.nan * f)
         if m.stable:
             self.set_line(self.lines["bandwidth_mark"], [m.bandwidth], [-3.0])
             t_step, v_step = _step_response(tia, net, m)
@@ -227,9 +226,9 @@ class LoopPanel(Panel):
                       f"{m.peaking_db:.3g} dB)")
         for ax in self.axes.values():
             self.rescale(ax)
-        lo = max(-60.0, np.nanmin(_db(zt / zt0)))
-        self.axes["closed_loop"].set_ylim(lo - 3.0, max(3.0, m.peaking_db + 3.0)
-                                          if np.isfinite(m.peaking_db) else 20.0)
+        if m.stable:
+            lo = max(-60.0, float(np.nanmin(_db(zt / zt0))))
+            self.axes["closed_loop"].set_ylim(lo - 3.0, max(3.0, m.peaking_db + 3.0))
         self.table.value = rows_html(_metrics_rows(m), header=("loop figure", "value"))
         self.current = rx
 
@@ -277,7 +276,7 @@ class NoisePanel(Panel):
         (self.lines["total"],) = ax.plot([], [], color="k", lw=0.8, label="total")
         ax.set_xscale("log")
         ax.set_xlabel("frequency [Hz]")
-        ax.grid(True, which="both", alpha=0.3)
+        ax.grid(True, alpha=0.3)
 
     def design(self):
         """The receiver described by the controls."""

@@ -175,7 +175,8 @@ class JunctionPanel(Panel):
             fit_top = max(top, 1.0)
             fitted, resid = fit_parametric_junction(j, bias_range=(0.0, fit_top))
             self.set_line(self.lines["c_fit"], v, fitted.capacitance(v))
-            rows += [("fit Cj0", format_eng(fitted.cj0, "F")), ("fit Vj", format_eng(fitted.vj, "V")),
+            rows += [("fit Cj0", format_eng(fitted.cj0, "F")),
+                     ("fit Vj", format_eng(fitted.vj, "V")),
                      ("fit m", f"{fitted.m:.4g}"), ("fit rms error", f"{100 * resid:.3g} %")]
             self.fitted = fitted
         else:
@@ -202,7 +203,9 @@ class PhotodiodePanel(Panel):
         self.photodiode = self.receiver.photodiode
         super().__init__(render=render)
 
-    def _wavelength_span(self):
+    def _wavelength_span(self, temperature=300.0):
+        """Wavelengths [nm] where the absorption table, shifted with the band gap, applies."""
+        from ..constants import c, h, q
         from ..device import optics
 
         mat = self.photodiode.material
@@ -213,7 +216,14 @@ class PhotodiodePanel(Panel):
             wl = float(np.max(self.receiver.wavelength)) / nm
             return 0.5 * wl, 1.5 * wl
         table_wl = optics.absorption_table(mat.name)[0]
-        return float(table_wl[0]) / nm, float(table_wl[-1]) / nm
+        lo, hi = float(table_wl[0]), float(table_wl[-1])
+        # the table moves with the gap (optics.interpolate_absorption): a hotter, narrower
+        # gap moves its short-wavelength end up; beyond the long end alpha is 0 anyway
+        shift = mat.band_gap(temperature) - mat.band_gap(300.0)
+        if shift < 0:
+            hc = h * c / q  # [eV m]
+            lo = max(lo, hc / (hc / lo + shift) * (1 + 1e-9))
+        return lo / nm, hi / nm
 
     def _build_controls(self):
         rx = self.receiver
@@ -261,11 +271,17 @@ class PhotodiodePanel(Panel):
         for key, (xl, yl) in labels.items():
             a[key].set_xlabel(xl)
             a[key].set_ylabel(yl)
-            a[key].grid(True, which="both", alpha=0.3)
+            a[key].grid(True, alpha=0.3)
         for key in ("speed", "dark_bias", "dark_temperature"):
             a[key].set_yscale("log")
         for key in ("qe", "speed", "dark_bias"):
             a[key].legend(fontsize="x-small", loc="best")
+
+    def _sync_controls(self):
+        span = self.value("max_bias")
+        slider = self.controls["bias"]
+        if slider.max != span:  # moving the end may clip the value (callers hold _updating)
+            slider.max, slider.step = span, span / 200
 
     def _refresh(self):
         pd0 = self.photodiode
@@ -277,13 +293,6 @@ class PhotodiodePanel(Panel):
             self.note("note: this photodiode is described by datasheet values; the temperature "
                       "control does not apply to it")
         span = self.value("max_bias")
-        if self.controls["bias"].max != span:
-            self._updating = True  # moving the slider's end may clip its value: one update
-            try:
-                self.controls["bias"].max = span
-                self.controls["bias"].step = span / 200
-            finally:
-                self._updating = False
         bias = self.value("bias")
         wl = self.value("wavelength") * nm
         junction = pd_.junction
@@ -297,7 +306,7 @@ class PhotodiodePanel(Panel):
                 self.note(f"warning: bias span cut at the breakdown estimate {vbr:.4g} V")
                 span = 0.999 * vbr
         v = np.linspace(0.0, max(span, bias), _N_BIAS)
-        lo, hi = self._wavelength_span()
+        lo, hi = self._wavelength_span(temp)
         wls = np.linspace(lo, hi, 181) * nm
         self.set_line(self.lines["qe_zero"], wls / nm, pd_.quantum_efficiency(wls, 0.0))
         self.set_line(self.lines["qe_bias"], wls / nm, pd_.quantum_efficiency(wls, bias))

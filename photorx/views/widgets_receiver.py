@@ -115,7 +115,7 @@ class TradeoffPanel(Panel):
             if log:
                 ax.set_yscale("log")
             ax.set_ylabel(f"{label} [{unit}]")
-            ax.grid(True, which="both", alpha=0.3)
+            ax.grid(True, alpha=0.3)
         for key in ("bandwidth", "phase_margin", "dark_current"):
             self.limit_lines[key] = self.axes[key].axhline(1.0, color="0.5", lw=0.8, ls=":")
         for ax in axs[-1]:
@@ -135,15 +135,14 @@ class TradeoffPanel(Panel):
                 "phase_margin": (">=", self.value("min_phase_margin")),
                 "dark_current": ("<=", self.value("max_dark_current"))}
 
-    def _refresh(self):
+    def _sync_controls(self):
         span = self.value("span")
         slider = self.controls["bias"]
-        if slider.max != span:
-            self._updating = True
-            try:
-                slider.max, slider.step = span, span / 200
-            finally:
-                self._updating = False
+        if slider.max != span:  # moving the end may clip the value (callers hold _updating)
+            slider.max, slider.step = span, span / 200
+
+    def _refresh(self):
+        span = self.value("span")
         key = (span, self.value("points"), self.value("rf"), self.value("cf"))
         if key != self._sweep_key:
             self.frame = None

@@ -14,7 +14,7 @@ import numpy as np
 
 SCALE = 1e6  # model time unit 1 us: s_model = s / SCALE
 
-# designs: (name, parameters); cover Rs, finite Rsh, extra poles, Cf = 0, a conditionally tight loop
+# designs: cover Rs, finite Rsh, extra poles, Cf = 0 and a loop with two gain crossovers
 DESIGNS = {
     "plain": dict(gbw=100e6, dc_gain=1e5, poles=(), rf=1e5, cf=0.3e-12, cd=10e-12, rsh=np.inf,
                   rs=0.0, cin=2e-12),
@@ -24,6 +24,9 @@ DESIGNS = {
                       rsh=1e8, rs=10.0, cin=1e-12),
     "no_cf_pole": dict(gbw=50e6, dc_gain=2e5, poles=(150e6,), rf=1e5, cf=0.0, cd=20e-12,
                        rsh=1e9, rs=0.0, cin=5e-12),
+    # low gain, shunt far below Rf: |T| crosses 1 twice (margins -143.7 and 107.7 deg)
+    "two_crossings": dict(gbw=30e6, dc_gain=106.0, poles=(3.29e9,), rf=6.44e5, cf=5.08e-12,
+                          cd=21.9e-12, rsh=3990.0, rs=0.0, cin=0.583e-12),
 }
 
 
