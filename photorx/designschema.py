@@ -228,6 +228,9 @@ SCHEMA: tuple[Key, ...] = (
         doc="Largest acceptable dark current.", example="10 nA"),
     Key("limits", "max_bias", "V", None, check=">0",
         doc="Largest bias the supply provides.", example="20 V"),
+    Key("limits", "max_bias_power", "W", None, check=">0",
+        doc="Largest power the bias supply may deliver to the diode (bias times current).",
+        example="1 mW"),
     # -- optional analysis settings ------------------------------------------------------------
     Key("analysis", "noise_band_low", "Hz", 1.0, check=">0",
         doc="Lower edge of the noise integration (1/f noise diverges at 0 Hz).",

@@ -37,6 +37,7 @@ def receiver_budget(rx, title: str | None = None):
                                                         values["dominant_noise_source"])
     # A check without its limit is not a pass: say so instead of "yes".
     for name, given in (("bias_within_limit", rx.max_bias), ("dark_current_within_limit", rx.max_dark_current),
+                        ("bias_power_within_limit", rx.max_bias_power),
                         ("bandwidth_for_bit_rate", rx.bit_rate)):
         if given is None:
             values[name] = "no limit set" if name != "bandwidth_for_bit_rate" else "no bit rate set"

@@ -82,9 +82,11 @@ FIGURES = {
     "sensitivity": ("W", "sensitivity", "average optical power for the target BER"),
     "sensitivity_dbm": ("dBm", "sensitivity", "sensitivity for the target BER"),
     # checks
+    "bias_power": ("W", "checks", "power from the bias supply, bias x diode current"),
     "bias_below_breakdown": ("", "checks", "reverse bias below the breakdown estimate"),
     "bias_within_limit": ("", "checks", "reverse bias within the supply limit"),
     "dark_current_within_limit": ("", "checks", "dark current within its limit"),
+    "bias_power_within_limit": ("", "checks", "bias-supply power within its limit"),
     "bandwidth_for_bit_rate": ("", "checks", "bandwidth >= 0.7 x bit rate (NRZ rule of thumb)"),
 }
 
@@ -125,6 +127,9 @@ class Receiver:
         Dark-current limit [A] for the checks.
     max_bias : float, optional
         Bias-supply limit [V] for the checks.
+    max_bias_power : float, optional
+        Limit [W] on the power the bias supply delivers to the diode, reverse bias times
+        (dark + signal + background) current, for the checks.
     noise_band_low : float
         Lower edge of the noise integration [Hz], > 0 (1/f noise diverges at 0 Hz);
         the upper edge is infinite (the integral is extended until it converges).
@@ -144,6 +149,7 @@ class Receiver:
     target_ber: float = 1e-12
     max_dark_current: float | None = None
     max_bias: float | None = None
+    max_bias_power: float | None = None
     noise_band_low: float = 1.0
 
     def __post_init__(self):
@@ -175,6 +181,8 @@ class Receiver:
             set_(self, "max_dark_current", require_positive("max_dark_current", self.max_dark_current, "A"))
         if self.max_bias is not None:
             set_(self, "max_bias", require_positive("max_bias", self.max_bias, "V"))
+        if self.max_bias_power is not None:
+            set_(self, "max_bias_power", require_positive("max_bias_power", self.max_bias_power, "W"))
         set_(self, "noise_band_low", require_positive("noise_band_low", self.noise_band_low, "Hz"))
 
     # -- composition -------------------------------------------------------------------
@@ -424,6 +432,7 @@ def _evaluate(rx: Receiver) -> ReceiverResult:
     transit_time = bc(pd_.transit_time(v)) if hasattr(pd_, "transit_time") else bc(np.nan)
 
     v_b = bc(v)
+    bias_power = np.abs(v_b * bc(net.current))  # net.current = dark + signal + background
     values = {
         "reverse_bias": v_b, "wavelength": bc(rx.wavelength), "optical_power": p_b,
         "temperature": bc(rx.temperature), "depletion_width": width, "capacitance": cap,
@@ -446,9 +455,12 @@ def _evaluate(rx: Receiver) -> ReceiverResult:
         "nep": nep, "min_detectable_power": mdp, "snr": snr, "snr_db": snr_db,
         "max_photocurrent": bc(loop["max_photocurrent"]), "dynamic_range_db": dr_db,
         "target_ber": bc(rx.target_ber), "sensitivity": sens, "sensitivity_dbm": sens_dbm,
+        "bias_power": bias_power,
         "bias_below_breakdown": v_b < breakdown,
         "bias_within_limit": (v_b <= rx.max_bias) if rx.max_bias is not None else np.ones(shape, bool),
         "dark_current_within_limit": (bc(dark) <= rx.max_dark_current) if rx.max_dark_current is not None
+        else np.ones(shape, bool),
+        "bias_power_within_limit": (bias_power <= rx.max_bias_power) if rx.max_bias_power is not None
         else np.ones(shape, bool),
         "bandwidth_for_bit_rate": (bandwidth >= 0.7 * rx.bit_rate) if rx.bit_rate is not None
         else np.ones(shape, bool),
@@ -456,6 +468,11 @@ def _evaluate(rx: Receiver) -> ReceiverResult:
     warnings = []
     if not np.all(stable):
         warnings.append("the feedback loop is unstable at some design points: no bandwidth is reported there")
+    for name, what in (("bias_within_limit", "reverse bias above its supply limit"),
+                       ("dark_current_within_limit", "dark current above its limit"),
+                       ("bias_power_within_limit", "bias-supply power above its limit")):
+        if not np.all(values[name]):
+            warnings.append(f"{what} at some design points")
     if not np.all(values["bias_below_breakdown"]):
         warnings.append("reverse bias at or beyond the breakdown estimate at some design points")
     return ReceiverResult(values=values, noise_by_source={k: bc(x) for k, x in by_source.items()},

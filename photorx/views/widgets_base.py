@@ -40,12 +40,12 @@ def _widgets():
     return ipywidgets
 
 
-def log_slider(description, value, low, high, step=0.02, readout="%.3g"):
+def log_slider(description, value, low, high, step=0.02, readout=".3g"):
     """A logarithmic slider between ``low`` and ``high`` (display units) starting at ``value``."""
     w = _widgets()
     value = float(np.clip(value, low, high))
     return w.FloatLogSlider(value=value, base=10, min=np.log10(low), max=np.log10(high),
-                            step=step, description=description, readout_format=readout[1:],
+                            step=step, description=description, readout_format=readout,
                             continuous_update=False, style={"description_width": "initial"},
                             layout=w.Layout(width="340px"))
 
@@ -105,6 +105,8 @@ class Panel:
         The figure rendered to PNG (the output area's plot).
     table : ipywidgets.HTML
         Tables and figures of merit shown beside the plot.
+    output : ipywidgets.VBox
+        The output area: ``image`` and ``table`` (and a panel's extra views).
     message : ipywidgets.HTML
         Errors (red), model warnings (amber) and notes; empty when all is well.
     widget : ipywidgets.Box

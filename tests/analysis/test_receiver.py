@@ -155,3 +155,20 @@ def test_bad_inputs_name_the_parameter(rx):
         dataclasses.replace(rx, target_ber=0.7)
     with pytest.raises(prx.DesignError, match="tia"):
         dataclasses.replace(rx, tia="10k")
+
+
+def test_bias_supply_checks(rx):
+    """Limits given are checked; the bias power is V_r times the diode's DC current (Ohm's/Joule's law)."""
+    import dataclasses
+
+    r = rx.evaluate()
+    np.testing.assert_allclose(r.bias_power, 5.0 * rx.equivalent_circuit().current, rtol=1e-12)
+    tight = dataclasses.replace(rx, max_bias=4.0, max_dark_current=r.dark_current / 2,
+                                max_bias_power=r.bias_power / 2).evaluate()
+    assert not tight.bias_within_limit and not tight.dark_current_within_limit
+    assert not tight.bias_power_within_limit
+    assert any("supply limit" in w for w in tight.warnings)
+    loose = dataclasses.replace(rx, max_bias=10.0, max_dark_current=1e-6, max_bias_power=1.0).evaluate()
+    assert loose.bias_within_limit and loose.dark_current_within_limit and loose.bias_power_within_limit
+    with pytest.raises(prx.DesignError, match="max_bias_power"):
+        dataclasses.replace(rx, max_bias_power=-1.0)

@@ -8,6 +8,7 @@ area instead of raising, and follow facts of the trade where a control's effect 
 """
 
 import dataclasses
+import html
 
 import numpy as np
 import pytest
@@ -247,6 +248,7 @@ def test_loop_unstable_is_reported_in_the_message_area(rx):
     assert panel.metrics.stable is False
     assert "unstable" in panel.message.value and "color:#b00020" in panel.message.value
     assert len(xdata(panel.lines["step"])) == 0  # no step response, no bandwidth mark
+    assert np.all(np.isnan(ydata(panel.lines["closed_loop"])))  # no closed-loop response
     assert len(xdata(panel.lines["bandwidth_mark"])) == 0
     assert "NO: unstable loop" in panel.table.value
     panel.controls["cf"].value = 100e-15
@@ -407,3 +409,50 @@ def test_closed_forms_checks_follow_the_bias(rx):
     # less reverse bias, narrower depletion layer (Sze and Ng, 3rd ed., ch. 2)
     assert panel.checks.loc[0, "engine"] < w_high
     assert np.all(panel.checks["relative difference"] < 1e-9)
+
+
+# ------------------------------------------------------------------------------ robustness
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+def _log_in(slider):
+    return st.floats(slider.min, slider.max).map(lambda e: 10.0 ** e)
+
+
+_JUNCTION = pw.junction_panel(render=False)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.data())
+def test_junction_panel_never_raises_over_its_control_ranges(data):
+    # any combination the sliders allow gives curves or a message, never an exception
+    c = _JUNCTION.controls
+    values = {"kind": data.draw(st.sampled_from(c["kind"].options)),
+              "material": data.draw(st.sampled_from(c["material"].options)),
+              "temperature": data.draw(st.floats(c["temperature"].min, c["temperature"].max)),
+              "max_bias": data.draw(st.floats(c["max_bias"].min, c["max_bias"].max))}
+    for name in ("na", "nd", "gradient", "i_thickness", "i_doping", "area", "lifetime"):
+        values[name] = data.draw(_log_in(c[name]))
+    ok = _JUNCTION.set(**values)
+    if ok:
+        v = xdata(_JUNCTION.lines["c_junction"])
+        np.testing.assert_allclose(ydata(_JUNCTION.lines["c_junction"]),
+                                   _JUNCTION.current.capacitance(v), rtol=1e-12)
+    else:
+        assert _JUNCTION.error and _JUNCTION.error in html.unescape(_JUNCTION.message.value)
+
+
+_LOOP = pw.loop_panel(render=False)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.data())
+def test_loop_panel_never_raises_and_flags_every_unstable_loop(data):
+    c = _LOOP.controls
+    values = {name: data.draw(_log_in(c[name])) for name in ("rf", "cf", "gbw")}
+    values["bias"] = data.draw(st.floats(c["bias"].min, c["bias"].max))
+    assert _LOOP.set(**values)
+    stable = _LOOP.metrics.stable
+    assert ("unstable" in _LOOP.message.value) == (not stable)
+    assert (len(xdata(_LOOP.lines["step"])) > 0) == stable
