@@ -17,13 +17,9 @@ import numpy as np
 import pandas as pd
 
 from .._validate import require_in_range, require_nonnegative, require_positive
-from ..circuit.filters import PostFilter, filter_response
-from ..circuit.metrics import tia_figures
-from ..circuit.tia import Tia, transimpedance
+from ..circuit.filters import PostFilter
+from ..circuit.tia import Tia
 from ..errors import DesignError
-from .noise import chain_enbw, integrated_output_noise
-from .sensitivity import (analog_snr, dynamic_range, minimum_detectable_power,
-                          noise_equivalent_power, q_from_ber, required_average_power)
 
 __all__ = ["Receiver", "ReceiverResult", "FIGURES"]
 
@@ -223,8 +219,13 @@ class Receiver:
                     cin=amp.input_capacitance)
 
     def evaluate(self) -> "ReceiverResult":
-        """Every figure of merit at this operating point (arrays if any field is an array)."""
-        return _evaluate(self)
+        """Every figure of merit at this operating point (arrays if any field is an array).
+
+        See :func:`photorx.analysis.evaluation.evaluate_receiver`.
+        """
+        from .evaluation import evaluate_receiver
+
+        return evaluate_receiver(self)
 
     def budget(self, title: str | None = None):
         """Budget tables of this (scalar) design: a :class:`~photorx.views.tables.Budget`."""
@@ -289,191 +290,3 @@ class ReceiverResult:
             f"<tr><td>{FIGURES[k][2]}</td><td>{display_value(frame[k].iloc[0], FIGURES[k][0])}</td></tr>"
             for k in FIGURES if k in frame)
         return f"<table><tr><th>figure</th><th>value</th></tr>{rows}</table>"
-
-
-# ----------------------------------------------------------------------------------------
-# evaluation: calls each stage's vectorised core once
-# ----------------------------------------------------------------------------------------
-_BW_GRID = np.logspace(-4.0, 1.5, 111)  # 20 points per decade relative to a scale frequency
-
-
-def _expand_circuit(circuit):
-    return {k: (tuple(np.asarray(p, dtype=float)[..., None] for p in val) if k == "poles"
-                else np.asarray(val, dtype=float)[..., None]) for k, val in circuit.items()}
-
-
-def _minus_3db(response, ref, scale, shape):
-    """First frequency where |response| falls below ref/sqrt(2), for every design.
-
-    A log grid of 20 points per decade relative to ``scale`` brackets the first crossing
-    (peaking above the reference does not stop the search); the Illinois variant of false
-    position on log|H| against log f then refines every bracket at once. Within a bracket
-    of 12 % in frequency log|H| is nearly linear in log f, so 8 steps reach about 1e-9
-    relative. NaN where no crossing exists or ``scale`` is not finite (an unstable loop has
-    no bandwidth).
-    """
-    scale = np.asarray(scale, dtype=float)
-    log_level = np.log(np.asarray(ref, dtype=float) / np.sqrt(2.0))[..., None]
-    f = np.where(np.isfinite(scale) & (scale > 0), scale, 1.0)[..., None] * _BW_GRID
-    with np.errstate(divide="ignore"):
-        g = np.log(np.abs(response(f))) - log_level
-    below = g < 0
-    has = below.any(axis=-1)
-    k = np.clip(np.argmax(below, axis=-1), 1, f.shape[-1] - 1)[..., None]
-    x_lo, x_hi = np.log(np.take_along_axis(f, k - 1, -1)), np.log(np.take_along_axis(f, k, -1))
-    g_lo, g_hi = np.take_along_axis(g, k - 1, -1), np.take_along_axis(g, k, -1)
-    x = x_lo
-    last = np.zeros(x.shape, dtype=int)  # which end the previous step replaced: +1 low, -1 high
-    for _ in range(8):
-        denom = np.where(g_lo != g_hi, g_lo - g_hi, 1.0)
-        x = np.clip(x_lo + g_lo * (x_hi - x_lo) / denom, x_lo, x_hi)
-        with np.errstate(divide="ignore"):
-            gx = np.log(np.abs(response(np.exp(x)))) - log_level
-        above = gx >= 0
-        # Illinois step: when the same end is replaced twice, halve the other end's value
-        g_hi = np.where(above & (last == 1), 0.5 * g_hi, g_hi)
-        g_lo = np.where(~above & (last == -1), 0.5 * g_lo, g_lo)
-        x_lo, g_lo = np.where(above, x, x_lo), np.where(above, gx, g_lo)
-        x_hi, g_hi = np.where(above, x_hi, x), np.where(above, g_hi, gx)
-        last = np.where(above, 1, -1)
-    bw = np.where(has & np.isfinite(scale), np.exp(x[..., 0]), np.nan)
-    return np.broadcast_to(bw, shape)
-
-
-def _evaluate(rx: Receiver) -> ReceiverResult:
-    pd_ = rx.photodiode_at_temperature()
-    v = rx.reverse_bias
-    amp = rx.tia.amp
-    net = rx.equivalent_circuit()
-    responsivity = np.asarray(pd_.responsivity(rx.wavelength, v), dtype=float)
-    dark = np.asarray(pd_.dark_current(v), dtype=float)
-    i_sig = responsivity * rx.optical_power
-    i_bg = responsivity * rx.background_power
-    circuit = rx._circuit(net)
-
-    loop = tia_figures(**circuit, output_swing=amp.output_swing)
-    stable = np.asarray(loop["stable"], dtype=bool)
-    shape = np.broadcast_shapes(np.shape(stable), np.shape(v), np.shape(rx.wavelength),
-                                np.shape(rx.optical_power), np.shape(rx.temperature))
-    bc = lambda x: np.broadcast_to(np.asarray(x, dtype=float), shape)  # noqa: E731
-
-    # Speed: the whole chain H_pd * Zt * H_filter, and the photodiode alone.
-    v_e = np.asarray(v, dtype=float)[..., None]
-    wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
-    circuit_e = _expand_circuit(circuit)
-    pf = rx.post_filter
-
-    def chain(f):
-        h = pd_.intrinsic_response(f, v_e, wl_e) * transimpedance(f, **circuit_e)
-        return h if pf is None else h * filter_response(f, pf.kind, pf.order, pf.cutoff)
-
-    loop_bw = bc(loop["bandwidth"])
-    bandwidth = _minus_3db(chain, bc(loop["dc_transimpedance"]), loop_bw, shape)
-    transit_bw = bc(pd_.transit_bandwidth(v, rx.wavelength))
-    pd_bw = _minus_3db(lambda f: pd_.intrinsic_response(f, v_e, wl_e), bc(1.0),
-                       np.where(np.isfinite(transit_bw), transit_bw, loop_bw), shape)
-    pd_bw = np.where(np.isnan(pd_bw) & ~np.isfinite(transit_bw), np.inf, pd_bw)
-    filter_bw = bc(pf.cutoff if pf is not None else np.inf)
-    parts = np.stack([loop_bw, pd_bw, filter_bw])
-    diffusion_limited = pd_bw < 0.95 * transit_bw
-    names = np.array(["amplifier loop", "photodiode", "post filter"])
-    limited_by = names[np.argmin(np.where(np.isnan(parts), np.inf, parts), axis=0)]
-    limited_by = np.where(limited_by == "photodiode",
-                          np.where(diffusion_limited, "photodiode diffusion tail", "photodiode transit"),
-                          limited_by)
-    limited_by = np.where(np.isfinite(bandwidth), limited_by, "unstable loop")
-
-    # Noise: every source integrated over the real response (shared adaptive grid).
-    noise_params = dict(
-        circuit, en=amp.voltage_noise, en_corner=amp.voltage_noise_corner, in_=amp.current_noise,
-        in_corner=amp.current_noise_corner, temperature=rx.temperature,
-        i_shot={"dark": bc(dark), "signal": bc(i_sig), "background": bc(i_bg)})
-    if rx.post_filter is not None:
-        noise_params.update(filter_kind=rx.post_filter.kind, filter_order=rx.post_filter.order,
-                            filter_cutoff=rx.post_filter.cutoff)
-    noise_params = {k: (val if k in ("poles", "i_shot", "filter_kind", "filter_order") else bc(val))
-                    for k, val in noise_params.items()}
-    noise_params["poles"] = tuple(bc(p) for p in circuit["poles"])
-    mean_square = integrated_output_noise(rx.noise_band_low, np.inf, **noise_params)
-    enbw_kw = {k: noise_params[k] for k in circuit}
-    if rx.post_filter is not None:
-        enbw_kw.update(filter_kind=rx.post_filter.kind, filter_order=rx.post_filter.order,
-                       filter_cutoff=rx.post_filter.cutoff)
-    enbw = bc(chain_enbw(**enbw_kw))
-    zt0 = np.abs(bc(loop["dc_transimpedance"]))
-    total_ms = sum(mean_square.values())
-    out_rms = np.sqrt(total_ms)
-    in_rms = out_rms / zt0
-    by_source = {name: np.sqrt(ms) / zt0 for name, ms in mean_square.items()}
-    circuit_ms = total_ms - mean_square.get("shot_signal", 0.0) - mean_square.get("shot_dark", 0.0)
-    circuit_rms = np.sqrt(np.clip(circuit_ms, 0.0, None)) / zt0
-    keys = list(mean_square)
-    dominant = np.array(keys)[np.argmax(np.stack([bc(mean_square[k]) for k in keys]), axis=0)]
-
-    in_density = in_rms / np.sqrt(enbw)
-    resp_b = bc(responsivity)
-    nep = noise_equivalent_power(in_density, resp_b)
-    mdp = minimum_detectable_power(in_rms, resp_b)
-    p_b = bc(rx.optical_power)
-    snr = np.where(p_b > 0, analog_snr(p_b, resp_b, circuit_rms, enbw, rx.modulation_depth, bc(dark)), 0.0)
-    with np.errstate(divide="ignore"):
-        snr_db = np.where(snr > 0, 10.0 * np.log10(np.where(snr > 0, snr, 1.0)), -np.inf)
-    dr_db = 20.0 * np.log10(bc(dynamic_range(amp.output_swing, zt0, in_rms)))  # current ratio
-    q_target = q_from_ber(rx.target_ber)
-    sens = bc(required_average_power(q_target, resp_b, circuit_rms, enbw, rx.extinction_ratio, bc(dark)))
-    sens_dbm = 10.0 * np.log10(sens / 1e-3)
-
-    junction = getattr(pd_, "junction", None)
-    width = bc(junction.depletion_width(v)) if hasattr(junction, "depletion_width") else bc(np.nan)
-    breakdown = bc(junction.breakdown_voltage()) if hasattr(junction, "breakdown_voltage") else bc(np.inf)
-    cap = bc(pd_.capacitance(v))
-    qe = bc(pd_.quantum_efficiency(rx.wavelength, v)) if hasattr(pd_, "quantum_efficiency") else \
-        bc(responsivity * 1.23984198e-6 / np.asarray(rx.wavelength))
-    transit_time = bc(pd_.transit_time(v)) if hasattr(pd_, "transit_time") else bc(np.nan)
-
-    v_b = bc(v)
-    bias_power = np.abs(v_b * bc(net.current))  # net.current = dark + signal + background
-    values = {
-        "reverse_bias": v_b, "wavelength": bc(rx.wavelength), "optical_power": p_b,
-        "temperature": bc(rx.temperature), "depletion_width": width, "capacitance": cap,
-        "input_capacitance": bc(net.capacitance) + bc(amp.input_capacitance),
-        "responsivity": resp_b, "quantum_efficiency": qe, "photocurrent": bc(i_sig),
-        "background_current": bc(i_bg), "dark_current": bc(dark),
-        "shunt_resistance": bc(net.shunt_resistance), "series_resistance": bc(net.series_resistance),
-        "breakdown_voltage": breakdown,
-        "bandwidth": bandwidth, "loop_bandwidth": bc(loop["bandwidth"]), "transit_bandwidth": transit_bw,
-        "photodiode_bandwidth": pd_bw,
-        "transit_time": transit_time, "filter_bandwidth": filter_bw, "limited_by": limited_by,
-        "rise_time": bc(loop["rise_time"]), "dc_transimpedance": zt0,
-        "stable": np.broadcast_to(stable, shape), "phase_margin": bc(loop["phase_margin"]),
-        "gain_margin_db": bc(loop["gain_margin_db"]), "crossover": bc(loop["crossover"]),
-        "peaking_db": bc(loop["peaking_db"]), "overshoot": bc(loop["overshoot"]), "q": bc(loop["q"]),
-        "settling_time": bc(loop["settling_time"]),
-        "noise_bandwidth": enbw, "output_noise_rms": out_rms, "input_noise_rms": in_rms,
-        "input_noise_density": in_density, "circuit_noise_rms": circuit_rms,
-        "dominant_noise_source": dominant,
-        "nep": nep, "min_detectable_power": mdp, "snr": snr, "snr_db": snr_db,
-        "max_photocurrent": bc(loop["max_photocurrent"]), "dynamic_range_db": dr_db,
-        "target_ber": bc(rx.target_ber), "sensitivity": sens, "sensitivity_dbm": sens_dbm,
-        "bias_power": bias_power,
-        "bias_below_breakdown": v_b < breakdown,
-        "bias_within_limit": (v_b <= rx.max_bias) if rx.max_bias is not None else np.ones(shape, bool),
-        "dark_current_within_limit": (bc(dark) <= rx.max_dark_current) if rx.max_dark_current is not None
-        else np.ones(shape, bool),
-        "bias_power_within_limit": (bias_power <= rx.max_bias_power) if rx.max_bias_power is not None
-        else np.ones(shape, bool),
-        "bandwidth_for_bit_rate": (bandwidth >= 0.7 * rx.bit_rate) if rx.bit_rate is not None
-        else np.ones(shape, bool),
-    }
-    warnings = []
-    if not np.all(stable):
-        warnings.append("the feedback loop is unstable at some design points: no bandwidth is reported there")
-    for name, what in (("bias_within_limit", "reverse bias above its supply limit"),
-                       ("dark_current_within_limit", "dark current above its limit"),
-                       ("bias_power_within_limit", "bias-supply power above its limit")):
-        if not np.all(values[name]):
-            warnings.append(f"{what} at some design points")
-    if not np.all(values["bias_below_breakdown"]):
-        warnings.append("reverse bias at or beyond the breakdown estimate at some design points")
-    return ReceiverResult(values=values, noise_by_source={k: bc(x) for k, x in by_source.items()},
-                          warnings=tuple(warnings))

@@ -172,3 +172,18 @@ def test_bias_supply_checks(rx):
     assert loose.bias_within_limit and loose.dark_current_within_limit and loose.bias_power_within_limit
     with pytest.raises(prx.DesignError, match="max_bias_power"):
         dataclasses.replace(rx, max_bias_power=-1.0)
+
+
+def test_datasheet_photodiode_receiver(rx):
+    """A diode known only by its data-sheet numbers: the circuit sets the speed, and the
+    figures the numbers cannot give are reported as unknown (NaN), never invented."""
+    import dataclasses
+
+    pd = prx.Photodiode.from_datasheet(responsivity=0.6, capacitance=[5e-12, 2e-12], capacitance_bias=[0, 10],
+                                       dark_current=1e-9, dark_current_bias=5.0)
+    r = dataclasses.replace(rx, photodiode=pd).evaluate()
+    assert np.isnan(r.transit_time) and np.isnan(r.depletion_width)
+    assert r.limited_by == "amplifier loop"
+    np.testing.assert_allclose(r.bandwidth, r.loop_bandwidth, rtol=1e-9)  # H_pd = 1
+    np.testing.assert_allclose(r.responsivity, 0.6, rtol=1e-12)
+    np.testing.assert_allclose(r.dark_current, 1e-9, rtol=1e-6)
