@@ -19,6 +19,7 @@ from ..circuit.metrics import tia_figures
 from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
 from .noise import chain_enbw, integrated_output_noise
+from .parameters import with_trailing_axis
 from .sensitivity import (analog_snr, dynamic_range, minimum_detectable_power,
                           noise_equivalent_power, q_from_ber, required_average_power)
 
@@ -145,12 +146,13 @@ def _operating_point(p: _Point) -> dict:
 def _speed(p: _Point) -> dict:
     """Bandwidth of the whole chain H_pd * Zt * H_filter, of its parts, and which one limits it."""
     rx, pd_, loop, pf = p.rx, p.pd, p.loop, p.rx.post_filter
+    pd_e = with_trailing_axis(pd_, p.shape)  # swept diode fields broadcast against f grids
     v_e = np.asarray(p.v, dtype=float)[..., None]
     wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
     circuit_e = _expand(p.circuit)
 
     def photodiode(f):
-        return pd_.intrinsic_response(f, v_e, wl_e)
+        return pd_e.intrinsic_response(f, v_e, wl_e)
 
     def chain(f):
         h = photodiode(f) * transimpedance(f, **circuit_e)

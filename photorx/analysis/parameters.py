@@ -14,7 +14,8 @@ import dataclasses
 
 from ..errors import DesignError
 
-__all__ = ["parameter_paths", "resolve_parameter", "get_parameter", "with_parameters"]
+__all__ = ["parameter_paths", "resolve_parameter", "get_parameter", "with_parameters",
+           "with_trailing_axis"]
 
 # Breadth-first search order: the receiver's own fields win over same-named deeper ones
 # (the receiver's temperature is the operating temperature of every part).
@@ -103,3 +104,26 @@ def _is_number(value) -> bool:
     except Exception:  # pragma: no cover
         return False
     return arr.dtype.kind in "fiu"
+
+
+def with_trailing_axis(obj, shape):
+    """Copy of a dataclass tree with every design-point array (of exactly ``shape``) given a
+    trailing axis, ``value[..., None]``, so that the tree broadcasts against a frequency grid
+    of shape ``shape + (n,)``. Scalars and other arrays (tables) are left alone.
+    """
+    import numpy as np
+
+    if not shape:
+        return obj
+    changes = {}
+    for fld in dataclasses.fields(obj):
+        if fld.name in _SKIP:
+            continue
+        value = getattr(obj, fld.name)
+        if dataclasses.is_dataclass(value) and not isinstance(value, type):
+            new = with_trailing_axis(value, shape)
+            if new is not value:
+                changes[fld.name] = new
+        elif isinstance(value, np.ndarray) and value.shape == tuple(shape):
+            changes[fld.name] = value[..., None]
+    return dataclasses.replace(obj, **changes) if changes else obj

@@ -200,16 +200,17 @@ class Photodiode:
         else:
             setf(self, "given_responsivity", _responsivity_table(r))
         if self.reflectance is not None:
-            setf(self, "reflectance", float(require_in_range(
-                "reflectance", self.reflectance, "", 0.0, 1.0, high_inclusive=False)))
-        setf(self, "top_thickness", float(require_nonnegative("top_thickness",
-                                                              self.top_thickness, "m")))
-        at = float(optics.require_thickness_or_inf("absorber_thickness", self.absorber_thickness))
-        if at <= 0:
-            raise DesignError.out_of_range("absorber_thickness", at, "m", "> 0 (inf allowed)")
+            setf(self, "reflectance", require_in_range(
+                "reflectance", self.reflectance, "", 0.0, 1.0, high_inclusive=False))
+        # Geometry and parasitics may be arrays (one value per design point of a sweep).
+        setf(self, "top_thickness", require_nonnegative("top_thickness", self.top_thickness, "m"))
+        at = _out(np.asarray(optics.require_thickness_or_inf("absorber_thickness",
+                                                             self.absorber_thickness), dtype=float))
+        if np.any(np.asarray(at) <= 0):
+            raise DesignError.out_of_range("absorber_thickness", np.min(at), "m", "> 0 (inf allowed)")
         setf(self, "absorber_thickness", at)
-        setf(self, "top_diffusion_length", float(require_positive(
-            "top_diffusion_length", self.top_diffusion_length, "m")))
+        setf(self, "top_diffusion_length", require_positive(
+            "top_diffusion_length", self.top_diffusion_length, "m"))
         setf(self, "lifetime", _optional_positive("lifetime", self.lifetime, "s"))
         setf(self, "generation_lifetime", _optional_positive(
             "generation_lifetime", self.generation_lifetime, "s"))
@@ -217,10 +218,10 @@ class Photodiode:
         if not rl > 0:
             raise DesignError.out_of_range("leakage_resistance", rl, "ohm", "> 0 (inf allowed)")
         setf(self, "leakage_resistance", rl)
-        setf(self, "series_resistance", float(require_nonnegative(
-            "series_resistance", self.series_resistance, "ohm")))
-        setf(self, "package_capacitance", float(require_nonnegative(
-            "package_capacitance", self.package_capacitance, "F")))
+        setf(self, "series_resistance", require_nonnegative(
+            "series_resistance", self.series_resistance, "ohm"))
+        setf(self, "package_capacitance", require_nonnegative(
+            "package_capacitance", self.package_capacitance, "F"))
         if self.illuminated_side not in ("p", "n"):
             raise DesignError(f"illuminated_side = {self.illuminated_side!r} is invalid; "
                               "valid: 'p' (p-on-n) or 'n' (n-on-p)", parameter="illuminated_side")

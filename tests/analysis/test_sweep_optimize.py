@@ -61,3 +61,16 @@ def test_optimize_meets_constraints(rx):
 def test_optimize_bad_constraint(rx):
     with pytest.raises(prx.DesignError, match="bandwidth"):
         prx.optimize(rx, vary={"reverse_bias": (0, 10)}, constraints={"bandwidth": 1e9})
+
+
+@pytest.mark.parametrize("axis, values", [("i_thickness", [10e-6, 30e-6]), ("temperature", [280.0, 330.0]),
+                                          ("series_resistance", [1.0, 100.0])])
+def test_sweep_over_photodiode_fields_matches_point_evaluations(rx, axis, values):
+    """Fields deep in the photodiode tree broadcast against the frequency grids too."""
+    from photorx.analysis.parameters import with_parameters
+
+    df = prx.sweep(rx, **{axis: values})
+    for value, (_, row) in zip(values, df.iterrows()):
+        one = with_parameters(rx, **{axis: value}).evaluate()
+        for name in ("capacitance", "bandwidth", "photodiode_bandwidth", "input_noise_rms", "dark_current"):
+            np.testing.assert_allclose(row[name], one.values[name], rtol=1e-6, err_msg=f"{axis} {name}")
