@@ -26,12 +26,19 @@ ERROR_STYLE = "color:#b00020"  # how photorx.views.widgets_base marks an error m
 
 @pytest.fixture(scope="module")
 def kernel_dirs(tmp_path_factory):
-    """A folder holding a "python3" kernel spec that runs the current interpreter."""
+    """A folder holding a "python3" kernel spec that runs the current interpreter.
+
+    Connection files and the kernel's IPython profile go to temporary folders too, so the
+    run neither depends on nor writes to the user's home (IPython startup files, runtime).
+    """
     from ipykernel.kernelspec import write_kernel_spec
 
     root = tmp_path_factory.mktemp("kernels")
     write_kernel_spec(path=str(root / "python3"))
-    return str(root)
+    with pytest.MonkeyPatch.context() as mp:
+        mp.setenv("JUPYTER_RUNTIME_DIR", str(tmp_path_factory.mktemp("runtime")))
+        mp.setenv("IPYTHONDIR", str(tmp_path_factory.mktemp("ipython")))
+        yield str(root)
 
 
 def execute(nb, kernel_dirs, cwd):

@@ -149,15 +149,8 @@ class Panel:
                 control.observe(self._on_change, names="value")
         self.widget = w.VBox([w.HTML(f"<h3>{html.escape(self.title)}</h3>"),
                               self._layout_controls(), self.message, self.output])
-        self.render_enabled = False
+        self._laid_out = False
         self.update()
-        self.render_enabled = bool(render)
-        try:  # lay out once, with data in the axes; later updates keep the layout
-            self.figure.tight_layout()
-        except ValueError:  # an empty log axis after a failed first update
-            pass
-        if self.render_enabled:
-            self.render()
 
     # -- to be provided by subclasses -------------------------------------------------------
     def _build_controls(self):  # pragma: no cover - abstract
@@ -262,13 +255,21 @@ class Panel:
 
     def render(self):
         """Draw the figure to PNG into ``image`` (the same figure every time)."""
-        from matplotlib.ticker import NullLocator
+        from matplotlib.ticker import LogLocator
 
         start = time.perf_counter()
-        for ax in self.figure.axes:  # minor ticks of log axes cost more to draw than they show
+        if not self._laid_out:  # lay out once, with data in the axes; later draws keep it
+            try:
+                self.figure.tight_layout()
+                self._laid_out = True
+            except ValueError:  # an empty log axis (a failed first update): try next time
+                pass
+        for ax in self.figure.axes:  # 8 minor ticks a decade cost more to draw than they show
             for axis, scale in ((ax.xaxis, ax.get_xscale()), (ax.yaxis, ax.get_yscale())):
-                if scale == "log" and not isinstance(axis.get_minor_locator(), NullLocator):
-                    axis.set_minor_locator(NullLocator())
+                if scale == "log" and not getattr(axis.get_minor_locator(), "_photorx", False):
+                    locator = LogLocator(base=10.0, subs=(2.0, 5.0))
+                    locator._photorx = True
+                    axis.set_minor_locator(locator)
         buf = io.BytesIO()
         self.figure.canvas.print_png(buf, pil_kwargs={"compress_level": 1})
         self.image.value = buf.getvalue()

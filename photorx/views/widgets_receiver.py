@@ -29,8 +29,10 @@ _PLOTTED = {
     "input_noise_rms": ("input noise (rms)", "A", True),
     "sensitivity_dbm": ("sensitivity", "dBm", False),
     "dark_current": ("dark current", "A", True),
-    "snr_db": ("SNR", "dB", False),
+    "choice": ("SNR", "dB", False),  # the sixth axes shows the figure chosen in "plot"
 }
+#: figures that are not numbers (or are yes/no checks) cannot be plotted against bias
+_NOT_PLOTTED = {"stable", "limited_by", "dominant_noise_source", "reverse_bias"}
 _OBJECTIVES = ("snr_db", "sensitivity_dbm", "nep", "bandwidth", "input_noise_rms")
 _FORMATS = ("csv", "md", "latex", "html", "json")
 
@@ -68,6 +70,8 @@ class TradeoffPanel(Panel):
             "cf": log_slider("Cf [F]", max(float(rx.tia.cf), 1e-16), 1e-16, 1e-8),
             "objective": w.Dropdown(options=_OBJECTIVES, value="snr_db",
                                     description="objective"),
+            "plot": w.Dropdown(options=self._plottable(), value="snr_db",
+                               description="6th plot"),
             "min_bandwidth": log_slider("min bandwidth [Hz]", bw_min, 1.0, 1e11),
             "min_phase_margin": lin_slider("min phase margin [deg]", 45.0, 0.0, 89.0, 1.0),
             "max_dark_current": log_slider("max dark current [A]", dark_max, 1e-15, 1e-3),
@@ -86,11 +90,18 @@ class TradeoffPanel(Panel):
         self.export_button.on_click(lambda _: self.export_budget())
         self.report_button.on_click(lambda _: self.export_report())
 
+    @staticmethod
+    def _plottable():
+        from ..analysis.receiver import FIGURES
+
+        return [name for name, (_, table, _) in FIGURES.items()
+                if table != "checks" and name not in _NOT_PLOTTED] + ["bias_power"]
+
     def _layout_controls(self):
         w = _widgets()
         c = self.controls
         return w.VBox([
-            w.HBox([c["bias"], c["span"], c["points"]]),
+            w.HBox([c["bias"], c["span"], c["points"], c["plot"]]),
             w.HBox([c["rf"], c["cf"], c["objective"]]),
             w.HBox([c["min_bandwidth"], c["min_phase_margin"], c["max_dark_current"]]),
             w.HBox([c["vary_rf"], c["vary_cf"], self.optimize_button, self.apply_button]),
@@ -129,6 +140,17 @@ class TradeoffPanel(Panel):
         return dataclasses.replace(rx, tia=tia, reverse_bias=self.value("bias")
                                    if bias is None else bias)
 
+    @staticmethod
+    def _label_choice(ax, column, y):
+        """Label and scale of the freely chosen axes (log for positive data over a decade)."""
+        from ..analysis.receiver import FIGURES
+
+        unit, _, description = FIGURES.get(column, ("", "", column))
+        ax.set_ylabel(f"{description} [{unit}]" if unit else description, fontsize="small")
+        good = y[np.isfinite(y)]
+        log = good.size > 1 and np.all(good > 0) and good.max() > 10.0 * good.min()
+        ax.set_yscale("log" if log else "linear")
+
     def constraints(self):
         """The constraints of the controls, in :func:`photorx.optimize` form."""
         return {"bandwidth": (">=", self.value("min_bandwidth")),
@@ -155,17 +177,27 @@ class TradeoffPanel(Panel):
                                f"{vbr:.4g} V: the sweep stops below breakdown")
                     bias = bias[bias < vbr]
             self.frame = sweep(self.design(), reverse_bias=bias)
+            if self._sweep_key is not None and self.optimum is not None:
+                self.optimum = None  # found for another design: run the optimiser again
+                for name in self.axes:
+                    self.lines[f"{name}_optimum"].set_visible(False)
             self._sweep_key = key
             self._limit_alarms = list(self.alarms)
         else:
             self.alarms.extend(self._limit_alarms)
+        for name, (op, limit) in self.constraints().items():  # before autoscaling
+            self.limit_lines[name].set_ydata([limit, limit])
         frame = self.frame
         v = frame["reverse_bias"].to_numpy(dtype=float)
         for name, ax in self.axes.items():
-            self.set_line(self.lines[name], v, frame[name].to_numpy(dtype=float))
+            column = self.value("plot") if name == "choice" else name
+            if column not in frame.columns:
+                self.fail(f"plot = {column!r} is not a figure of the sweep", parameter="plot")
+            y = frame[column].to_numpy(dtype=float)
+            if name == "choice":
+                self._label_choice(ax, column, y)
+            self.set_line(self.lines[name], v, y)
             self.rescale(ax)
-        for name, (op, limit) in self.constraints().items():
-            self.limit_lines[name].set_ydata([limit, limit])
         if not frame["stable"].all():
             n = int((~frame["stable"]).sum())
             self.alarm(f"unstable loop at {n} of {len(frame)} swept biases (no bandwidth there)")
@@ -175,7 +207,7 @@ class TradeoffPanel(Panel):
         r = self.design().evaluate()
         self.result = r
         for text in r.warnings:
-            self.alarm(text)
+            self.note(f"warning: {text}")
         rows = [("reverse bias", format_eng(op, "V")),
                 ("bandwidth", format_eng(r.bandwidth, "Hz") if r.stable else "unstable loop"),
                 ("limited by", str(r.limited_by)),

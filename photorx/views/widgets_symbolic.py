@@ -20,7 +20,8 @@ from ..units import format_eng, per_cm3, per_cm4, um
 from .widgets_base import Panel, _widgets, frame_html, lin_slider
 from .widgets_device import _receiver
 
-__all__ = ["ClosedFormsPanel", "closed_forms_panel", "DERIVATIONS"]
+__all__ = ["ClosedFormsPanel", "closed_forms_panel", "numeric_checks", "derivation_html",
+           "DERIVATIONS"]
 
 #: label shown in the panel -> function name in photorx.symbolic
 DERIVATIONS = {
