@@ -6,7 +6,6 @@ release that the installed SciPy carries.
 
 from __future__ import annotations
 
-import numpy as np
 from scipy import constants as _sc
 
 from ._validate import require_positive

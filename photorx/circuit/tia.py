@@ -183,6 +183,31 @@ class Tia:
 
         return analyze_tia(self, net, **options)
 
+    def step_response(self, net, t=None, n: int = 400):
+        """Output after a photocurrent step, relative to its final value: ``(t [s], y)``.
+
+        Parameters
+        ----------
+        net : EquivalentCircuit
+            The photodiode at its operating point (scalar fields).
+        t : array_like, optional
+            Times [s]; default ``n`` points up to three settling times (or eight rise times).
+        n : int
+            Number of default time points.
+
+        See :func:`photorx.circuit.step.step_response`.
+        """
+        from .step import step_response
+
+        if t is None:
+            m = self.analyze(net)
+            span = np.nanmax([3.0 * m.settling_time, 8.0 * m.rise_time])
+            if not np.isfinite(span) or span <= 0:  # unstable: show the growth over a few periods
+                span = 10.0 / (2 * np.pi * max(float(m.crossover) if np.isfinite(m.crossover) else 0.0, 1.0))
+            t = np.linspace(0.0, span, n)
+        t = np.asarray(t, dtype=float)
+        return t, step_response(t, **self._args(net))
+
     def noise(self, net, temperature=300.0, **options):
         """Noise spectrum of every source at the output; see :mod:`photorx.analysis.noise`."""
         from ..analysis.noise import tia_noise

@@ -34,26 +34,8 @@ def _frequency_grid(result, n: int = 400) -> np.ndarray:
 
 
 def _step_response(rx, net, n: int = 800):
-    """Closed-loop step response of the stage, normalised to its final value: (t [s], y).
-
-    Uses the stage's own step response when the circuit package offers one; otherwise the
-    package's closed-loop polynomial, Zt(s) = A0/Den(s)
-    (:func:`photorx.circuit.metrics.closed_loop_polynomial`), simulated with
-    scipy.signal in time normalised to the polynomial's natural scale.
-    """
-    own = getattr(rx.tia, "step_response", None)
-    if own is not None:
-        return own(net)
-    from scipy import signal
-
-    from ..circuit.metrics import closed_loop_polynomial
-
-    den = np.asarray(closed_loop_polynomial(**rx._circuit(net)), dtype=float)
-    den = np.trim_zeros(den, "b")
-    w0 = (den[0] / den[-1]) ** (1.0 / (den.size - 1))  # natural scale [rad/s]
-    dn = den * w0 ** np.arange(den.size) / den[0]      # Den(0) = 1: unit final value
-    t, y = signal.step(signal.lti([1.0], dn[::-1]), N=n)
-    return t / w0, y
+    """Closed-loop step response of the stage, normalised to its final value: (t [s], y)."""
+    return rx.tia.step_response(net, n=n)
 
 
 def _bias_grid(rx, n: int) -> np.ndarray:

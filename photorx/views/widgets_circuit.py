@@ -14,7 +14,7 @@ import numpy as np
 
 from ..circuit.feedback_design import design_feedback_capacitor
 from ..circuit.filters import PostFilter
-from ..circuit.metrics import FIGURE_UNITS, closed_loop_poles
+from ..circuit.metrics import FIGURE_UNITS
 from ..errors import DesignError
 from ..units import format_eng
 from .widgets_base import Panel, _widgets, frame_html, lin_slider, log_slider, rows_html
@@ -37,28 +37,8 @@ def _db(x):
 
 
 def _step_response(tia, net, metrics):
-    """Normalised photocurrent step response (t [s], v/v_final) of a stable loop.
-
-    Uses ``tia.step_response(net)`` when the package offers it; otherwise the closed-loop
-    poles of :func:`photorx.circuit.metrics.closed_loop_poles` (Zt = const / prod(s - p_i),
-    all-pole) are handed to :func:`scipy.signal.step` in time normalised to the poles.
-    """
-    own = getattr(tia, "step_response", None)
-    if own is not None:
-        return own(net)
-    from scipy import signal
-
-    amp = tia.amp
-    p = closed_loop_poles(amp.gbw, amp.dc_gain, amp.poles, tia.rf, tia.cf, net.capacitance,
-                          net.shunt_resistance, net.series_resistance, amp.input_capacitance)
-    p = p[np.isfinite(p)]
-    w0 = float(np.min(np.abs(p)))
-    x = p / w0
-    t_end = 3.0 * max(metrics.settling_time, 4.0 * metrics.rise_time, 1e-30)
-    t_norm = np.linspace(0.0, t_end * w0, 400)
-    system = signal.ZerosPolesGain([], x, float(np.real(np.prod(-x))))
-    t_out, y = signal.step(system, T=t_norm)
-    return t_out / w0, np.real(y)
+    """Normalised photocurrent step response (t [s], v/v_final) from the package."""
+    return tia.step_response(net)
 
 
 def _metrics_rows(m):

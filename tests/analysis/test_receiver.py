@@ -12,7 +12,7 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 import photorx as prx
-from photorx.units import GHz, MHz, kohm, mm, nm, pF, per_cm3, uW, um
+from photorx.units import GHz, kohm, mm, nm, pF, per_cm3, uW, um
 
 
 @pytest.fixture(scope="module")
