@@ -10,12 +10,13 @@ README = Path(__file__).resolve().parents[1] / "README.md"
 
 def test_tour_runs():
     text = README.read_text(encoding="utf-8")
-    code = re.search(r"```python\n(.*?)```", text, re.S).group(1)
     namespace = {}
-    exec(compile(code, "README.md", "exec"), namespace)  # noqa: S102 - our own documentation
+    for code in re.findall(r"```python\n(.*?)```", text, re.S):  # every Python block, in order
+        exec(compile(code, "README.md", "exec"), namespace)  # noqa: S102 - our own documentation
     rx = namespace["rx"]
     result = rx.evaluate()
     assert result.stable and np.isfinite(result.bandwidth)
+    assert callable(namespace["f3db"])
 
 
 def test_quick_start_has_two_commands():
