@@ -78,6 +78,21 @@ class OptimizationResult:
         row[self.objective] = self.value
         return pd.DataFrame([row])
 
+    def plot(self, ax=None):
+        """The trade curve: objective and constraint figures against reverse bias, the
+        optimum marked. Returns the matplotlib figure."""
+        from ..views.plots import plot_bias_tradeoff
+        from .receiver import FIGURES
+
+        curve = self.trade_curve
+        names = [c for c in curve.columns if c not in ("reverse_bias", "stable")]
+        series = [(FIGURES.get(n, ("", "", n))[2], curve[n].to_numpy(dtype=float),
+                   FIGURES.get(n, ("",))[0], True) for n in names]
+        bias = self.parameters.get("reverse_bias", getattr(self.receiver, "reverse_bias", None))
+        return plot_bias_tradeoff(curve["reverse_bias"].to_numpy(dtype=float), series, ax=ax,
+                                  mark=None if bias is None else float(bias),
+                                  title=f"Trade curve ({self.objective})")
+
     def _repr_html_(self) -> str:
         head = f"<p><b>{self.objective}</b> = {self.value:.6g} ({'feasible' if self.success else 'infeasible'})</p>"
         return head + self.to_frame().to_html(index=False) + self.constraints.to_html(index=False)

@@ -74,3 +74,13 @@ def test_sweep_over_photodiode_fields_matches_point_evaluations(rx, axis, values
         one = with_parameters(rx, **{axis: value}).evaluate()
         for name in ("capacitance", "bandwidth", "photodiode_bandwidth", "input_noise_rms", "dark_current"):
             np.testing.assert_allclose(row[name], one.values[name], rtol=1e-6, err_msg=f"{axis} {name}")
+
+
+def test_optimization_result_plots_its_trade_curve(rx):
+    res = prx.optimize(rx, vary={"reverse_bias": (0.0, 20.0)}, objective="min:input_noise_rms",
+                       constraints={"phase_margin": (">=", 45.0)}, grid_points=20, trade_points=7)
+    fig = res.plot()
+    lines = [a.get_lines()[0] for a in fig.axes]
+    # the plotted data are the trade curve's own numbers
+    np.testing.assert_allclose(lines[0].get_xdata(), res.trade_curve.reverse_bias, rtol=0)
+    np.testing.assert_allclose(lines[0].get_ydata(), res.trade_curve.input_noise_rms, rtol=0)
