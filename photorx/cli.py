@@ -119,13 +119,35 @@ def _parse_vary(text: str) -> tuple[str, tuple[float, float]]:
         raise DesignError(f"--vary {text!r}: write NAME=LOW:HIGH, e.g. reverse_bias=0:20",
                           parameter="vary")
     name = name.strip().replace("-", "_")
-    return name, (_quantity(parts[0], name), _quantity(parts[1], name))
+    low, high = _quantity(parts[0], name), _quantity(parts[1], name)
+    if not low < high:
+        raise DesignError(f"--vary {text!r}: LOW must be below HIGH, e.g. "
+                          f"{name}={parts[1].strip()}:{parts[0].strip()}", parameter="vary")
+    return name, (low, high)
+
+
+#: Design being evaluated, named in errors raised after it loaded (the file is fine then,
+#: but a figure cannot be computed at its operating point).
+_CURRENT = {"design": None}
+
+#: What an evaluation error's parameter means in the user's terms.
+_EVALUATION_HINTS = {
+    "v_r": "the reverse bias: [operating_point] reverse_bias or --reverse-bias",
+    "reverse_bias": "set in [operating_point] reverse_bias or --reverse-bias",
+    "responsivity": "no photocurrent: check [operating_point] wavelength against the "
+                    "absorption edge of the photodiode material, or give [photodiode] "
+                    "responsivity",
+    "dark_current": "the diode current turns negative in forward bias (reverse_bias < 0); "
+                    "evaluate the receiver at a reverse bias >= 0",
+}
 
 
 def _load(design):
-    from .designfile import load_design
+    from .designfile import DEFAULT_DESIGN, load_design
 
-    return load_design(design)
+    rx = load_design(design)
+    _CURRENT["design"] = design or f"{DEFAULT_DESIGN} (embedded demo)"
+    return rx
 
 
 def _write_or_print(text: str, output) -> None:
@@ -148,6 +170,9 @@ def _cmd_budget(args) -> int:
     if fmt is None and args.output not in (None, "-"):
         suffix = Path(args.output).suffix.lower().lstrip(".")
         fmt = suffix if suffix in set(EXPORT_FORMATS) | {"markdown", "tex", "htm"} else "text"
+        if fmt == "text" and suffix not in ("txt", "text", ""):
+            print(f"photorx: note: suffix '.{suffix}' is not an export format; writing the "
+                  "text table (use --format csv, md, latex, html or json)", file=sys.stderr)
     fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
     from .designfile import design_name
 
@@ -312,7 +337,13 @@ def build_parser() -> argparse.ArgumentParser:
                        description="Evaluate the design over a cartesian grid of parameters "
                                    "and write one CSV row per point. Axes: START:STOP:N, "
                                    "START:STOP:N:log or a comma list; values in SI or with "
-                                   "units ('1 kohm:100 kohm:21:log').")
+                                   "units ('1 kohm:100 kohm:21:log').",
+                       epilog="The CSV columns hold SI values without prefixes: V, m, W, K, "
+                              "F, A, ohm, Hz, s, W/rtHz (NEP), A/rtHz (densities); "
+                              "phase_margin in deg, *_db and snr_db in dB, sensitivity_dbm "
+                              "in dBm, noise_* are input-referred rms currents in A. "
+                              "Negative values may follow the option directly "
+                              "(--temperature -20degC:60degC:9).")
     p.add_argument("design", nargs="?", help=design_help)
     for name in _AXIS_OPTIONS:
         p.add_argument(f"--{name.replace('_', '-')}", dest=name, metavar="SPEC",
@@ -364,9 +395,11 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv=None) -> int:
     """Run the command line; returns the exit status (the console script exits with it)."""
+    _CURRENT["design"] = None
     try:
         parser = build_parser()
-        args = parser.parse_args(argv)
+        args = parser.parse_args(_join_negative_values(sys.argv[1:] if argv is None
+                                                       else list(argv)))
         if args.command is None:
             parser.print_help()
             return EXIT_USAGE
@@ -377,10 +410,15 @@ def main(argv=None) -> int:
         print(f"{exc}", file=sys.stderr)
         return EXIT_USAGE
     except DesignError as exc:
-        print(f"photorx: error: {_one_line(exc)}", file=sys.stderr)
+        message = _one_line(exc)
+        if _CURRENT["design"] is not None:  # the file loaded; evaluating it failed
+            hint = _EVALUATION_HINTS.get(getattr(exc, "parameter", None))
+            message = (f"design {_CURRENT['design']}: {message}"
+                       + (f"; {hint}" if hint else ""))
+        print(f"photorx: error: {message}", file=sys.stderr)
         return EXIT_USAGE
     except OSError as exc:
-        where = f" {exc.filename}" if getattr(exc, "filename", None) else ""
+        where = f" {exc.filename}:" if getattr(exc, "filename", None) else ""
         print(f"photorx: error:{where} {exc.strerror or exc}", file=sys.stderr)
         return EXIT_FAILURE
     except KeyboardInterrupt:
@@ -392,6 +430,26 @@ def main(argv=None) -> int:
         print(f"photorx: internal error: {type(exc).__name__}: {_one_line(exc)} "
               "(set PHOTORX_DEBUG=1 for details)", file=sys.stderr)
         return EXIT_FAILURE
+
+
+def _join_negative_values(argv: list) -> list:
+    """``--reverse-bias -5:0:11`` -> ``--reverse-bias=-5:0:11``.
+
+    argparse takes a value starting with '-' for an option unless it is a plain negative
+    number, so forward-bias ranges and negative bounds would need the ``=`` form.
+    """
+    out, i = [], 0
+    while i < len(argv):
+        arg = argv[i]
+        nxt = argv[i + 1] if i + 1 < len(argv) else None
+        if (arg.startswith("--") and "=" not in arg and nxt is not None
+                and re.match(r"^-\.?\d", nxt)):
+            out.append(f"{arg}={nxt}")
+            i += 2
+            continue
+        out.append(arg)
+        i += 1
+    return out
 
 
 def _one_line(exc) -> str:

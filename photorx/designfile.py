@@ -52,7 +52,7 @@ __all__ = [
 ]
 
 DEMO_DESIGNS = {
-    "ingaas-pin-1310": "Short-reach 1310 nm InGaAs PIN link receiver (the default)",
+    "ingaas-pin-1310": "Short-reach 1310 nm InGaAs PIN link receiver",
     "si-pin-850": "Silicon PIN receiver at 850 nm",
     "si-photometer": "Low-light silicon photometry front end",
 }
@@ -168,7 +168,8 @@ def load_design(path=None):
     try:
         text = p.read_text(encoding="utf-8")
     except FileNotFoundError:
-        raise DesignError(f"{p}: no such design file") from None
+        demos = "" if p.suffix else f" or demo name (demos: {', '.join(DEMO_DESIGNS)})"
+        raise DesignError(f"{p}: no such design file{demos}") from None
     except IsADirectoryError:
         raise DesignError(f"{p}: is a directory, not a design file") from None
     except (OSError, UnicodeDecodeError) as exc:
@@ -405,8 +406,9 @@ def design_template() -> str:
         lines.append(f"[{section}]" + ("" if required else "  # optional section"))
         if section not in sections:
             for key in keys:
-                lines += textwrap.wrap(key.doc, width=88, initial_indent="# ",
-                                       subsequent_indent="#   ")
+                need = "required in the section" if key.default is REQUIRED else "optional"
+                lines += textwrap.wrap(f"{key.doc} ({need}; {_expected(key)})", width=88,
+                                       initial_indent="# ", subsequent_indent="#   ")
                 lines.append(f"# {key.name} = {_example(key)}")
             lines.append("")
             continue
@@ -421,10 +423,22 @@ def design_template() -> str:
             else:
                 lines.append(f"# {key.name} = {_example(key)}")
         if selector and any(k.when for k in keys):
-            others = sorted({m for k in keys for m in k.when} - {chosen})
-            for other in others:
-                names = ", ".join(k.name for k in keys if k.when and other in k.when)
-                lines.append(f"# with {selector} = \"{other}\": {names}")
+            # the keys of the other choices, with an example each, so that switching the
+            # model needs no guessing of names or units
+            others = [m for k in keys for m in k.when if m != chosen]
+            for other in dict.fromkeys(others):
+                extra = [k for k in keys if k.when and other in k.when
+                         and chosen not in k.when]
+                shared = [k.name for k in keys if k.when and other in k.when
+                          and chosen in k.when]
+                lines.append(f"# with {selector} = \"{other}\", replace the {chosen}-only "
+                             "keys above by:" if shared else
+                             f"# with {selector} = \"{other}\", use only these keys:")
+                for k in extra:
+                    need = "required" if k.default is REQUIRED else "optional"
+                    lines += textwrap.wrap(f"{k.name} = {_example(k)}  # {k.doc} ({need})",
+                                           width=88, initial_indent="#   ",
+                                           subsequent_indent="#       ")
         lines.append("")
     return "\n".join(lines)
 

@@ -198,7 +198,7 @@ SCHEMA: tuple[Key, ...] = (
     # -- operating point -----------------------------------------------------------------------
     Key("operating_point", "reverse_bias", "V", REQUIRED,
         doc="Reverse bias across the photodiode (negative = forward).", example="5 V"),
-    Key("operating_point", "wavelength", "m", REQUIRED, write="nm", check=">0",
+    Key("operating_point", "wavelength", "m", REQUIRED, write="nm", check="optical",
         doc="Signal wavelength.", example="1310 nm"),
     Key("operating_point", "optical_power", "W", REQUIRED, check=">=0",
         doc="Average optical signal power at the photodiode (W or dBm).", example="-20 dBm"),
@@ -317,7 +317,11 @@ _CHECKS = {
     "(0..1]": (lambda v: 0 < v <= 1, "> 0 and <= 1"),
     "(0..1)": (lambda v: 0 < v < 1, "> 0 and < 1"),
     "(0..0.5)": (lambda v: 0 < v < 0.5, "> 0 and < 0.5"),
+    # catches a wavelength written as a bare number of nanometres ("1310" reads as 1310 m)
+    "optical": (lambda v: 10e-9 <= v <= 100e-6, "10 nm to 100 um"),
 }
+#: checks whose range text already carries its unit
+_CHECKS_WITH_UNIT = frozenset({"optical"})
 
 
 def _parse_value(key: Key, raw, source: str):
@@ -362,14 +366,16 @@ def _parse_scalar(key: Key, raw, prefix: str) -> float:
     try:
         value = parse_quantity(raw, key.unit or None)
     except DesignError as exc:
-        hint = "" if "was expected" in str(exc) else f"; expected {_expected(key)}"
-        raise DesignError(f"{prefix}: {exc}{hint}", parameter=key.where) from None
+        text = str(exc)
+        if "was expected" not in text:  # the key's own example beats the generic one
+            text = text.replace("; write e.g. '2.2 pF'", "") + f"; expected {_expected(key)}"
+        raise DesignError(f"{prefix}: {text}", parameter=key.where) from None
     if key.unit == "" and isinstance(raw, str) and not _is_plain_number(raw):
         # parse_quantity without a unit accepts any dimension; a plain number must be plain
         raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
     if math.isnan(value):
         raise DesignError(f"{prefix} = nan: expected {_expected(key)}", parameter=key.where)
-    return _checked(key, value, prefix)
+    return _checked(key, value, prefix, raw)
 
 
 def _is_plain_number(text: str) -> bool:
@@ -380,13 +386,32 @@ def _is_plain_number(text: str) -> bool:
         return False
 
 
-def _checked(key: Key, value: float, prefix: str) -> float:
+#: Largest SI value of a unit that any photodiode receiver needs: a capacitance of a farad or
+#: a length or area of metres is a unit slip (``cf = 60`` meant pF, ``area = 5000`` um^2).
+_PLAUSIBLE_MAX = {"F": (1e-3, "1 mF"), "m": (1e-2, "1 cm"), "m^2": (1e-2, "(10 cm)^2")}
+
+
+def _checked(key: Key, value: float, prefix: str, raw=None) -> float:
+    limit = _PLAUSIBLE_MAX.get(key.unit)
+    if limit and math.isfinite(value) and abs(value) > limit[0] and key.check != "optical":
+        plain = isinstance(raw, (int, float)) or (isinstance(raw, str) and _is_plain_number(raw))
+        hint = (f"; a plain number is read in {key.unit}: write the unit, e.g. '{key.example}'"
+                if plain else "")
+        raise DesignError(f"{prefix} = {value:.6g} {key.unit} is implausibly large for a "
+                          f"photodiode receiver (at most {limit[1]}){hint}", parameter=key.where)
     if key.check:
         ok, text = _CHECKS[key.check]
         if not ok(value):
             unit = f" {key.unit}" if key.unit else ""
+            valid = text if key.check in _CHECKS_WITH_UNIT else f"{text}{unit}"
+            hint = ""
+            if key.unit and (isinstance(raw, (int, float)) or
+                             (isinstance(raw, str) and _is_plain_number(raw))):
+                # the usual slip: a number without its unit is read in SI
+                hint = (f" (a plain number is read in {key.unit}; write the unit, "
+                        f"e.g. '{key.example}')")
             raise DesignError(f"{prefix} = {value:.6g}{unit} is out of range; valid range: "
-                              f"{text}{unit}", parameter=key.where)
+                              f"{valid}{hint}", parameter=key.where)
     return value
 
 

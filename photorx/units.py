@@ -181,8 +181,10 @@ _DIMENSION_NAMES = (
 
 def _clean_unit(text: str) -> str:
     """Trade spellings -> pint syntax (Ω, µ, √Hz, ^)."""
-    return (text.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
+    text = (text.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
             .replace("√Hz", "rtHz").replace("sqrt(Hz)", "rtHz").replace("^", "**").strip())
+    # data sheets write "10 kOhm" and "1 MOhms"; pint knows only lower-case "ohm"
+    return re.sub(r"Ohms?\b", "ohm", text)
 
 
 def _dimension_name(units) -> str:
@@ -260,7 +262,7 @@ def parse_quantity(text, unit: str | None = None) -> float:
         # "10k", "2.2p": a bare SI prefix, as resistor and capacitor values are often written;
         # the unit is the expected one (pint alone would read "k" as Boltzmann's constant).
         return _exact_scale(match.group(1), _BARE_PREFIXES[match.group(2).strip()])
-    if match and match.group(2).strip() == "dBm":
+    if match and match.group(2).strip().lower() == "dbm":  # "dbm", "DBM" are slips for dBm
         watts = float(dbm_to_watt(float(match.group(1))))
         if target is None:
             return watts

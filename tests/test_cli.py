@@ -290,3 +290,70 @@ def test_report(capsys, tmp_path):
     assert code == 0 and "wrote" in err
     text = target.read_text()
     assert text.startswith("<!DOCTYPE html>") and "data:image/png;base64," in text
+
+
+# -- first-use paper cuts ----------------------------------------------------------------------
+def test_negative_values_follow_options(capsys):
+    # argparse alone rejects "--temperature -10degC,..." ("expected one argument")
+    code, out, err = run(capsys, "sweep", "--temperature", "-10 degC,20 degC", "--columns",
+                         "dark_current", "-q")
+    assert code == 0, err
+    frame = pd.read_csv(__import__("io").StringIO(out))
+    # degC to K: T[K] = T[degC] + 273.15 (SI brochure, 9th ed., 2019, sec. 2.3.1)
+    np.testing.assert_allclose(frame["temperature"], [263.15, 293.15], rtol=0, atol=1e-12)
+    code, _, err = run(capsys, "sweep", "--rf", "-1k:2k:3")
+    assert code == 2 and "expected one argument" not in err and "rf = -1000 ohm" in err
+    assert_one_line_error(err)
+
+
+def test_vary_bounds_in_order(capsys):
+    code, _, err = run(capsys, "optimize", "--vary", "rf=10k:1k")
+    assert code == 2 and "LOW must be below HIGH" in err and "rf=1k:10k" in err
+    assert_one_line_error(err)
+
+
+def test_evaluation_error_names_design_and_meaning(capsys, tmp_path):
+    from photorx.designfile import design_template
+
+    path = tmp_path / "high.toml"
+    path.write_text(re.sub(r'(?m)^reverse_bias = ".*"$', 'reverse_bias = "60 V"',
+                           design_template()))
+    code, _, err = run(capsys, "budget", str(path))
+    assert code == 2
+    assert_one_line_error(err)
+    assert "high.toml" in err and "60 V" in err and "[operating_point] reverse_bias" in err
+
+
+def test_unknown_demo_name_lists_demos(capsys):
+    code, _, err = run(capsys, "budget", "ingaas-pin")
+    assert code == 2 and "si-pin-850" in err
+    assert_one_line_error(err)
+
+
+def test_output_error_is_readable(capsys, tmp_path):
+    target = tmp_path / "missing" / "b.csv"
+    code, _, err = run(capsys, "budget", "-o", str(target))
+    assert code == 1 and f"{target}: " in err
+    assert_one_line_error(err)
+
+
+def test_terminal_budget_carries_cautions(capsys):
+    code, out, _ = run(capsys, "budget")
+    assert code == 0 and "Cautions:" in out and "IEC 60825-1" in out
+    assert "1310 nm" in out  # the demo's wavelength as the trade writes it
+
+
+def test_template_documents_other_junction_models(capsys, tmp_path):
+    code, out, _ = run(capsys, "template")
+    assert code == 0
+    for line in ['#   na = "1e19 cm^-3"', '#   gradient = "1e20 cm^-4"', '#   cj0 = "1 pF"']:
+        assert line in out
+    # switching the model as the template says gives a loadable design
+    text = out.replace('model = "pin"', 'model = "abrupt"')
+    text = re.sub(r"(?m)^(i_thickness|i_doping|p_doping|n_doping) = .*$", "", text)
+    text = re.sub(r'(?m)^#   (na|nd) = ("[^"]*").*$', r"\1 = \2", text)
+    path = tmp_path / "abrupt.toml"
+    path.write_text(text)
+    code, out, err = run(capsys, "budget", str(path))
+    assert code == 0, err
+    assert "depletion width" in out

@@ -138,7 +138,19 @@ def test_temperature_in_celsius_and_numbers_as_si():
     ('area = "1250 um^2"', 'area = "1250 um"', ["[photodiode.junction] area", "length", "area"]),
     # out of range
     ('cf = "40 fF"', 'cf = "-40 fF"', ["[feedback] cf", "-4e-14", ">= 0"]),
-    ('wavelength = "1310 nm"', 'wavelength = "0 nm"', ["[operating_point] wavelength", "> 0"]),
+    # unit slips: a bare number is SI, so these are farads, square metres and metres
+    ('cf = "40 fF"', "cf = 40", ["[feedback] cf", "40 F", "implausibly large", "'0.2 pF'"]),
+    ('area = "1250 um^2"', "area = 1250", ["[photodiode.junction] area", "1250 m^2",
+                                           "plain number"]),
+    ('i_thickness = "2 um"', 'i_thickness = "2"', ["[photodiode.junction] i_thickness",
+                                                   "2 m", "at most 1 cm"]),
+    ('optical_power = "-20 dBm"', 'optical_power = "-20 dBx"',
+     ["[operating_point] optical_power", "dBx", "'-20 dBm'"]),
+    ('wavelength = "1310 nm"', 'wavelength = "0 nm"', ["[operating_point] wavelength",
+                                                       "10 nm to 100 um"]),
+    # a bare number is SI: "1310" is 1310 m, and the message says how to write nanometres
+    ('wavelength = "1310 nm"', "wavelength = 1310", ["[operating_point] wavelength",
+                                                     "1310 m", "plain number", "'1310 nm'"]),
     ("target_ber = 1e-12", "target_ber = 0.7", ["[signal] target_ber", "0.7", "< 0.5"]),
     ('extinction_ratio = "10 dB"', 'extinction_ratio = "-3 dB"', ["[signal] extinction_ratio",
                                                                   "> 1"]),
@@ -303,7 +315,7 @@ def test_round_trip_of_changed_values(demos, tmp_path):
 
     rx = demos["ingaas-pin-1310"]
     amp = dataclasses.replace(rx.tia.amp, gbw=1 / 3 * 1e10, poles=(2.2e10, 3.3e10))
-    tia = dataclasses.replace(rx.tia, amp=amp, rf=4.7e3, cf=0.1 + 0.2e-12)
+    tia = dataclasses.replace(rx.tia, amp=amp, rf=4.7e3, cf=(0.1 + 0.2) * 1e-12)
     junction = dataclasses.replace(rx.photodiode.junction, temperature=310.0)
     pd_ = dataclasses.replace(rx.photodiode, junction=junction, series_resistance=12.5,
                               leakage_resistance=1e12)

@@ -52,6 +52,10 @@ def test_derived_factors():
     ("10 kohm", 1e4),
     ("10 kΩ", 1e4),
     ("1 MΩ", 1e6),
+    ("10 kOhm", 1e4),  # data-sheet spellings (common practice)
+    ("1 MOhms", 1e6),
+    ("-20 dbm", 1e-5),  # 1 mW * 10^(-20/10) (definition of dBm)
+    ("4.7 Ohm", 4.7),
     ("1e15 cm^-3", 1e21),
     ("1e15 cm**-3", 1e21),
     ("1310 nm", 1310e-9),

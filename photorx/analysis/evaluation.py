@@ -56,15 +56,32 @@ def minus_3db_frequency(response, ref, scale, shape=None):
     the reference does not stop the search; the Illinois variant of false position on
     log|H| against log f then refines every bracket at once. Within a 12 % bracket log|H|
     is nearly linear in log f, and 8 steps reach about 1e-12 relative.
+    Where the response is already below the level at the bottom of the window (a slow
+    part far below ``scale``) the window moves down by 10^5 at a time, and where it never
+    falls below the level it moves up, up to 6 times, before NaN is returned: a crossing
+    outside the first window is found, never replaced by the window's edge.
     """
     scale = np.asarray(scale, dtype=float)
     shape = scale.shape if shape is None else shape
     log_level = np.log(np.asarray(ref, dtype=float) / np.sqrt(2.0))[..., None]
-    f = np.where(np.isfinite(scale) & (scale > 0), scale, 1.0)[..., None] * _BW_GRID
-    with np.errstate(divide="ignore"):
-        g = np.log(np.abs(response(f))) - log_level
+    usable = np.isfinite(scale) & (scale > 0)
+    base = np.where(usable, scale, 1.0)
+    base = np.broadcast_to(base, np.broadcast_shapes(base.shape, log_level.shape[:-1])).copy()
+    for _ in range(7):
+        f = base[..., None] * _BW_GRID
+        with np.errstate(divide="ignore"):
+            g = np.log(np.abs(response(f))) - log_level
+        g = np.broadcast_to(g, f.shape)
+        # move the window (vectorised): down where even its bottom is below -3 dB, up where
+        # nothing in it is; stop when every design has its first crossing inside (designs
+        # without a usable scale, e.g. unstable loops, stay NaN and never move it)
+        down = (g[..., 0] < 0) & usable
+        up = ~(g < 0).any(axis=-1) & usable
+        if not (down.any() or up.any()):
+            break
+        base = np.where(down, base * 1e-5, np.where(up, base * 1e5, base))
     below = g < 0
-    has = below.any(axis=-1)
+    has = below.any(axis=-1) & (g[..., 0] >= 0)
     k = np.clip(np.argmax(below, axis=-1), 1, f.shape[-1] - 1)[..., None]
     x_lo, x_hi = np.log(np.take_along_axis(f, k - 1, -1)), np.log(np.take_along_axis(f, k, -1))
     g_lo, g_hi = np.take_along_axis(g, k - 1, -1), np.take_along_axis(g, k, -1)
@@ -107,6 +124,11 @@ class _Point:
         self.net = rx.equivalent_circuit()
         self.responsivity = np.asarray(self.pd.responsivity(rx.wavelength, self.v), dtype=float)
         self.dark = np.asarray(self.pd.dark_current(self.v), dtype=float)
+        # shot noise counts the magnitude of the diode current: in forward bias the dark
+        # current is negative (it flows forward), and the photodiode's own equivalent circuit
+        # uses |I_dark| for its shot-noise current (EquivalentCircuit.current); so do the noise
+        # and sensitivity stages here (2 q |I|: Schottky 1918; common practice)
+        self.dark_shot = np.abs(self.dark)
         self.i_signal = self.responsivity * rx.optical_power
         self.i_background = self.responsivity * rx.background_power
         self.circuit = rx._circuit(self.net)
@@ -159,7 +181,6 @@ def _speed(p: _Point) -> dict:
         return h if pf is None else h * filter_response(f, pf.kind, pf.order, pf.cutoff)
 
     loop_bw = p.b(loop["bandwidth"])
-    bandwidth = minus_3db_frequency(chain, p.b(loop["dc_transimpedance"]), loop_bw, p.shape)
     if p.has_speed:
         transit_bw = p.b(pd_.transit_bandwidth(p.v, rx.wavelength))
         transit_time = p.b(pd_.transit_time(p.v))
@@ -168,6 +189,11 @@ def _speed(p: _Point) -> dict:
         transit_bw = pd_bw = p.b(np.inf)
         transit_time = p.b(np.nan)
     filter_bw = p.b(pf.cutoff if pf is not None else np.inf)
+    # search the chain's -3 dB point near its slowest part (a 10 kHz post filter behind a
+    # 1 GHz loop), not near the loop alone; an unstable loop (NaN) keeps NaN
+    slowest = np.fmin(np.fmin(loop_bw, np.where(np.isnan(pd_bw), np.inf, pd_bw)), filter_bw)
+    scale = np.where(np.isfinite(loop_bw), slowest, np.nan)
+    bandwidth = minus_3db_frequency(chain, p.b(loop["dc_transimpedance"]), scale, p.shape)
     parts = np.stack([loop_bw, np.where(np.isnan(pd_bw), np.inf, pd_bw), filter_bw])
     names = np.array(["amplifier loop", "photodiode", "post filter"])
     limited_by = names[np.argmin(np.where(np.isnan(parts), np.inf, parts), axis=0)]
@@ -201,7 +227,7 @@ def _noise(p: _Point):
         rx.noise_band_low, np.inf, **circuit, **filt,
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),
         in_corner=p.b(amp.current_noise_corner), temperature=p.b(rx.temperature),
-        i_shot={"dark": p.b(p.dark), "signal": p.b(p.i_signal), "background": p.b(p.i_background)})
+        i_shot={"dark": p.b(p.dark_shot), "signal": p.b(p.i_signal), "background": p.b(p.i_background)})
     enbw = p.b(chain_enbw(**circuit, **filt))
     zt0 = np.abs(p.b(p.loop["dc_transimpedance"]))
     total = sum(mean_square.values())
@@ -210,10 +236,17 @@ def _noise(p: _Point):
     keys = list(mean_square)
     dominant = np.array(keys)[np.argmax(np.stack([p.b(mean_square[k]) for k in keys]), axis=0)]
     in_rms = np.sqrt(total) / zt0
+    # noise floor = everything present without the signal (circuit, dark and background shot
+    # noise): NEP, minimum detectable power and dynamic range are defined at vanishing signal,
+    # where the shot noise of the operating-point photocurrent does not exist (Hobbs, Building
+    # Electro-Optical Systems, 2nd ed., 2009, sec. 3.4; Agrawal, Fiber-Optic Communication
+    # Systems, 4th ed., 2010, sec. 4.4: NEP is the power giving SNR = 1 in 1 Hz)
+    floor_rms = np.sqrt(np.clip(total - mean_square["shot_signal"], 0.0, None)) / zt0
     figures = {
         "noise_bandwidth": enbw, "output_noise_rms": np.sqrt(total), "input_noise_rms": in_rms,
         "input_noise_density": in_rms / np.sqrt(enbw),
         "circuit_noise_rms": np.sqrt(np.clip(circuit_ms, 0.0, None)) / zt0,
+        "noise_floor_rms": floor_rms, "noise_floor_density": floor_rms / np.sqrt(enbw),
         "dominant_noise_source": dominant,
     }
     return figures, {name: p.b(np.sqrt(ms) / zt0) for name, ms in mean_square.items()}
@@ -221,7 +254,7 @@ def _noise(p: _Point):
 
 def _sensitivity(p: _Point, noise: dict) -> dict:
     rx = p.rx
-    r, power, dark = p.b(p.responsivity), p.b(rx.optical_power), p.b(p.dark)
+    r, power, dark = p.b(p.responsivity), p.b(rx.optical_power), p.b(p.dark_shot)
     enbw, circuit_rms = noise["noise_bandwidth"], noise["circuit_noise_rms"]
     snr = np.where(power > 0, analog_snr(power, r, circuit_rms, enbw, rx.modulation_depth, dark), 0.0)
     with np.errstate(divide="ignore"):
@@ -230,12 +263,13 @@ def _sensitivity(p: _Point, noise: dict) -> dict:
     sens = p.b(required_average_power(q_from_ber(rx.target_ber), r, circuit_rms, enbw,
                                       rx.extinction_ratio, dark))
     return {
-        "nep": noise_equivalent_power(noise["input_noise_density"], r),
-        "min_detectable_power": minimum_detectable_power(noise["input_noise_rms"], r),
+        # at vanishing signal: the floor without the signal's own shot noise (see _noise)
+        "nep": noise_equivalent_power(noise["noise_floor_density"], r),
+        "min_detectable_power": minimum_detectable_power(noise["noise_floor_rms"], r),
         "snr": snr, "snr_db": snr_db, "max_photocurrent": p.b(p.loop["max_photocurrent"]),
         # 20 log10: a ratio of currents (the optical dynamic range is half as many dB)
         "dynamic_range_db": 20.0 * np.log10(p.b(dynamic_range(p.amp.output_swing, zt0,
-                                                              noise["input_noise_rms"]))),
+                                                              noise["noise_floor_rms"]))),
         "target_ber": p.b(rx.target_ber), "sensitivity": sens, "sensitivity_dbm": 10.0 * np.log10(sens / 1e-3),
     }
 
@@ -249,7 +283,7 @@ def _checks(p: _Point, op: dict, speed: dict) -> dict:
         "bias_power": bias_power,
         "bias_below_breakdown": v < op["breakdown_voltage"],
         "bias_within_limit": v <= rx.max_bias if rx.max_bias is not None else ok,
-        "dark_current_within_limit": op["dark_current"] <= rx.max_dark_current
+        "dark_current_within_limit": np.abs(op["dark_current"]) <= rx.max_dark_current
         if rx.max_dark_current is not None else ok,
         "bias_power_within_limit": bias_power <= rx.max_bias_power if rx.max_bias_power is not None else ok,
         # NRZ rule of thumb: a bandwidth of about 0.7 x bit rate (common practice, Agrawal)

@@ -38,7 +38,7 @@ import warnings
 import numpy as np
 
 from .._validate import require_nonnegative, require_positive
-from ..circuit.amplifier import open_loop_gain
+from ..circuit.amplifier import flicker_factor, open_loop_gain
 from ..circuit.filters import filter_response
 from ..constants import k as _K
 from ..constants import q as _Q
@@ -218,17 +218,15 @@ def _unfiltered_psd(
         f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin
     )
     kt4 = 4.0 * _K * np.asarray(temperature, dtype=float)
-    with np.errstate(divide="ignore"):
-        inv_f = 1.0 / f
     h_sum2 = np.abs(h["summing"]) ** 2
     zt2 = np.abs(h["junction"]) ** 2
     out = {
         "rf_thermal": kt4 / np.asarray(rf, dtype=float) * h_sum2,
         "amp_current": np.asarray(in_, dtype=float) ** 2
-        * (1.0 + np.asarray(in_corner, dtype=float) * inv_f)
+        * flicker_factor(f, in_corner)
         * h_sum2,
         "amp_voltage": np.asarray(en, dtype=float) ** 2
-        * (1.0 + np.asarray(en_corner, dtype=float) * inv_f)
+        * flicker_factor(f, en_corner)
         * np.abs(h["voltage"]) ** 2,
         "rsh_thermal": kt4 / np.asarray(rsh, dtype=float) * zt2,
         "rs_thermal": kt4 * np.asarray(rs, dtype=float) * np.abs(h["series"]) ** 2,
@@ -237,7 +235,7 @@ def _unfiltered_psd(
         out[name] = 2.0 * _Q * current * zt2
     out["stage2_voltage"] = (
         np.asarray(stage2_noise, dtype=float) ** 2
-        * (1.0 + np.asarray(stage2_corner, dtype=float) * inv_f)
+        * flicker_factor(f, stage2_corner)
         * np.ones_like(zt2)
     )
     return out, zt2

@@ -137,10 +137,18 @@ class NoiseSpectrum:
         return np.sqrt(sum(v**2 for v in self.by_source(f, "input").values()))
 
     def nep(self, f, responsivity):
-        """Noise-equivalent power [W/rtHz]: input density / responsivity [A/W]."""
+        """Spectral noise-equivalent power at ``f`` [W/rtHz]: floor density / responsivity [A/W].
+
+        The floor is the input-referred density without the shot noise of the signal
+        photocurrent (``shot_signal``): NEP is the power giving SNR = 1 in 1 Hz, defined at
+        vanishing signal (Hobbs, *Building Electro-Optical Systems*, 2nd ed., 2009, sec. 3.4),
+        as :attr:`photorx.ReceiverResult.nep` is.
+        """
         from .sensitivity import noise_equivalent_power
 
-        return noise_equivalent_power(self.input_density(f), responsivity)
+        dens = self.by_source(f, "input")
+        floor = np.sqrt(sum(v**2 for k, v in dens.items() if k != "shot_signal"))
+        return noise_equivalent_power(floor, responsivity)
 
     # -- integrals ------------------------------------------------------------------------
     def mean_square(self, f_lo=None, f_hi=None):

@@ -310,5 +310,9 @@ def _column(frame: pd.DataFrame, name: str) -> str:
     if name not in frame.columns:
         raise DesignError(f"unknown receiver figure {name!r}; known: {', '.join(frame.columns)}",
                           parameter=name)
+    if frame[name].dtype.kind not in "biuf":  # a label such as limited_by has no order
+        numeric = [c for c in frame.columns if frame[c].dtype.kind in "biuf"]
+        raise DesignError(f"receiver figure {name!r} is not numeric and cannot be an objective or "
+                          f"constraint; numeric figures: {', '.join(numeric)}", parameter=name)
     return name
 

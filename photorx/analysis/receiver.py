@@ -66,10 +66,12 @@ FIGURES = {
     "input_noise_rms": ("A", "noise", "input-referred noise current"),
     "input_noise_density": ("A/rtHz", "noise", "average input-referred density, rms/sqrt(ENBW)"),
     "circuit_noise_rms": ("A", "noise", "input-referred noise without signal and dark shot noise"),
+    "noise_floor_rms": ("A", "noise", "input-referred noise without the signal's shot noise (the floor)"),
+    "noise_floor_density": ("A/rtHz", "noise", "noise floor, rms/sqrt(ENBW)"),
     "dominant_noise_source": ("", "noise", "largest noise source"),
     # sensitivity
-    "nep": ("W/rtHz", "sensitivity", "noise-equivalent power"),
-    "min_detectable_power": ("W", "sensitivity", "optical power for SNR = 1 in the noise bandwidth"),
+    "nep": ("W/rtHz", "sensitivity", "noise-equivalent power (noise floor / responsivity)"),
+    "min_detectable_power": ("W", "sensitivity", "optical power for SNR = 1 in the noise bandwidth (noise floor)"),
     "snr": ("", "sensitivity", "analog SNR (power ratio) at the optical power"),
     "snr_db": ("dB", "sensitivity", "analog SNR"),
     "max_photocurrent": ("A", "sensitivity", "photocurrent at the output-swing limit"),
@@ -207,7 +209,9 @@ class Receiver:
         net = self.equivalent_circuit()
         r = pd_.responsivity(self.wavelength, self.reverse_bias)
         return self.tia.noise(net, temperature=self.temperature, post_filter=self.post_filter,
-                              dark_current=pd_.dark_current(self.reverse_bias),
+                              # |I_dark|: forward-biased dark current is negative (see
+                              # EquivalentCircuit.current); its shot noise is 2 q |I|
+                              dark_current=np.abs(pd_.dark_current(self.reverse_bias)),
                               signal_current=r * self.optical_power,
                               background_current=r * self.background_power,
                               f_lo=self.noise_band_low)
@@ -225,7 +229,15 @@ class Receiver:
         """
         from .evaluation import evaluate_receiver
 
-        return evaluate_receiver(self)
+        try:
+            return evaluate_receiver(self)
+        except DesignError as exc:
+            if exc.parameter != "v_r":
+                raise
+            # the device models call the bias v_r; the receiver's user knows it as reverse_bias
+            text = str(exc).replace("v_r = ", "reverse_bias = ", 1).replace(
+                "breakdown_voltage()", "the photodiode's breakdown estimate")
+            raise DesignError(text, parameter="reverse_bias") from None
 
     def budget(self, title: str | None = None):
         """Budget tables of this (scalar) design: a :class:`~photorx.views.tables.Budget`."""

@@ -222,13 +222,21 @@ def q_from_ber(ber):
 def q_factor(i_one, i_zero, sigma_one, sigma_zero):
     """Q = (I1 - I0) / (sigma1 + sigma0) for one and zero levels [A] and their rms noise [A].
 
+    The levels must be finite and sigma1 + sigma0 > 0 (otherwise a DesignError).
+
     References
     ----------
     .. [1] G. P. Agrawal, *Fiber-Optic Communication Systems*, 4th ed., Wiley, 2010, sec. 4.5.
     """
+    i1 = require_finite("i_one", i_one, "A")
+    i0 = require_finite("i_zero", i_zero, "A")
     s1 = require_nonnegative("sigma_one", sigma_one, "A")
     s0 = require_nonnegative("sigma_zero", sigma_zero, "A")
-    return (np.asarray(i_one, dtype=float) - np.asarray(i_zero, dtype=float)) / (s1 + s0)
+    total = np.asarray(s1, dtype=float) + np.asarray(s0, dtype=float)
+    if np.any(total <= 0):  # noiseless levels: Q is undefined, not inf or NaN
+        raise DesignError.out_of_range("sigma_one", 0.0, "A",
+                                       "> 0 for sigma_one + sigma_zero (Q undefined without noise)")
+    return (np.asarray(i1, dtype=float) - np.asarray(i0, dtype=float)) / total
 
 
 def _levels(power, r, ratio):

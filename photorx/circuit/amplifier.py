@@ -14,7 +14,8 @@ import numpy as np
 from .._validate import require_nonnegative, require_positive
 from ..errors import DesignError
 
-__all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_density"]
+__all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_density",
+           "flicker_factor"]
 
 
 def open_loop_gain(f, gbw, dc_gain, poles=()):
@@ -53,15 +54,27 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
     return a
 
 
+def flicker_factor(f, corner):
+    """Power factor 1 + f_c/f of white noise with a 1/f corner ``corner`` [Hz] at ``f`` [Hz].
+
+    Exactly 1 where the corner is 0 (no 1/f noise), also at f = 0, where 0/0 would give NaN;
+    ``inf`` at f = 0 with a corner (the 1/f density diverges there).
+    """
+    f = np.asarray(f, dtype=float)
+    corner = np.asarray(corner, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = corner / f
+    return 1.0 + np.where(corner == 0, 0.0, ratio)
+
+
 def voltage_noise_density(f, white, corner):
     """Amplifier input voltage noise density with a 1/f corner [V/rtHz].
 
     e_n(f) = e_w * sqrt(1 + f_c / f). Common practice (Motchenbacher and Connelly,
-    *Low-Noise Electronic System Design*, 1993, ch. 1).
+    *Low-Noise Electronic System Design*, 1993, ch. 1). With f_c = 0 the density is e_w at
+    every frequency, including 0 Hz.
     """
-    f = np.asarray(f, dtype=float)
-    with np.errstate(divide="ignore"):
-        return np.asarray(white, dtype=float) * np.sqrt(1.0 + np.asarray(corner, dtype=float) / f)
+    return np.asarray(white, dtype=float) * np.sqrt(flicker_factor(f, corner))
 
 
 def current_noise_density(f, white, corner):

@@ -23,9 +23,12 @@ and Den(s) = 0 is also 1 + T(s) = 0 with the loop gain T = A0 Yf P / (D_A Q2). H
 * DC transimpedance Zt(0) = A0 / (A0 Gf (1 + Rs Gsh) + Gsh + Gf (1 + Rs Gsh)), i.e. Rf
   reduced by the finite gain and the shunt path.
 * -3 dB bandwidth: |Zt(jw)/Zt(0)|^2 = Den(0)^2/|Den(jw)|^2 on a log grid (which also holds
-  the pole frequencies, so no resonance is stepped over); the *last* crossing of 1/2 is
-  bracketed and refined by bisection, so a response that dips below -3 dB and recovers is
-  measured where it finally falls.
+  the pole frequencies, so no resonance is stepped over); the *first* fall below 1/2 is
+  bracketed and refined by bisection. Peaking above the DC value does not stop the search
+  (it is not a fall), and a response that falls below -3 dB and later rises above it again
+  at a resonance (a low-phase-margin pole pair above a slow real pole) is measured where it
+  first falls: the band over which it stays within 3 dB of DC, as the receiver's chain
+  bandwidth (:func:`photorx.analysis.evaluation.minus_3db_frequency`) is.
 * peaking: maximum of |Zt/Zt(0)| in dB (0 if the response never rises above DC), refined by
   bisection on d|Den(jw)|^2/dw.
 * group-delay variation: tau_g(w) = Re(Den'(jw)/Den(jw)); peak-to-peak over 65 points from
@@ -48,10 +51,12 @@ and Den(s) = 0 is also 1 + T(s) = 0 with the loop gain T = A0 Yf P / (D_A Q2). H
 * step response of the photocurrent: v(t)/v(inf) = 1 + sum_i c_i exp(p_i t),
   c_i = Den(0) / (p_i Den'(p_i)) (exact residues, simple poles). It is sampled on a uniform
   grid long enough that every term has decayed below the settling band (and with >= 6
-  samples per ringing period, up to 4096 samples); crossings, the peak and every ringing
-  peak near the band edge are then refined by Newton steps on the exact expression. Rise time is 10 % to 90 % (first crossings); overshoot is
-  the fraction (max - final)/final, 0.05 meaning 5 %; settling time is the last time the
-  response is outside the +-1 % band (``settling_tolerance``).
+  samples per ringing period, up to 65536 samples, i.e. Q up to about 5000; beyond that rise
+  time and overshoot come from an early window at the same density); crossings, the
+  highest of the first peaks and every ringing peak near the band edge are then refined by
+  Newton steps on the exact expression. Rise time is 10 % to 90 % (first crossings);
+  overshoot is the fraction (max - final)/final, 0.05 meaning 5 %; settling time is the last
+  time the response is outside the +-1 % band (``settling_tolerance``).
 * maximum photocurrent: output_swing / |Zt(0)| for a steady (DC) photocurrent;
   ``max_step_photocurrent`` = output_swing / (|Zt(0)| (1 + overshoot)) for a photocurrent
   step from zero, whose overshoot reaches the rail first. (For a sinusoid at the peaking
@@ -112,7 +117,7 @@ FIGURE_UNITS = {
 _TWO_PI = 2.0 * np.pi
 _N_FREQ = 160          # log-grid points for bandwidth and peaking (plus the pole frequencies)
 _N_LOOP = 128          # log-grid points for the loop-gain crossings (then refined by bisection)
-_N_TIME_MIN, _N_TIME_MAX = 128, 4096
+_N_TIME_MIN, _N_TIME_MAX = 128, 2 ** 16
 _BLOCK_SAMPLES = 2 ** 21  # designs x time samples per block of the step response (memory bound)
 
 
@@ -459,15 +464,16 @@ def _frequency_figures(x, d):
     w = np.sort(np.concatenate([w, extra], -1), -1)
     dd = _deriv(d)
     g = np.abs(_on_axis(d, w)) ** 2  # |Den(jw)/Den(0)|^2 = 1/|H|^2
-    inside = g <= 2.0
-    last = w.shape[1] - 1 - np.argmax(inside[:, ::-1], -1)
-    last = np.minimum(last, w.shape[1] - 2)
+    # first grid point below -3 dB (the grid starts at 1 % of the slowest pole, well inside
+    # the pass band); the band ends there even if a resonance further up rises above -3 dB
+    # again: a response that is down 3 dB over a span is not "flat" across it
+    first = np.maximum(np.argmax(g > 2.0, -1), 1)
     rows = np.arange(n_rows)
 
     def f_bw(xx, r):
         return 2.0 - np.abs(_on_axis(d[r], xx[:, None])[:, 0]) ** 2
 
-    bw = _bisect_rows(f_bw, w[rows, last], w[rows, last + 1], rows)
+    bw = _bisect_rows(f_bw, w[rows, first - 1], w[rows, first], rows)
     # peaking: minimum of |Den|^2, refined where d|Den|^2/dw changes sign around the grid minimum
     k = np.argmin(g, -1)
     peak = 1.0 / g[rows, k]
@@ -543,15 +549,26 @@ def _step_figures(x, d, tol):
     n_act = int((weight > 0).sum(-1).max())
     xv, cw = xv[:, :n_act], cw[:, :n_act]
     # samples: >= 6 per ringing period of any pole that matters, in power-of-two bins
-    need = np.clip(6.0 * periods + 1.0, _N_TIME_MIN, _N_TIME_MAX)
-    n_bin = 2 ** np.ceil(np.log2(need)).astype(int)
+    need = np.maximum(6.0 * periods + 1.0, _N_TIME_MIN)
+    n_bin = 2 ** np.ceil(np.log2(np.minimum(need, _N_TIME_MAX))).astype(int)
     rise, overshoot, settle = (np.empty(n_rows) for _ in range(3))
     for n_t in np.unique(n_bin):  # a handful of bin sizes, each fully vectorised
         in_bin = np.nonzero(n_bin == n_t)[0]
-        block = max(64, _BLOCK_SAMPLES // n_t)  # bounds memory, not a loop over designs
+        block = max(1, _BLOCK_SAMPLES // n_t)  # bounds memory, not a loop over designs
         for start in range(0, in_bin.size, block):
             r = in_bin[start:start + block]
             rise[r], overshoot[r], settle[r] = _step_block(xv[r], cw[r], t_end[r], n_t, tol)
+    # Ringing beyond the sample cap (Q of several thousand, an oscillator in all but name):
+    # the full-length grid has < 6 samples per period and misses the first crossings and the
+    # first, highest peak. Rise time and overshoot happen at the start, so take them from an
+    # early window holding 6 samples per period (_N_TIME_MAX / 6 periods); the settling time
+    # stays from the full grid (its refinement of the last band exit is then approximate).
+    over = np.nonzero(need > _N_TIME_MAX)[0]
+    block = max(1, _BLOCK_SAMPLES // _N_TIME_MAX)
+    for start in range(0, over.size, block):
+        r = over[start:start + block]
+        t_early = t_end[r] * _N_TIME_MAX / need[r]
+        rise[r], overshoot[r], _ = _step_block(xv[r], cw[r], t_early, _N_TIME_MAX, tol)
     return rise, overshoot, settle
 
 
@@ -578,19 +595,26 @@ def _step_block(xv, cw, t_end, n_t, tol):
         return _newton_in_bracket(f, lo, hi, np.clip(guess, lo, hi))
 
     rise = crossing_first(0.9) - crossing_first(0.1)
-    # overshoot: grid maximum, refined where y' changes sign around it
-    k = np.argmax(y, -1)
-    kl, kh = np.maximum(k - 1, 0), np.minimum(k + 1, n_t - 1)
-    ymax = y[rows, k]
+    # overshoot: the grid maximum and the first few sampled local maxima, each refined where
+    # y' changes sign around it. With only ~6 samples per period a later, slightly lower peak
+    # can sample higher than the first one (a high-Q ring decays by only exp(-pi/Q) per
+    # period), so the first peaks are refined too and the largest refined value is kept.
+    ymax = y.max(-1)
 
     def fprime(tt):
         ce = cw * np.exp(xv * tt[:, None]) * xv
         return ce.sum(-1).real, (ce * xv).sum(-1).real
 
-    ok = (fprime(t[rows, kl])[0] > 0) & (fprime(t[rows, kh])[0] < 0)
-    tm = _newton_in_bracket(fprime, t[rows, kl], t[rows, kh], t[rows, k])
-    ym, _ = _step_eval(xv, cw, tm)
-    ymax = np.where(ok, np.maximum(ymax, ym), ymax)
+    local = np.zeros(y.shape, dtype=bool)
+    local[:, 1:-1] = (y[:, 1:-1] >= y[:, :-2]) & (y[:, 1:-1] >= y[:, 2:]) & (y[:, 1:-1] > 1.0)
+    count = np.cumsum(local, -1)
+    candidates = [np.argmax(y, -1)] + [np.argmax(local & (count == c), -1) for c in range(1, 9)]
+    for k in candidates:
+        kl, kh = np.maximum(k - 1, 0), np.minimum(k + 1, n_t - 1)
+        ok = (fprime(t[rows, kl])[0] > 0) & (fprime(t[rows, kh])[0] < 0)
+        tm = _newton_in_bracket(fprime, t[rows, kl], t[rows, kh], t[rows, k])
+        ym, _ = _step_eval(xv, cw, tm)
+        ymax = np.where(ok, np.maximum(ymax, ym), ymax)
     overshoot = np.maximum(ymax - 1.0, 0.0)
     # settling: the last sample outside the band, then the exact crossing after it
     out = np.abs(y - 1.0) > tol
@@ -731,7 +755,7 @@ class TiaMetrics:
     Attributes
     ----------
     dc_transimpedance : DC closed-loop transimpedance [ohm] (finite gain and shunt included).
-    bandwidth : -3 dB frequency of the transimpedance [Hz] (last crossing; NaN if unstable).
+    bandwidth : -3 dB frequency of the transimpedance [Hz] (first fall; NaN if unstable).
     peaking_db : peak of |Zt| above its DC value [dB], >= 0.
     phase_margin : worst phase margin of the loop gain [deg]; inf without a crossover.
     gain_margin_db : gain margin closest to 0 dB [dB]; inf without a -180 deg crossing.

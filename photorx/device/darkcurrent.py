@@ -22,7 +22,7 @@ from types import MappingProxyType
 
 import numpy as np
 
-from .._validate import require_in_range, require_nonnegative, require_positive
+from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
 from ..constants import q, thermal_voltage
 from .optics import require_thickness_or_inf
 
@@ -90,6 +90,11 @@ def diffusion_length(diffusivity, lifetime):
         Diffusion coefficient [m^2/s], > 0.
     lifetime : float or array_like
         Minority-carrier lifetime [s], > 0.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 2 (ideal diode, L = sqrt(D tau)).
     """
     dd = require_positive("diffusivity", diffusivity, "m^2/s")
     tau = require_positive("lifetime", lifetime, "s")
@@ -165,9 +170,10 @@ def diffusion_current(v_r, saturation_current, temperature=300.0):
     .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
        2007, ch. 2 (Shockley equation).
     """
+    v = require_finite("v_r", v_r, "V")
     i_s = require_nonnegative("saturation_current", saturation_current, "A")
     vt = thermal_voltage(temperature)
-    return _out(np.asarray(i_s) * -np.expm1(-np.asarray(v_r, dtype=float) / vt))
+    return _out(np.asarray(i_s) * -np.expm1(-np.asarray(v, dtype=float) / vt))
 
 
 def generation_current(v_r, area, ni, width, generation_lifetime, temperature=300.0,
@@ -212,8 +218,9 @@ def generation_current(v_r, area, ni, width, generation_lifetime, temperature=30
     w = np.asarray(require_nonnegative("width", width, "m"))
     tau = np.asarray(require_positive("generation_lifetime", generation_lifetime, "s"))
     n = np.asarray(require_in_range("ideality", ideality, "", 1.0, 10.0))
+    v = np.asarray(require_finite("v_r", v_r, "V"), dtype=float)
     vt = thermal_voltage(temperature)
-    return _out(q * a * n_i * w / tau * -np.expm1(-np.asarray(v_r, dtype=float) / (n * vt)))
+    return _out(q * a * n_i * w / tau * -np.expm1(-v / (n * vt)))
 
 
 def generation_conductance(v_r, area, ni, width, width_slope, generation_lifetime,
@@ -238,7 +245,7 @@ def generation_conductance(v_r, area, ni, width, width_slope, generation_lifetim
     tau = np.asarray(require_positive("generation_lifetime", generation_lifetime, "s"))
     n = np.asarray(require_in_range("ideality", ideality, "", 1.0, 10.0))
     nvt = n * thermal_voltage(temperature)
-    x = np.asarray(v_r, dtype=float) / nvt
+    x = np.asarray(require_finite("v_r", v_r, "V"), dtype=float) / nvt
     return _out(q * a * n_i / tau * (w * np.exp(-x) / nvt - np.expm1(-x) * dw))
 
 
@@ -251,11 +258,17 @@ def leakage_current(v_r, resistance):
         Reverse bias [V].
     resistance : float or array_like
         Leakage resistance [ohm], > 0 (inf allowed).
+
+    References
+    ----------
+    .. [1] J. G. Graeme, *Photodiode Amplifiers: Op Amp Solutions*, McGraw-Hill, 1996,
+       ch. 1 (shunt resistance of the photodiode model).
     """
+    v = np.asarray(require_finite("v_r", v_r, "V"), dtype=float)
     r = np.asarray(resistance, dtype=float)
     if np.any(~(r > 0)):
         require_positive("resistance", r, "ohm")
-    return _out(np.asarray(v_r, dtype=float) / r)
+    return _out(v / r)
 
 
 def zero_bias_resistance(saturation_current, generation_current_max, leakage_resistance=np.inf,

@@ -38,7 +38,13 @@ from .junction_parametric import (
     parametric_capacitance,
     parametric_charge,
 )
-from .junction_pin import PinJunction, pin_depletion_edges, pin_punch_through_potential
+from .junction_pin import (
+    PinJunction,
+    pin_breakdown_field,
+    pin_built_in_potential,
+    pin_depletion_edges,
+    pin_punch_through_potential,
+)
 
 __all__ = [
     "AbruptJunction",
@@ -56,6 +62,8 @@ __all__ = [
     "graded_built_in_potential",
     "graded_depletion_width",
     "graded_breakdown_voltage",
+    "pin_breakdown_field",
+    "pin_built_in_potential",
     "pin_depletion_edges",
     "pin_punch_through_potential",
     "parametric_capacitance",

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .._validate import require_in_range
+from .._validate import require_in_range, require_positive
 from ..constants import q, thermal_voltage
 from ..errors import DesignError
 from .junction_base import JunctionBase, check_doping
@@ -61,8 +61,13 @@ def abrupt_built_in_potential(na, nd, ni, temperature=300.0):
     .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
        2007, ch. 2, Eq. (3).
     """
-    na, nd, ni = (np.asarray(x, dtype=float) for x in (na, nd, ni))
-    return _out(thermal_voltage(temperature) * np.log(na * nd / ni**2))
+    na, nd, ni = (np.asarray(require_positive(name, x, "m^-3"), dtype=float)
+                  for name, x in (("na", na), ("nd", nd), ("ni", ni)))
+    ratio = na * nd / ni**2
+    if np.any(ratio <= 1.0):  # Vbi <= 0: no junction (a doping at or below ni)
+        raise DesignError.out_of_range("na*nd", np.broadcast_to(na * nd, ratio.shape)[
+            ratio <= 1.0][0] if ratio.ndim else na * nd, "m^-6", "> ni^2 (dopings above ni)")
+    return _out(thermal_voltage(temperature) * np.log(ratio))
 
 
 def abrupt_depletion_width(v_total, na, nd, eps):
@@ -94,6 +99,7 @@ def abrupt_depletion_width(v_total, na, nd, eps):
     .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
        2007, ch. 2, Eqs. (10)-(12).
     """
+    v_total = require_positive("v_total", v_total, "V")
     v, na, nd, eps = (np.asarray(x, dtype=float) for x in (v_total, na, nd, eps))
     return _out(np.sqrt(2.0 * eps * v / q * (1.0 / na + 1.0 / nd)))
 
@@ -146,6 +152,7 @@ def graded_depletion_width(v_total, gradient, eps):
     .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
        2007, ch. 2, Eq. (31).
     """
+    v_total = require_positive("v_total", v_total, "V")
     v, a, eps = (np.asarray(x, dtype=float) for x in (v_total, gradient, eps))
     return _out(np.cbrt(12.0 * eps * v / (q * a)))
 
@@ -189,7 +196,9 @@ class AbruptJunction(JunctionBase):
     peak field E = q Na x_p / eps = 2 (Vbi + V_R) / W. Bias is accepted for
     -0.9 Vbi < v_r <= breakdown_voltage(); outside, a DesignError. The breakdown
     estimate uses the doping-dependent critical field (:meth:`Material.critical_field`)
-    of the lighter side. Degenerate doping (above Nc or Nv) overstates Vbi slightly.
+    of the lighter side. Degenerate doping (above Nc or Nv, e.g. 1e19 cm^-3 in GaAs or
+    InGaAs): Boltzmann statistics and no band-gap narrowing make Vbi approximate, and it
+    may exceed Eg/q.
 
     References
     ----------

@@ -15,17 +15,120 @@ from dataclasses import dataclass
 import numpy as np
 
 from .._validate import require_in_range, require_positive
-from ..constants import q
+from ..constants import q, thermal_voltage
 from ..errors import DesignError
-from .junction_abrupt import abrupt_built_in_potential
 from .junction_base import JunctionBase, check_doping
 from .materials import Material
 
-__all__ = ["PinJunction", "pin_depletion_edges", "pin_punch_through_potential"]
+__all__ = ["PinJunction", "pin_breakdown_field", "pin_built_in_potential",
+           "pin_depletion_edges", "pin_punch_through_potential"]
 
 
 def _out(x):
     return x if np.ndim(x) else float(x)
+
+
+def pin_built_in_potential(na, ni_doping, ni, temperature=300.0):
+    """Built-in potential of the p+ / i-layer junction of a p+ / n- / n+ structure [V].
+
+    Parameters
+    ----------
+    na : float or array_like
+        Acceptor density of the p+ layer [m^-3], > ni.
+    ni_doping : float or array_like
+        Net donor density of the i layer [m^-3], > 0 (may be below ni).
+    ni : float or array_like
+        Intrinsic carrier density [m^-3].
+    temperature : float or array_like
+        Temperature [K].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        V_bi [V] of the p+/i junction.
+
+    Notes
+    -----
+    V_bi = V_T ln(Na n0 / ni^2), with n0 = Ni/2 + sqrt(Ni^2/4 + ni^2) the equilibrium
+    electron density of the i layer (n0 = Ni for Ni >> ni, n0 = ni for an intrinsic
+    layer). This, not the contact-to-contact V_T ln(Na Nd / ni^2), is the potential that
+    depletes the i layer below punch-through: the rest, V_T ln(Nd / n0) (0.36 V for
+    1e13 / 1e19 cm^-3), drops across the n-/n+ high-low junction, whose dipole is
+    screened by the neutral i layer until the depletion edge reaches it.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 2, Eq. (3) (built-in potential of a step junction) and ch. 1 (carrier
+       density of a doped semiconductor, n0 = Nd/2 + sqrt(Nd^2/4 + ni^2)).
+    """
+    na, nid, ni = (np.asarray(require_positive(name, x, "m^-3"), dtype=float)
+                   for name, x in (("na", na), ("ni_doping", ni_doping), ("ni", ni)))
+    n0 = 0.5 * nid + np.sqrt(0.25 * nid**2 + ni**2)
+    return _out(thermal_voltage(temperature) * np.log(na * n0 / ni**2))
+
+
+def pin_breakdown_field(material, ni_doping, thickness, iterations=64):
+    """Peak field at avalanche breakdown of a p+ / i / n+ junction [V/m].
+
+    Parameters
+    ----------
+    material : Material
+        Semiconductor (its :meth:`~photorx.device.materials.Material.critical_field`).
+    ni_doping : float or array_like
+        Net doping of the i layer [m^-3], > 0.
+    thickness : float or array_like
+        i-layer thickness d [m], > 0.
+    iterations : int, optional
+        Bisection steps in log E0 (64 reach double precision).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Peak field E0 at the p+/i interface at breakdown [V/m].
+
+    Notes
+    -----
+    The universal law Ec(N) ~ N^(1/8) of :meth:`Material.critical_field` is exactly the
+    ionisation integral int alpha dx = 1 of a one-sided junction with the power-law
+    ionisation coefficient alpha = C E^7 (Fulop's form); C = 8 q / (eps K) with
+    K = Ec(N)^8 / N. If the one-sided depletion at breakdown, eps Ec(Ni) / (q Ni), fits in
+    the i layer, E0 = Ec(Ni). Otherwise the field falls linearly across the whole layer,
+    from E0 to E1 = E0 - q Ni d / eps, and int alpha dx = 1 reads
+    (q d / eps) sum_k E0^(7-k) E1^k = K (k = 0..7), solved for E0 by bisection. For
+    Ni -> 0 this is the uniform-field result E0 = (eps K / (8 q d))^(1/7); using
+    Ec(Ni) of the background doping instead (Sze and Ng's punch-through expression)
+    goes to zero with Ni and underestimates thin, lightly doped layers. The thin
+    high-field layers of the contacts are left out of the integral.
+
+    References
+    ----------
+    .. [1] W. Fulop, Calculation of avalanche breakdown voltages of silicon p-n
+       junctions, Solid-State Electronics 10, 39 (1967) (alpha ~ E^7) (from memory).
+    .. [2] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 2 (ionisation integral, universal breakdown law, punch-through diodes).
+    """
+    nid = np.asarray(ni_doping, dtype=float)
+    d = np.asarray(thickness, dtype=float)
+    eps = material.permittivity
+    e_np = np.asarray(material.critical_field(nid))  # one-sided (not punched through)
+    n_ref = 1e22  # [m^-3] inside the range of the universal law: K from the pure power law
+    k_law = material.critical_field(n_ref) ** 8 / n_ref
+    sd = q * nid * d / eps  # field drop across the i layer [V/m]
+    punched = sd < e_np
+    # bracket: g(lo = sd) < 0 when punched; g(hi) >= 0 since the k = 0 term alone reaches K
+    lo = np.where(punched, sd, 1.0)
+    hi = np.maximum((eps * k_law / (q * d)) ** (1.0 / 7.0), lo) * np.ones_like(lo)
+    for _ in range(iterations):
+        mid = np.sqrt(lo * hi)
+        # sum_k E0^(7-k) E1^k = E0^7 (1 - r^8) / (1 - r), r = E1/E0 = 1 - s, written with
+        # expm1/log1p so that it stays exact as s = sd/E0 -> 0 (uniform field)
+        s = np.minimum(sd / mid, 1.0)
+        total = mid**7 * -np.expm1(8.0 * np.log1p(-np.minimum(s, 1.0 - 1e-16))) / s
+        above = q * d / eps * total >= k_law
+        hi = np.where(above, mid, hi)
+        lo = np.where(above, lo, mid)
+    return _out(np.where(punched, np.sqrt(lo * hi), e_np))
 
 
 def pin_punch_through_potential(na, ni_doping, thickness, eps):
@@ -73,8 +176,13 @@ def pin_depletion_edges(v_total, na, ni_doping, nd, thickness, eps):
     (1/Na + 1/Nd) Q^2 + 2 d (1 + Ni/Na) Q = 2 eps (V - V_pt) / q, solved in the form
     Q = 2c / (b + sqrt(b^2 + 4 a c)) that is exact and stable as Q -> 0; x_n = d + Q/Nd.
     W, C and Q are continuous at punch-through and dQ/dV = eps A / W holds in both
-    regimes. The n-/n+ high-low junction's small built-in share is lumped into Vbi.
+    regimes. ``v_total`` is Vbi of the p+/i junction plus V_R
+    (:func:`pin_built_in_potential`); the n-/n+ high-low junction's share V_T ln(Nd/Ni),
+    released when the depletion edge reaches it, is left out above punch-through too, so
+    that W and Q stay continuous (including it would move the edge by a fraction of a
+    Debye length and raise the peak field by V_T ln(Nd/Ni) / d, 0.1 kV/cm for 40 um).
     """
+    v_total = require_positive("v_total", v_total, "V")
     v, na, ni_d, nd, d, eps = (np.asarray(x, dtype=float)
                                for x in (v_total, na, ni_doping, nd, thickness, eps))
     v_pt = q * ni_d * d**2 * (1.0 + ni_d / na) / (2.0 * eps)
@@ -113,11 +221,12 @@ class PinJunction(JunctionBase):
 
     Notes
     -----
-    Vbi = V_T ln(Na Nd / ni^2) (contact to contact). See :func:`pin_depletion_edges` for
-    W; C = eps A / W; charge Q = q A Na x_p; peak field q Na x_p / eps at the p+/i
-    interface. Breakdown: the bias at which the peak field reaches the critical field of
-    the i-layer doping (:meth:`Material.critical_field`, at least that of 1e14 cm^-3),
-    a conservative estimate for thin i layers.
+    Vbi = V_T ln(Na n0 / ni^2) of the p+/i junction (:func:`pin_built_in_potential`;
+    n0 ~ Ni the electron density of the i layer), the potential that depletes the i layer.
+    See :func:`pin_depletion_edges` for W; C = eps A / W; charge Q = q A Na x_p; peak
+    field q Na x_p / eps at the p+/i interface. Breakdown: :func:`pin_breakdown_field`
+    (ionisation integral over the i layer, consistent with the universal breakdown law),
+    an estimate that stays positive and physical for thin, lightly doped i layers.
 
     References
     ----------
@@ -151,10 +260,14 @@ class PinJunction(JunctionBase):
         object.__setattr__(self, "i_doping", nid)
 
     def built_in_potential(self):
-        """Built-in potential V_T ln(Na Nd / ni^2) between the contact layers [V]."""
-        return abrupt_built_in_potential(self.p_doping, self.n_doping,
-                                         self.material.intrinsic_density(self.temperature),
-                                         self.temperature)
+        """Built-in potential V_T ln(Na n0 / ni^2) of the p+/i junction [V].
+
+        See :func:`pin_built_in_potential` (n0 ~ i_doping); the contact-to-contact value
+        V_T ln(Na Nd / ni^2) is larger by the n-/n+ high-low junction's V_T ln(Nd / n0).
+        """
+        return pin_built_in_potential(self.p_doping, self.i_doping,
+                                      self.material.intrinsic_density(self.temperature),
+                                      self.temperature)
 
     def punch_through_voltage(self):
         """Reverse bias at which the i layer becomes fully depleted [V].
@@ -193,11 +306,16 @@ class PinJunction(JunctionBase):
         return self._scalar(q * np.asarray(self.p_doping) * x_p / self.material.permittivity)
 
     def breakdown_voltage(self):
-        """Reverse bias at which the peak field reaches the critical field [V] (estimate)."""
+        """Reverse bias at which the peak field reaches :func:`pin_breakdown_field` [V].
+
+        An estimate (+-30 % typical, like the universal law it is calibrated to); for a
+        punched-through i layer thinner than about 0.2 um it is conservative (dead-space
+        effects raise the real value).
+        """
         na, nid, nd, d = (np.asarray(x, dtype=float) for x in
                           (self.p_doping, self.i_doping, self.n_doping, self.i_thickness))
         eps = self.material.permittivity
-        ec = np.asarray(self.material.critical_field(nid))
+        ec = np.asarray(pin_breakdown_field(self.material, nid, d))
         sheet = eps * ec / q  # Na x_p at breakdown [m^-2]
         # not punched through at breakdown: one-sided p+/n- junction
         v1 = q * sheet**2 * (1.0 + nid / na) / (2.0 * eps * nid)

@@ -116,7 +116,13 @@ def absorption_source(name: str) -> str:
 
 
 def photon_energy(wavelength):
-    """Photon energy h c / lambda [eV] of vacuum wavelength ``wavelength`` [m]."""
+    """Photon energy h c / lambda [eV] of vacuum wavelength ``wavelength`` [m].
+
+    References
+    ----------
+    .. [1] B. E. A. Saleh and M. C. Teich, *Fundamentals of Photonics*, 2nd ed., Wiley,
+       2007, ch. 12 (photon energy E = h nu = h c / lambda).
+    """
     wl = require_positive("wavelength", wavelength, "m")
     return _out(_HC_EV_M / np.asarray(wl))
 
@@ -175,10 +181,14 @@ def interpolate_absorption(wavelength, table_wavelength, table_alpha, band_gap, 
     outside = above & ((e_ref < e_lo * (1 - 1e-12)) | (e_ref > e_hi * (1 + 1e-12)))
     if np.any(outside):
         bad = np.broadcast_to(np.asarray(wl), outside.shape)[outside]
-        note = "" if np.all(shift == 0) else ", shifted with the band gap"
+        sh = float(np.broadcast_to(shift, outside.shape)[outside][0])
+        # the valid range at this temperature: the table's energies moved with the gap
+        lo_wl, hi_wl = _HC_EV_M / (e_hi + sh), _HC_EV_M / max(e_lo + sh, 1e-30)
+        note = "" if sh == 0 else (f", {t_wl[0] * 1e9:.0f} to {t_wl[-1] * 1e9:.0f} nm at "
+                                   "300 K shifted with the band gap")
         raise DesignError.out_of_range(
             "wavelength", bad[0] if bad.size else wl, "m",
-            f"{t_wl[0]:.4g} to {t_wl[-1]:.4g} m ({t_wl[0] * 1e9:.0f} to {t_wl[-1] * 1e9:.0f} nm,"
+            f"{lo_wl:.4g} to {hi_wl:.4g} m ({lo_wl * 1e9:.0f} to {hi_wl * 1e9:.0f} nm,"
             f" range of the {table_name} table{note})")
     # np.interp needs increasing abscissae: energies of the reversed table
     log_a = np.interp(e_ref, (_HC_EV_M / t_wl)[::-1], np.log(t_a)[::-1])
@@ -274,7 +284,13 @@ def responsivity_from_qe(qe, wavelength):
 
 
 def qe_from_responsivity(responsivity, wavelength):
-    """Quantum efficiency eta = R h c / (q lambda) [-] of responsivity [A/W] at wavelength [m]."""
+    """Quantum efficiency eta = R h c / (q lambda) [-] of responsivity [A/W] at wavelength [m].
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 13 (responsivity of photodetectors).
+    """
     r = require_nonnegative("responsivity", responsivity, "A/W")
     wl = require_positive("wavelength", wavelength, "m")
     return _out(np.asarray(r) * _HC_EV_M / np.asarray(wl))

@@ -38,7 +38,7 @@ from ..errors import DesignError
 from . import darkcurrent as dk
 from . import optics, speed
 from .equivalent_circuit import EquivalentCircuit
-from .junction import ParametricJunction, diffusion_capacitance
+from .junction import FORWARD_LIMIT, ParametricJunction, diffusion_capacitance
 
 __all__ = ["Photodiode"]
 
@@ -54,7 +54,19 @@ def _out(x):
 
 
 def _optional_positive(name, value, unit):
-    return None if value is None else float(require_positive(name, value, unit))
+    """None, or ``value`` > 0 as a float (scalar) or float array (one value per design)."""
+    return None if value is None else require_positive(name, value, unit)
+
+
+def _optional_scalar_positive(name, value, unit):
+    """None, or a single ``value`` > 0 (the datasheet fit is solved for one diode at a time)."""
+    if value is None:
+        return None
+    out = require_positive(name, value, unit)
+    if np.ndim(out):
+        raise DesignError(f"{name} must be a single number [{unit}], not an array of shape "
+                          f"{np.shape(out)}; build one Photodiode per datasheet", parameter=name)
+    return float(out)
 
 
 def _responsivity_table(value):
@@ -207,17 +219,19 @@ class Photodiode:
         at = _out(np.asarray(optics.require_thickness_or_inf("absorber_thickness",
                                                              self.absorber_thickness), dtype=float))
         if np.any(np.asarray(at) <= 0):
-            raise DesignError.out_of_range("absorber_thickness", np.min(at), "m", "> 0 (inf allowed)")
+            raise DesignError.out_of_range("absorber_thickness", np.min(at), "m",
+                                           "> 0 (inf allowed)")
         setf(self, "absorber_thickness", at)
         setf(self, "top_diffusion_length", require_positive(
             "top_diffusion_length", self.top_diffusion_length, "m"))
         setf(self, "lifetime", _optional_positive("lifetime", self.lifetime, "s"))
         setf(self, "generation_lifetime", _optional_positive(
             "generation_lifetime", self.generation_lifetime, "s"))
-        rl = float(as_float_array("leakage_resistance", self.leakage_resistance, "ohm"))
-        if not rl > 0:
-            raise DesignError.out_of_range("leakage_resistance", rl, "ohm", "> 0 (inf allowed)")
-        setf(self, "leakage_resistance", rl)
+        rl = np.asarray(as_float_array("leakage_resistance", self.leakage_resistance, "ohm"))
+        if np.any(~(rl > 0)):  # also NaN; +inf (no leakage) is allowed
+            raise DesignError.out_of_range("leakage_resistance", rl[~(rl > 0)][0] if rl.ndim
+                                           else rl, "ohm", "> 0 (inf allowed)")
+        setf(self, "leakage_resistance", _out(rl))
         setf(self, "series_resistance", require_nonnegative(
             "series_resistance", self.series_resistance, "ohm"))
         setf(self, "package_capacitance", require_nonnegative(
@@ -231,8 +245,9 @@ class Photodiode:
 
     def _setup_dark_fit(self):
         setf = object.__setattr__
-        i_ref = _optional_positive("reference_dark_current", self.reference_dark_current, "A")
-        r0 = _optional_positive("zero_bias_resistance", self.zero_bias_resistance, "ohm")
+        i_ref = _optional_scalar_positive("reference_dark_current", self.reference_dark_current,
+                                          "A")
+        r0 = _optional_scalar_positive("zero_bias_resistance", self.zero_bias_resistance, "ohm")
         setf(self, "reference_dark_current", i_ref)
         setf(self, "zero_bias_resistance", r0)
         if i_ref is None:
@@ -243,12 +258,16 @@ class Photodiode:
             if self.reference_bias is None:
                 raise DesignError("reference_bias [V] is required with reference_dark_current",
                                   parameter="reference_bias")
-            setf(self, "reference_bias", float(require_in_range(
-                "reference_bias", self.reference_bias, "V", _MIN_REFERENCE_BIAS)))
+            v_ref = require_in_range("reference_bias", self.reference_bias, "V",
+                                     _MIN_REFERENCE_BIAS)
+            if np.ndim(v_ref):
+                raise DesignError("reference_bias must be a single number [V]",
+                                  parameter="reference_bias")
+            setf(self, "reference_bias", float(v_ref))
         if i_ref is None and r0 is None:
             setf(self, "_fit", None)
             return
-        if np.isfinite(self.leakage_resistance):
+        if np.any(np.isfinite(self.leakage_resistance)):
             raise DesignError("leakage_resistance cannot be combined with "
                               "reference_dark_current / zero_bias_resistance (the fit sets the "
                               "leakage); leave it at inf", parameter="leakage_resistance")
@@ -293,16 +312,46 @@ class Photodiode:
         return (self.lifetime if self.lifetime is not None else tau0,
                 self.generation_lifetime if self.generation_lifetime is not None else taug0)
 
+    def _fit_bias(self, v_r):
+        """Check v_r [V]; the fitted dark current of a parametric junction needs v_r > -0.9 Vj.
+
+        Its recombination term grows as e^{V/2V_T} without bound (1e5 A at 2 V, inf at
+        40 V); like the physical junctions, forward bias near the junction potential is
+        refused rather than returned as nonsense.
+        """
+        v = require_finite("v_r", v_r, "V")
+        if self._fit is not None and not self._physical:
+            va, lim = np.broadcast_arrays(np.asarray(v),
+                                          -FORWARD_LIMIT * np.asarray(self.junction.vj))
+            bad = va <= lim
+            if np.any(bad):
+                raise DesignError.out_of_range(
+                    "v_r", va[bad][0], "V",
+                    f"> -{FORWARD_LIMIT}*vj = {lim[bad][0]:.4g} V (forward bias near "
+                    "the junction potential is outside the fitted dark-current model)")
+        return v
+
     def _width_ratio(self, v_r):
         """C_j(0)/C_j(v_r) [-]: depletion width relative to zero bias (W ~ 1/C_j)."""
         return np.asarray(self.junction.capacitance(0.0)) / np.asarray(
             self.junction.capacitance(v_r))
 
+    def _slope_points(self, v_r):
+        """Bias pair (v_lo, v_hi), v_hi - v_lo = step, for a one-sided difference at v_r.
+
+        Forward difference, turned backward near the breakdown estimate so that the
+        derivative exists at every bias the junction accepts (up to breakdown_voltage()).
+        """
+        v = np.asarray(v_r, dtype=float)
+        limits = getattr(self.junction, "_bias_limits", None)  # (Vbi, breakdown), cached
+        hi = v + _SLOPE_STEP if limits is None else np.minimum(v + _SLOPE_STEP, limits[1])
+        return hi - _SLOPE_STEP, hi
+
     def _width_slope(self, v_r):
         j = self.junction
-        v = np.asarray(v_r, dtype=float)
-        return np.maximum((np.asarray(j.depletion_width(v + _SLOPE_STEP))
-                           - np.asarray(j.depletion_width(v))) / _SLOPE_STEP, 0.0)
+        lo, hi = self._slope_points(v_r)
+        return np.maximum((np.asarray(j.depletion_width(hi))
+                           - np.asarray(j.depletion_width(lo))) / _SLOPE_STEP, 0.0)
 
     def _has_optics(self) -> bool:
         if not self._physical:
@@ -357,12 +406,17 @@ class Photodiode:
         """Collected carriers per incident photon by region: (top, drift, bottom) [-].
 
         Physics mode only (see :func:`~photorx.device.optics.collection_fractions`); the
-        front reflectance is included, so the sum is the quantum efficiency.
+        front reflectance is included, so the sum is the quantum efficiency. The drift part
+        absorbs over min(W, absorber_thickness).
         """
         self._require_optics("collection_fractions")
         st = self._stack(v_r)
         for k in ("top_lifetime", "bottom_lifetime"):
             st.pop(k)
+        # only the absorbing part of the depletion layer generates carriers: a depletion
+        # layer reaching through a thin absorber into a transparent layer (InGaAs on InP)
+        # must not absorb beyond absorber_thickness
+        st["depletion_width"] = np.minimum(st["depletion_width"], self.absorber_thickness)
         parts = optics.collection_fractions(self._alpha(wavelength), **st)
         r = self._reflectance()
         return tuple(_out((1.0 - r) * np.asarray(p)) for p in parts)
@@ -487,7 +541,7 @@ class Photodiode:
         Positive in the reverse direction. With a fitted (datasheet) dark current the
         fitted generation-like and leakage parts are returned and "diffusion" is 0.
         """
-        v = require_finite("v_r", v_r, "V")
+        v = self._fit_bias(v_r)
         if self._fit is not None:
             i_g, g = self._fit
             nvt = 2.0 * thermal_voltage(self.temperature)
@@ -527,14 +581,15 @@ class Photodiode:
         R_sh = [I_s e^{-v_r/V_T}/V_T + dI_gen/dv_r + 1/R_leak]^-1 (physics); with a fitted
         dark current the derivative of the fitted form. inf when nothing conducts.
         """
-        v = np.asarray(require_finite("v_r", v_r, "V"), dtype=float)
+        v = np.asarray(self._fit_bias(v_r), dtype=float)
         t = self.temperature
         vt = thermal_voltage(t)
         if self._fit is not None:
             i_g, g = self._fit
             nvt = 2.0 * vt
             s = self._width_ratio(v)
-            ds = (self._width_ratio(v + _SLOPE_STEP) - s) / _SLOPE_STEP
+            lo, hi = self._slope_points(v)
+            ds = (self._width_ratio(hi) - self._width_ratio(lo)) / _SLOPE_STEP
             cond = i_g * (s * np.exp(-v / nvt) / nvt - np.expm1(-v / nvt) * ds) + g
         elif self._physical:
             j = self.junction
@@ -658,7 +713,7 @@ class Photodiode:
         self._require_optics("diffusion_time_constant")
         st = self._stack(v_r)
         vf, vn = self._velocities(v_r)
-        scale = max(st["top_lifetime"], st["bottom_lifetime"])
+        scale = np.maximum(st["top_lifetime"], st["bottom_lifetime"])
         omega = 1e-6 / scale
         a = self._alpha(wavelength)
         top0, _, bot0 = speed.photocurrent_spectrum(0.0, a, v_far=vf, v_near=vn, **st)

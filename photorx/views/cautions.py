@@ -10,7 +10,8 @@ from __future__ import annotations
 
 import html
 
-__all__ = ["CAUTIONS", "CAUTIONS_TITLE", "cautions_text", "cautions_markdown", "cautions_html"]
+__all__ = ["CAUTIONS", "CAUTIONS_TITLE", "cautions_text", "cautions_markdown", "cautions_html",
+           "cautions_short"]
 
 CAUTIONS_TITLE = "Cautions"
 
@@ -30,6 +31,13 @@ CAUTIONS = (
     "Local rules: defer to local codes, the standards that apply to your product and licensed "
     "professional practice; these notes do not replace them.",
 )
+
+
+def cautions_short() -> str:
+    """Two lines for the terminal table: what the cautions are and where to read them."""
+    return ("Cautions: model estimates, verify on hardware; laser eye safety (IEC 60825-1), "
+            "high-voltage bias\nand ESD apply on the bench. Full text: `photorx report` or "
+            "the Markdown/HTML export.")
 
 
 def cautions_text() -> str:

@@ -125,16 +125,31 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
     f = np.asarray(f, dtype=float)
     items = list(densities.items())
     powers = [np.asarray(v, dtype=float) ** 2 for _, v in items]
-    a.stackplot(f, *powers, labels=[str(k) for k, _ in items], alpha=0.85)
+    # Show the powers in (prefix unit)^2/Hz, e.g. nV^2/Hz: an engineering prefix on a
+    # squared unit would be misread ("800 a" for 800 aV^2/Hz = 800e-18 V^2/Hz).
+    prefix, scale = _squared_prefix(np.sum(powers, axis=0) if powers else np.zeros(1))
+    a.stackplot(f, *[p / scale for p in powers], labels=[str(k) for k, _ in items], alpha=0.85)
     a.set_xscale("log")
     a.set_xlabel("frequency")
-    a.set_ylabel(f"noise power density [{unit}^2/Hz]")
+    a.set_ylabel(f"noise power density [{prefix}{unit}$^2$/Hz]")
     _eng(a.xaxis, "Hz")
-    _eng(a.yaxis, "")
     a.legend(loc="upper left", fontsize="small")
     a.set_title(title)
     a.grid(True, which="both", alpha=0.3)
     return fig
+
+
+def _squared_prefix(total) -> tuple:
+    """(prefix, scale) so that ``total / scale`` is in (prefix unit)^2 with values 1..1e6."""
+    from ..units import _PREFIXES
+
+    total = np.asarray(total, dtype=float)
+    finite = total[np.isfinite(total) & (total > 0)]
+    if not finite.size:
+        return "", 1.0
+    exp3 = int(np.floor(np.log10(np.sqrt(finite.max())) / 3) * 3)
+    exp3 = max(min(exp3, 15), -18)
+    return _PREFIXES[exp3], 10.0 ** (2 * exp3)
 
 
 def plot_curve(x, y, ax=None, xlabel="", ylabel="", xunit="", yunit="", mark=None,

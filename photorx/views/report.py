@@ -38,11 +38,14 @@ def _step_response(rx, net, n: int = 800):
     return rx.tia.step_response(net, n=n)
 
 
-def _bias_grid(rx, n: int) -> np.ndarray:
-    """Bias axis of the trade-off plots: 0 V to the bias limit (or twice the operating bias)."""
+def _bias_grid(rx, n: int, breakdown: float = np.inf) -> np.ndarray:
+    """Bias axis of the trade-off plots: 0 V to the bias limit (or twice the operating bias),
+    stopping at 95 % of the breakdown estimate ``breakdown`` [V] (the models end there)."""
     v0 = _scalar(rx.reverse_bias)
     limit = getattr(rx, "max_bias", None)
     top = _scalar(limit) if limit is not None else max(2.0 * v0, 10.0)
+    if np.isfinite(breakdown) and breakdown > 0:
+        top = min(top, 0.95 * breakdown)
     return np.linspace(0.0, max(top, v0), n)
 
 
@@ -89,7 +92,7 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
     result = rx.evaluate()
     f = _frequency_grid(result)
     net = _network(rx)
-    bias = _bias_grid(rx, bias_points)
+    bias = _bias_grid(rx, bias_points, _scalar(getattr(result, "breakdown_voltage", np.inf)))
     v0 = _scalar(rx.reverse_bias)
     frame = sweep(rx, reverse_bias=bias)
 

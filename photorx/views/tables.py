@@ -39,7 +39,7 @@ import pandas as pd
 from ..errors import DesignError
 from ..units import format_eng
 from ._files import atomic_write_text
-from .cautions import cautions_html, cautions_markdown
+from .cautions import CAUTIONS, cautions_html, cautions_markdown, cautions_short, cautions_text
 
 __all__ = ["Budget", "EXPORT_FORMATS"]
 
@@ -80,9 +80,12 @@ def display_value(value, unit="", digits: int = 3) -> str:
     if isinstance(value, (bool, np.bool_)):
         return "yes" if value else "no"
     if _is_number(value):
-        if math.isnan(float(value)):
+        v = float(value)
+        if math.isnan(v):
             return "n/a"
-        return format_eng(float(value), unit, digits)
+        if unit == "%" and 0 < abs(v) < 0.01:
+            return "< 0.01 %"  # "5.51e-09 %" of a noise share reads as noise itself
+        return format_eng(v, unit, digits)
     text = str(value)
     return f"{text} {unit}".strip() if unit else text
 
@@ -112,6 +115,9 @@ class Budget:
     quantity    value
     ----------  -------
     bandwidth   1.2 GHz
+    <BLANKLINE>
+    Cautions: model estimates, verify on hardware; laser eye safety (IEC 60825-1), high-voltage bias
+    and ESD apply on the bench. Full text: `photorx report` or the Markdown/HTML export.
     """
 
     def __init__(self, tables, title: str = "Receiver budget", notes=()):
@@ -169,7 +175,13 @@ class Budget:
             out += [name, "-" * len(name),
                     tabulate(shown.values.tolist(), headers=list(shown.columns),
                              tablefmt="simple", disable_numparse=True), ""]
-        out += [f"Note: {n}" for n in self.notes]
+        import textwrap
+
+        for n in self.notes:  # wrapped for an ordinary terminal
+            out += textwrap.wrap(f"Note: {n}", width=100, subsequent_indent="      ")
+        if self.notes:
+            out.append("")
+        out.append(cautions_short())
         return "\n".join(out).rstrip() + "\n"
 
     def _html_tables(self, level: int) -> str:
@@ -183,8 +195,9 @@ class Budget:
         return "\n".join(parts) + "\n"
 
     def _repr_html_(self) -> str:
+        short = html.escape(" ".join(cautions_short().split()))
         return (f'<div class="photorx-budget"><h3>{html.escape(self.title)}</h3>\n'
-                + self._html_tables(4) + "</div>")
+                + self._html_tables(4) + f"<p><small>{short}</small></p></div>")
 
     # -- exports -----------------------------------------------------------------------------
     def to_csv(self, path=None):
@@ -198,7 +211,7 @@ class Budget:
         return _emit(text, path)
 
     def to_json(self, path=None):
-        """JSON: ``{"title", "notes", "tables": {name: [row, ...]}}`` with SI floats.
+        """JSON: ``{"title", "notes", "tables": {name: [row, ...]}, "cautions"}`` with SI floats.
 
         Units of wide tables' columns (``attrs["units"]``) go under ``"column_units"``.
 
@@ -219,6 +232,7 @@ class Budget:
         doc = {"title": self.title, "notes": list(self.notes), "tables": tables}
         if units:
             doc["column_units"] = units
+        doc["cautions"] = list(CAUTIONS)
         text = json.dumps(doc, indent=2, allow_nan=False, ensure_ascii=False) + "\n"
         return _emit(text, path)
 
@@ -248,7 +262,8 @@ class Budget:
             out += [" & ".join(_latex_escape(c) for c in row) + r" \\"
                     for row in shown.values.tolist()]
             out += [r"\bottomrule", r"\end{tabular}", r"\end{table}", ""]
-        return _emit("\n".join(out), path)
+        out += [f"% {line}" for line in cautions_text().splitlines()]
+        return _emit("\n".join(out) + "\n", path)
 
     def to_html(self, path=None, cautions: bool = True):
         """A standalone HTML page with the tables, the notes and the cautions."""
@@ -313,11 +328,22 @@ def _display_cells(table: pd.DataFrame) -> list:
     if "value" not in table.columns:
         return [""] * n
     units = table["unit"] if "unit" in table.columns else [""] * n
-    cells = [display_value(v, u) for v, u in zip(table["value"].tolist(), list(units))]
+    names = table["quantity"].tolist() if "quantity" in table.columns else [""] * n
+    cells = [_wavelength_text(v) if u == "m" and "wavelength" in str(q) and _is_number(v)
+             else display_value(v, u)
+             for v, u, q in zip(table["value"].tolist(), list(units), names)]
     if "display" in table.columns:
         cells = [d if isinstance(d, str) and d else c
                  for d, c in zip(table["display"].tolist(), cells)]
     return cells
+
+
+def _wavelength_text(value) -> str:
+    """Optical wavelengths in nm, as the trade writes them ("1310 nm", not "1.31 um")."""
+    v = float(value)
+    if not math.isfinite(v) or not 1e-8 <= v < 1e-4:
+        return display_value(v, "m")
+    return f"{v * 1e9:.4g} nm"
 
 
 def _display_frame(table: pd.DataFrame) -> pd.DataFrame:

@@ -19,13 +19,14 @@ from __future__ import annotations
 
 import html
 import io
+import re
 import time
 import warnings
 
 import numpy as np
 
 from ..errors import DesignError, PhotorxWarning
-from ..units import format_eng
+from ..units import _PREFIXES, format_eng
 
 __all__ = ["Panel", "log_slider", "lin_slider", "frame_html", "rows_html"]
 
@@ -40,9 +41,25 @@ def _widgets():
     return ipywidgets
 
 
-def log_slider(description, value, low, high, step=0.02, readout=".3g"):
-    """A logarithmic slider between ``low`` and ``high`` (display units) starting at ``value``."""
+#: Units whose slider readout takes an SI prefix ("60.0f" next to "Cf [F]", not "6e-14").
+_PREFIX_UNITS = frozenset({"F", "ohm", "Hz", "W", "A", "s", "V"})
+
+
+def _readout(description: str) -> str:
+    """d3 readout format: SI prefixes for prefixable units in ``[...]``, else 3 digits."""
+    unit = description[description.rfind("[") + 1:description.rfind("]")] \
+        if "[" in description else ""
+    return ".3s" if unit in _PREFIX_UNITS else ".3g"
+
+
+def log_slider(description, value, low, high, step=0.02, readout=None):
+    """A logarithmic slider between ``low`` and ``high`` (display units) starting at ``value``.
+
+    The readout shows an SI prefix when the unit in the description takes one
+    (``"Cf [F]"`` reads ``60.0f``), otherwise three significant digits.
+    """
     w = _widgets()
+    readout = readout or _readout(description)
     value = float(np.clip(value, low, high))
     return w.FloatLogSlider(value=value, base=10, min=np.log10(low), max=np.log10(high),
                             step=step, description=description, readout_format=readout,
@@ -50,8 +67,9 @@ def log_slider(description, value, low, high, step=0.02, readout=".3g"):
                             layout=w.Layout(width="340px"))
 
 
-def lin_slider(description, value, low, high, step, readout=".3g"):
-    """A linear slider in display units."""
+def lin_slider(description, value, low, high, step, readout=".4"):
+    """A linear slider in display units (readout: 4 significant digits, zeros trimmed, so
+    a wavelength reads 1310 rather than 1.31e+3)."""
     w = _widgets()
     value = float(np.clip(value, low, high))
     return w.FloatSlider(value=value, min=low, max=high, step=step, description=description,
@@ -86,6 +104,90 @@ def frame_html(frame, units=None, digits=4) -> str:
         if shown[col].dtype.kind in "fi":
             shown[col] = [format_eng(float(v), unit or "", digits) for v in shown[col]]
     return shown.to_html(escape=True, border=0)
+
+
+_LABEL_UNIT = re.compile(r"^(.*?)\s*\[([^\[\]]+)\]\s*$")
+_SQUARED_DENSITY = re.compile(r"^([AV])\^2/Hz$")
+
+
+def _engineering_axes(figure):
+    """Tick labels with engineering prefixes on every axis labelled with an SI unit.
+
+    An axis labelled ``"capacitance [F]"`` gets ticks like ``400 fF`` and the label
+    ``"capacitance"``; ``"noise [V^2/Hz]"`` is shown in ``nV^2/Hz`` (a prefix on a squared
+    unit would be misread). Labels in display units (``[um]``, ``[cm^-3]``, ``[dB]``) keep
+    matplotlib's formatting. Axes are re-examined on each render, since a panel may change
+    a label or a scale; the label the panel set is remembered on the axis.
+    """
+    from matplotlib.ticker import EngFormatter, FuncFormatter, LogLocator
+
+    for ax in figure.axes:
+        for axis, scale in ((ax.xaxis, ax.get_xscale()), (ax.yaxis, ax.get_yscale())):
+            label = axis.get_label_text()
+            if label != getattr(axis, "_photorx_shown", None):
+                axis._photorx_label = label  # the panel set (or reset) this label
+            match = _LABEL_UNIT.match(axis._photorx_label)
+            unit = match.group(2) if match else ""
+            squared = _SQUARED_DENSITY.match(unit)
+            ours = getattr(axis.get_major_formatter(), "_photorx", False)
+            if unit in _PREFIX_UNITS | {"C"}:
+                major = EngFormatter(unit=unit, sep=" ")
+                minor = _MinorEng(unit) if scale == "log" else None
+                shown = match.group(1)
+            elif squared and scale == "linear":
+                low, high = axis.get_view_interval()
+                exp3 = _squared_exponent(max(abs(low), abs(high)))
+                major = FuncFormatter(lambda x, pos, k=10.0 ** (2 * exp3): f"{x / k:g}")
+                minor = None
+                shown = (f"{match.group(1)} [{_PREFIXES[exp3]}{squared.group(1)}$^2$/Hz]")
+            else:
+                if ours:  # the label's unit changed to one shown as is: undo ours
+                    default = axis.get_major_formatter()._photorx_default
+                    axis.set_major_formatter(default[0])
+                    axis.set_minor_formatter(default[1])
+                axis._photorx_shown = label
+                continue
+            # matplotlib's own formatters, restored if the label later loses its SI unit
+            default = (axis.get_major_formatter()._photorx_default if ours else
+                       (axis.get_major_formatter(), axis.get_minor_formatter()))
+            major._photorx = True
+            major._photorx_default = default
+            if not ours and scale == "log" and axis is ax.xaxis:
+                # "100 kHz" is wider than "10^5": label every other decade when crowded
+                axis.set_major_locator(LogLocator(base=10.0, numticks=6))
+            axis.set_major_formatter(major)
+            if minor is not None:
+                axis.set_minor_formatter(minor)
+            elif scale == "linear":
+                axis.set_minor_formatter(default[1])
+            axis.set_label_text(shown)
+            axis._photorx_shown = shown
+
+
+def _squared_exponent(vmax: float) -> int:
+    """Power of ten (multiple of 3) of the amplitude unit for a squared density."""
+    if not np.isfinite(vmax) or vmax <= 0:
+        return 0
+    return int(max(min(np.floor(np.log10(np.sqrt(vmax)) / 3) * 3, 15), -18))
+
+
+def _minor_eng_class():
+    from matplotlib.ticker import EngFormatter
+
+    class MinorEng(EngFormatter):
+        """Minor log ticks labelled only when the axis spans under 2.5 decades."""
+
+        def __call__(self, x, pos=None):
+            low, high = sorted(self.axis.get_view_interval())
+            if low <= 0 or np.log10(high / low) >= 2.5:
+                return ""
+            return super().__call__(x, pos)
+
+    return MinorEng
+
+
+def _MinorEng(unit):
+    return _minor_eng_class()(unit=unit, sep=" ")
 
 
 class Panel:
@@ -258,6 +360,7 @@ class Panel:
         from matplotlib.ticker import LogLocator
 
         start = time.perf_counter()
+        _engineering_axes(self.figure)
         if not self._laid_out:  # lay out once, with data in the axes; later draws keep it
             try:
                 self.figure.tight_layout()

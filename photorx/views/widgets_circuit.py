@@ -83,7 +83,7 @@ class LoopPanel(Panel):
         cf = max(float(rx.tia.cf), _CF_MIN)
         self.controls = {
             "rf": log_slider("Rf [ohm]", float(rx.tia.rf), 10.0, 1e10),
-            "cf": log_slider("Cf [F] (1e-16 = none)", cf, _CF_MIN, 1e-8),
+            "cf": log_slider("Cf [F] (lowest = none)", cf, _CF_MIN, 1e-8),
             "gbw": log_slider("amplifier GBW [Hz]", float(rx.tia.amp.gbw), 1e4, 1e11),
             "bias": lin_slider("reverse bias [V]", bias, 0.0, max(span, 2 * bias, 1.0),
                                max(span, 1.0) / 200),

@@ -264,7 +264,7 @@ def _check_input_noise(d, rx, bias):
 
 def _check_nep(d, rx, bias):
     r = rx.evaluate()
-    return [("NEP", "W/rtHz", d.lambdify("nep_density")(S_i=r.input_noise_density ** 2,
+    return [("NEP", "W/rtHz", d.lambdify("nep_density")(S_i=r.noise_floor_density ** 2,
                                                          eta=r.quantum_efficiency,
                                                          lambda_0=r.wavelength), r.nep)]
 

@@ -550,3 +550,28 @@ def test_chain_enbw_is_the_filter_enbw_when_the_tia_is_fast(kind, order, factor)
     assert enbw / 1e6 == pytest.approx(factor, abs=6e-4)
     brick = chain_enbw(**p, filter_kind="brickwall", filter_order=1, filter_cutoff=1e6)
     assert brick == pytest.approx(1e6, rel=1e-4)
+
+
+def test_white_noise_is_finite_at_zero_hertz():
+    # Without 1/f corners every density is white at low frequency (Nyquist 4kT/R, Schottky
+    # 2qI, flat amplifier densities; common practice), so the PSD at 0 Hz is the limit of the
+    # PSD as f -> 0 (rtol 1e-9 against 1 mHz), not NaN from 0 * (1/0).
+    p = {**DESIGN_A, "temperature": 300.0}
+    with np.errstate(all="raise"):
+        at0 = output_noise_psd(np.array([0.0]), **p)
+        near = output_noise_psd(np.array([1e-3]), **p)
+    for name in at0:
+        np.testing.assert_allclose(at0[name], near[name], rtol=1e-9, err_msg=name)
+    assert np.isinf(output_noise_psd(0.0, **{**p, "en_corner": 1e3})["amp_voltage"])
+
+
+def test_spectral_nep_is_the_floor_without_signal_shot_noise(spectrum):
+    # NEP = (input density at vanishing signal) / R (Hobbs, Building Electro-Optical Systems,
+    # 2nd ed., 2009, sec. 3.4): the same stage with the signal removed gives the same NEP
+    # (rtol 1e-12), while the total input density does include the signal's 2 q I shot noise.
+    f, r = np.array([1e3, 1e6]), 0.8
+    p = dict(spectrum.params)
+    p["i_shot"] = {"dark": p["i_shot"]["dark"]}  # no signal photocurrent
+    dark_only = NoiseSpectrum(params=p, post_filter=spectrum.post_filter)
+    np.testing.assert_allclose(spectrum.nep(f, r), dark_only.input_density(f) / r, rtol=1e-12)
+    assert np.all(spectrum.input_density(f) > dark_only.input_density(f))

@@ -131,7 +131,7 @@ def test_transit_time_of_punched_through_pin_falls_with_bias(rx):
     """A fully depleted i layer keeps its width; the higher field only speeds the carriers."""
     import dataclasses
 
-    assert rx.photodiode.junction.punch_through_voltage() < 0
+    assert rx.photodiode.junction.punch_through_voltage() < 1.0  # both biases below are above it
     r = dataclasses.replace(rx, reverse_bias=np.array([1.0, 10.0])).evaluate()
     np.testing.assert_allclose(r.depletion_width[0], r.depletion_width[1], rtol=1e-3)
     assert r.transit_time[1] < r.transit_time[0]
@@ -187,3 +187,111 @@ def test_datasheet_photodiode_receiver(rx):
     np.testing.assert_allclose(r.bandwidth, r.loop_bandwidth, rtol=1e-9)  # H_pd = 1
     np.testing.assert_allclose(r.responsivity, 0.6, rtol=1e-12)
     np.testing.assert_allclose(r.dark_current, 1e-9, rtol=1e-6)
+
+
+@pytest.mark.parametrize("cutoff", [100.0, 3e3])
+def test_chain_bandwidth_with_a_slow_post_filter(rx, cutoff):
+    """A post filter far below the loop sets the chain bandwidth (the loop's ~hundreds of MHz
+    are flat there), so the chain -3 dB point is the filter's own: for a Butterworth filter
+    normalised to -3 dB at its cutoff, |H(j f_c)| = 1/sqrt(2) (definition; Motchenbacher and
+    Connelly, Low-Noise Electronic System Design, 1993, ch. 1). Before the fix the search
+    window was tied to the loop bandwidth and the edge of that window (1e-4 x the loop
+    bandwidth) was reported instead. rel 1 %: the photodiode's slow diffusion tail still takes
+    a little; the composed response is checked exactly (rtol 1e-6)."""
+    import dataclasses
+
+    rxf = dataclasses.replace(rx, post_filter=prx.PostFilter("butterworth", 2, cutoff))
+    r = rxf.evaluate()
+    assert r.loop_bandwidth > 1e4 * cutoff  # below the old window (1e-4 x loop bandwidth)
+    assert r.bandwidth == pytest.approx(cutoff, rel=1e-2)
+    assert r.limited_by == "post filter"
+    pd, net = rxf.photodiode_at_temperature(), rxf.equivalent_circuit()
+
+    def mag(f):
+        return abs(pd.intrinsic_response(f, 5.0, 850e-9) * rxf.tia.transimpedance(f, net)
+                   * rxf.post_filter.response(f))
+
+    assert mag(r.bandwidth) == pytest.approx(mag(1e-3 * cutoff) / np.sqrt(2), rel=1e-6)
+
+
+def test_nep_and_floor_exclude_the_signal_shot_noise(rx):
+    """NEP and the minimum detectable power are defined at vanishing signal (the power giving
+    SNR = 1 in 1 Hz / in the noise bandwidth: Hobbs, Building Electro-Optical Systems, 2nd ed.,
+    2009, sec. 3.4; Agrawal, Fiber-Optic Communication Systems, 4th ed., 2010, sec. 4.4), so the
+    shot noise of the operating-point photocurrent must not enter them: they must not change
+    with the optical power, and at zero power the floor is the whole input noise."""
+    import dataclasses
+
+    powers = np.array([0.0, 10e-6, 1e-3])
+    r = dataclasses.replace(rx, optical_power=powers).evaluate()
+    # noise floor = input noise without the signal's shot noise (uncorrelated powers add)
+    np.testing.assert_allclose(r.noise_floor_rms ** 2,
+                               r.input_noise_rms ** 2 - r.noise_by_source["shot_signal"] ** 2,
+                               rtol=1e-9)
+    np.testing.assert_allclose(r.noise_floor_rms[0], r.input_noise_rms[0], rtol=1e-12)
+    # the signal's shot noise does grow with power (2 q R P B: 100x power -> 10x rms) ...
+    assert r.input_noise_rms[2] > 2 * r.input_noise_rms[1]
+    # ... but NEP, P_min and the dynamic range do not (rtol: integration tolerance 1e-4)
+    for name in ("nep", "min_detectable_power", "dynamic_range_db", "noise_floor_rms"):
+        np.testing.assert_allclose(r.values[name], r.values[name][0], rtol=2e-4, err_msg=name)
+    np.testing.assert_allclose(r.nep, r.noise_floor_rms / np.sqrt(r.noise_bandwidth) / r.responsivity,
+                               rtol=1e-12)
+
+
+def test_diffusion_limited_photodiode_bandwidth_far_below_transit(rx):
+    """A 1 um i layer in silicon at 850 nm (absorption length ~18 um, Green 2008, from memory)
+    collects most carriers by slow diffusion from the undepleted layers, so the diode's -3 dB
+    point sits ~1e-5 of its transit bandwidth. It must be the first fall of the diode's own
+    intrinsic response below 1/sqrt(2) (definition, rtol 1e-6), not the edge of a search
+    window tied to the transit bandwidth (before the fix: 1e-4 x transit, 10x too high)."""
+    import dataclasses
+
+    si = prx.material("Si")
+    j = prx.PinJunction(si, i_thickness=1 * um, i_doping=1e13 * per_cm3, area=(0.2 * mm) ** 2,
+                        p_doping=1e19 * per_cm3, n_doping=1e19 * per_cm3)
+    pd = prx.Photodiode(junction=j, lifetime=1e-5)
+    r = dataclasses.replace(rx, photodiode=pd).evaluate()
+    assert r.photodiode_bandwidth < 1e-4 * r.transit_bandwidth
+    h = abs(pd.intrinsic_response(r.photodiode_bandwidth, 5.0, 850e-9))
+    assert h == pytest.approx(1 / np.sqrt(2), rel=1e-6)
+    f = np.geomspace(1.0, r.photodiode_bandwidth, 400)[:-1]
+    assert np.all(np.abs(pd.intrinsic_response(f, 5.0, 850e-9)) > 1 / np.sqrt(2))  # first fall
+    assert r.limited_by == "photodiode diffusion tail"
+
+
+def test_forward_bias_counts_the_shot_noise_of_the_dark_current_magnitude(rx):
+    """Reverse bias may be negative (forward bias). The dark current then flows forward and is
+    negative, but its shot noise is 2 q |I| (Schottky 1918; common practice), as the
+    photodiode's own equivalent circuit counts it (current = |I_dark| + R (P + P_bg)). Before
+    the fix the receiver fed the signed current to the noise and sensitivity stages: a
+    negative noise power, a NaN rms and a DesignError about an internal dark_current."""
+    import dataclasses
+    import warnings
+
+    fwd = dataclasses.replace(rx, reverse_bias=np.array([-0.3, 0.0, 0.5]))
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", RuntimeWarning)
+        r = fwd.evaluate()
+    assert r.dark_current[0] < 0
+    i_abs = np.abs(r.dark_current)
+    # the device's shot-noise current is |I_dark| + signal + background photocurrent
+    np.testing.assert_allclose(fwd.equivalent_circuit().current,
+                               i_abs + r.photocurrent + r.background_current, rtol=1e-12)
+    # the dark shot-noise source scales as sqrt(|I_dark|) through the same response
+    # (2 q |I| |Zt|^2 integrated; the loop barely changes with these biases: rtol 2 %)
+    ratio = r.noise_by_source["shot_dark"][0] / r.noise_by_source["shot_dark"][2]
+    assert ratio == pytest.approx(np.sqrt(i_abs[0] / i_abs[2]), rel=0.02)
+    assert np.all(np.isfinite(r.nep)) and np.all(np.isfinite(r.sensitivity))
+    # and it matches the noise stage run on the same point (rtol: integration tolerance)
+    one = dataclasses.replace(rx, reverse_bias=-0.3)
+    np.testing.assert_allclose(one.noise().input_rms(one.noise_band_low, np.inf),
+                               r.input_noise_rms[0], rtol=1e-3)
+
+
+def test_bias_beyond_breakdown_names_reverse_bias(rx_abrupt):
+    import dataclasses
+
+    vb = rx_abrupt.photodiode.junction.breakdown_voltage()
+    with pytest.raises(prx.DesignError, match="reverse_bias = .*breakdown") as info:
+        dataclasses.replace(rx_abrupt, reverse_bias=1.2 * vb).evaluate()
+    assert info.value.parameter == "reverse_bias"

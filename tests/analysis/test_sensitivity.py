@@ -137,6 +137,9 @@ def test_dynamic_range():
         (lambda: required_average_power(6.0, 0.9, 1e-7, -1.0), "noise_bandwidth"),
         (lambda: dynamic_range(-2.0, 1e4, 1e-8), "output_swing"),
         (lambda: ber_from_q(np.nan), "q_value"),
+        # Q of noiseless levels or of a NaN level is undefined: an error, not inf/NaN
+        (lambda: q_factor(1e-6, 0.0, 0.0, 0.0), "sigma_one"),
+        (lambda: q_factor(np.nan, 0.0, 1e-7, 1e-7), "i_one"),
     ],
 )
 def test_bad_inputs_name_the_parameter(call, name):

@@ -84,3 +84,14 @@ def test_optimization_result_plots_its_trade_curve(rx):
     # the plotted data are the trade curve's own numbers
     np.testing.assert_allclose(lines[0].get_xdata(), res.trade_curve.reverse_bias, rtol=0)
     np.testing.assert_allclose(lines[0].get_ydata(), res.trade_curve.input_noise_rms, rtol=0)
+
+
+@pytest.mark.parametrize("kwargs, name", [
+    (dict(constraints={"limited_by": (">=", 1.0)}), "limited_by"),
+    (dict(objective="max:dominant_noise_source"), "dominant_noise_source"),
+])
+def test_optimize_rejects_label_figures(rx, kwargs, name):
+    # A text figure has no order: a DesignError naming it, not a ValueError from pandas.
+    with pytest.raises(prx.DesignError, match=name) as info:
+        prx.optimize(rx, vary={"reverse_bias": (1.0, 5.0)}, grid_points=5, trade_points=3, **kwargs)
+    assert info.value.parameter == name

@@ -75,3 +75,17 @@ def test_tia_bad_input():
         Tia(OpAmp(), rf=1e4, cf=-1e-12)
     with pytest.raises(DesignError, match="amp"):
         Tia("amplifier", rf=1e4)
+
+
+def test_noise_densities_with_and_without_a_flicker_corner():
+    # e_n(f) = e_w sqrt(1 + f_c/f) (Motchenbacher and Connelly, Low-Noise Electronic System
+    # Design, 1993, ch. 1): sqrt(2) e_w at the corner, sqrt(101) e_w two decades below it
+    # (f_c/f = 100); with f_c = 0 it is e_w at every frequency, 0 Hz included (no NaN
+    # from 0/0 there); with a corner it diverges at 0 Hz. rtol 1e-12.
+    amp = OpAmp(voltage_noise=4e-9, voltage_noise_corner=1e3, current_noise=2e-15)
+    np.testing.assert_allclose(amp.voltage_noise_density([10.0, 1e3, 1e9]),
+                               4e-9 * np.sqrt([101.0, 2.0, 1.0 + 1e-6]), rtol=1e-12)
+    assert np.isinf(amp.voltage_noise_density(0.0))
+    with np.errstate(all="raise"):
+        np.testing.assert_allclose(amp.current_noise_density(np.array([0.0, 1.0])), 2e-15,
+                                   rtol=1e-12)

@@ -149,6 +149,11 @@ def test_default_lifetimes():
     (lambda: dk.leakage_current(1.0, 0.0), "resistance"),
     (lambda: dk.zero_bias_resistance(1e-12, 0.0, leakage_resistance=-5.0), "leakage_resistance"),
     (lambda: dk.diffusivity(0.1, temperature=-3.0), "temperature"),
+    # a NaN/inf bias came back as NaN silently before
+    (lambda: dk.diffusion_current(np.nan, 1e-12), "v_r"),
+    (lambda: dk.generation_current(np.array([1.0, np.inf]), 1e-6, 1e16, 1e-6, 1e-6), "v_r"),
+    (lambda: dk.generation_conductance(np.nan, 1e-6, 1e16, 1e-6, 0.0, 1e-6), "v_r"),
+    (lambda: dk.leakage_current(np.nan, 1e9), "v_r"),
 ])
 def test_bad_inputs_name_parameter(call, name):
     with pytest.raises(DesignError) as err:

@@ -214,3 +214,16 @@ def test_bad_inputs_name_parameter(call, name):
     with pytest.raises(DesignError, match=name) as err:
         call()
     assert err.value.parameter == name
+
+
+def test_out_of_table_message_states_the_range_at_that_temperature():
+    # With the rigid band-gap shift the accepted wavelengths move with temperature; the
+    # message used to quote the 300 K range (300-1200 nm) while rejecting 305 nm at 600 K.
+    # Short end at T: lambda = h c / (h c / 300 nm + Eg(T) - Eg(300 K)) (scipy.constants).
+    si = prx.material("Si")
+    e300 = sc.h * sc.c / (sc.e * 300e-9)
+    lo = sc.h * sc.c / (sc.e * (e300 + si.band_gap(600.0) - si.band_gap(300.0)))
+    with pytest.raises(DesignError, match=f"{lo * 1e9:.0f} to .* nm") as err:
+        optics.absorption_coefficient(0.999 * lo, si, 600.0)
+    assert err.value.parameter == "wavelength"
+    assert optics.absorption_coefficient(1.001 * lo, si, 600.0) > 0

@@ -303,3 +303,90 @@ def test_parametric_junction_needs_responsivity():
     with pytest.raises(DesignError) as err:
         Photodiode(junction="not a junction")
     assert err.value.parameter == "junction"
+
+
+# --- review fixes: derivatives at the bias limits, forward bias of fitted diodes ----------
+def test_shunt_resistance_defined_up_to_the_breakdown_estimate(si_pin):
+    # Every bias the junction accepts (up to breakdown_voltage()) must give a finite R_sh and
+    # an equivalent circuit; the finite-difference step used to step past breakdown and
+    # raise. R_sh = (dI/dv_r)^-1 by a backward difference of dark_current there; rtol 1e-3.
+    vb = si_pin.junction.breakdown_voltage()
+    v = np.array([vb - 1.0, vb - 1e-6, vb])
+    r = si_pin.shunt_resistance(v)
+    assert np.all(np.isfinite(r)) and np.all(r > 0)
+    h = 1e-3
+    slope = (si_pin.dark_current(vb - 1.0) - si_pin.dark_current(vb - 1.0 - h)) / h
+    assert r[0] == pytest.approx(1 / slope, rel=1e-3)
+    assert si_pin.equivalent_circuit(vb).shunt_resistance == pytest.approx(r[2], rel=1e-12)
+    fitted = dataclasses.replace(si_pin, reference_dark_current=1e-9, reference_bias=5.0)
+    assert np.isfinite(fitted.shunt_resistance(vb)) and fitted.shunt_resistance(vb) > 0
+
+
+def test_fitted_dark_current_refuses_forward_bias_beyond_the_junction_potential():
+    # The fitted recombination term grows as e^{V/2V_T}: at 40 V forward it overflowed to inf
+    # (then a confusing i_forward error from the diffusion capacitance). Like the physical
+    # junctions (-0.9 Vbi), bias at or beyond -0.9 Vj is a DesignError naming v_r.
+    pd = Photodiode.from_datasheet(responsivity=0.5, capacitance=(2e-12, 1e-12),
+                                   capacitance_bias=(0.0, 5.0), dark_current=1e-9,
+                                   dark_current_bias=5.0, shunt_resistance=1e9)
+    vj = pd.junction.vj
+    for call in (pd.dark_current, pd.shunt_resistance, pd.capacitance, pd.equivalent_circuit,
+                 pd.dark_current_components):
+        for bad in (-40.0, -0.9 * vj, np.array([0.0, -1.0])):
+            with pytest.raises(DesignError, match="v_r") as err:
+                call(bad)
+            assert err.value.parameter == "v_r"
+    ok = pd.dark_current(np.array([-0.5 * vj, 0.0, 5.0]))
+    assert np.all(np.isfinite(ok)) and ok[0] < 0 and ok[2] > 0
+    # without a fitted dark current the parametric diode keeps accepting any bias
+    plain = Photodiode.from_datasheet(responsivity=0.5, cj0=1e-12, vj=0.7, m=0.5)
+    assert np.isfinite(plain.capacitance(-2.0)) and plain.dark_current(-2.0) == 0.0
+
+
+def test_lifetimes_leakage_and_bandwidth_may_be_arrays(si_pin):
+    # One value per design point (param[..., None] against a bias grid), as every other
+    # geometry/parasitic field; these raised a bare TypeError (float() of an array) before.
+    # Each row must equal the scalar design (rtol 1e-12).
+    cases = [("lifetime", [1e-7, 1e-5]), ("generation_lifetime", [1e-5, 1e-3]),
+             ("leakage_resistance", [1e9, np.inf]), ("intrinsic_bandwidth", [1e8, 1e9]),
+             ("top_diffusion_length", [0.2e-6, 2e-6])]
+    v = np.array([0.0, 2.0, 10.0])
+    for name, values in cases:
+        arr = dataclasses.replace(si_pin, **{name: np.array(values)[:, None]})
+        got = np.broadcast_to(arr.dark_current(v), (2, 3))
+        tau = np.broadcast_to(arr.diffusion_time_constant(850e-9, v), (2, 3))
+        for i, val in enumerate(values):
+            one = dataclasses.replace(si_pin, **{name: val})
+            np.testing.assert_allclose(got[i], one.dark_current(v), rtol=1e-12)
+            np.testing.assert_allclose(tau[i], one.diffusion_time_constant(850e-9, v),
+                                       rtol=1e-12)
+    with pytest.raises(DesignError) as err:
+        dataclasses.replace(si_pin, leakage_resistance=np.array([1e9, -1.0]))
+    assert err.value.parameter == "leakage_resistance"
+
+
+def test_datasheet_fit_numbers_must_be_scalars(si_pin):
+    # The dark-current fit is solved for one diode; arrays are a DesignError naming the
+    # parameter (they raised a bare TypeError before).
+    for kwargs, name in ((dict(reference_dark_current=np.array([1e-9, 2e-9]), reference_bias=5.0),
+                          "reference_dark_current"),
+                         (dict(reference_dark_current=1e-9, reference_bias=np.array([5.0, 6.0])),
+                          "reference_bias"),
+                         (dict(zero_bias_resistance=np.array([1e9, 2e9])), "zero_bias_resistance")):
+        with pytest.raises(DesignError) as err:
+            dataclasses.replace(si_pin, **kwargs)
+        assert err.value.parameter == name
+
+
+def test_absorber_thinner_than_depletion_layer_limits_absorption(ingaas_pin):
+    # Beer-Lambert (B. E. A. Saleh and M. C. Teich, Fundamentals of Photonics, 2nd ed.,
+    # 2007, sec. 18.1: eta = (1 - R)(1 - exp(-alpha d))): with no absorbing top layer and
+    # the whole absorber depleted, eta = (1 - R)(1 - e^{-alpha a}) for absorber thickness a,
+    # even when the depletion layer reaches further into transparent material. Before, a
+    # 0.5 um absorber gave the 2 um absorption (0.74 instead of 0.29). rtol 1e-12.
+    alpha = prx.device.optics.absorption_coefficient(1550e-9, "InGaAs")
+    assert ingaas_pin.junction.depletion_width(5.0) > 2 * um
+    for a in (0.5 * um, 1 * um, 2 * um):
+        pd = dataclasses.replace(ingaas_pin, absorber_thickness=a)
+        assert pd.quantum_efficiency(1550e-9, 5.0) == pytest.approx(
+            0.98 * -np.expm1(-alpha * a), rel=1e-12)

@@ -63,8 +63,10 @@ def test_noise_stack_stacks_powers():
     fig = plots.plot_noise_stack(f, dens)
     ax = fig.axes[0]
     top = ax.collections[-1].get_paths()[0].vertices[:, 1].max()
-    # uncorrelated sources add in power: (10 nV)^2 + (20 nV)^2 = 5e-16 V^2/Hz
-    assert top == pytest.approx(5e-16, rel=1e-9)
+    # uncorrelated sources add in power: (10 nV)^2 + (20 nV)^2 = 5e-16 V^2/Hz = 500 nV^2/Hz
+    # (common practice: the axis is labelled in nV^2/Hz, not with a prefix on V^2)
+    assert top == pytest.approx(500.0, rel=1e-9)
+    assert "nV$^2$/Hz" in ax.get_ylabel()
     assert ax.get_xscale() == "log"
 
 

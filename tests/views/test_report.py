@@ -94,3 +94,15 @@ def test_write_report_atomic(rx, tmp_path, monkeypatch):
     with pytest.raises(OSError):
         report.write_report(rx, target)
     assert list(tmp_path.iterdir()) == []
+
+
+def test_bias_limit_beyond_breakdown_still_reports(rx):
+    import dataclasses
+
+    vbr = float(rx.evaluate().breakdown_voltage)
+    high = dataclasses.replace(rx, max_bias=3.0 * vbr)  # a supply limit above breakdown
+    figures = report.report_figures(high, bias_points=7)
+    assert [t for t, uri, _ in figures if uri is None] == []
+    # the trade-off axis stops below the breakdown estimate, where the junction models end
+    bias = report._bias_grid(high, 7, vbr)
+    assert bias.max() == pytest.approx(0.95 * vbr, rel=1e-12) and bias.max() < vbr

@@ -43,6 +43,23 @@ def test_display_value():
     assert display_value(float("nan"), "Hz") == "n/a"
     assert display_value("transit") == "transit"
     assert display_value(None) == ""
+    # a vanishing noise share is shown as such, not as "5.51e-09 %"
+    assert display_value(5.51e-9, "%") == "< 0.01 %"
+    assert display_value(0.0, "%") == "0 %"
+    assert display_value(4.74, "%") == "4.74 %"
+
+
+def test_wavelength_shown_in_nm_and_cautions_in_text_and_latex():
+    t = pd.DataFrame({"quantity": ["wavelength", "depletion width"], "value": [1.31e-6, 2e-6],
+                      "unit": ["m", "m"]})
+    b = Budget({"operating point": t}, title="wl")
+    text = str(b)
+    assert "1310 nm" in text and "2 um" in text  # wavelengths as the trade writes them
+    assert "Cautions:" in text and "IEC 60825-1" in text
+    latex = b.to_latex()
+    assert "% Cautions" in latex and "IEC 60825-1" in latex
+    assert "IEC 60825-1" in b._repr_html_()  # the Jupyter display carries them too
+    assert json.loads(b.to_json())["tables"]["operating point"][0]["value"] == 1.31e-6
 
 
 def test_terminal_text_uses_engineering_units():
@@ -89,6 +106,7 @@ def test_json_parses_back(tmp_path):
     assert rows["shunt R"]["value"] is None and rows["shunt R"]["display"] == "inf ohm"
     assert doc["column_units"] == {"noise by source": {"output_rms": "V"}}
     assert doc["tables"]["operating point"][0]["display"] == "1e15 cm^-3"
+    assert any("IEC 60825-1" in c for c in doc["cautions"])
 
 
 class _Cells(HTMLParser):

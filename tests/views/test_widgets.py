@@ -472,3 +472,36 @@ def test_loop_panel_never_raises_and_flags_every_unstable_loop(data):
     stable = _LOOP.metrics.stable
     assert ("unstable" in _LOOP.message.value) == (not stable)
     assert (len(xdata(_LOOP.lines["step"])) > 0) == stable
+
+
+# ------------------------------------------------------------------------------ readability
+def test_axes_show_engineering_prefixes_and_follow_label_changes(rx, tmp_path):
+    from matplotlib.ticker import EngFormatter
+
+    loop = pw.loop_panel(rx)
+    step_axis = loop.axes["step"].xaxis
+    fmt = step_axis.get_major_formatter()
+    assert isinstance(fmt, EngFormatter) and fmt.unit == "s"
+    assert "[s]" not in step_axis.get_label_text()  # the unit is on the ticks: "500 ps"
+    assert fmt(5e-10) == "500 ps"
+    # noise power density in nV^2/Hz, not "1e-15" over the axis (common practice)
+    noise = pw.noise_panel(rx)
+    label = noise.axes["noise"].get_ylabel()
+    assert "nV$^2$/Hz" in label
+    top = ydata(noise.lines["total"]).max()
+    assert noise.axes["noise"].yaxis.get_major_formatter()(top) == f"{top / 1e-18:g}"
+    # a label whose unit takes no prefix gets matplotlib's formatter back
+    trade = pw.tradeoff_panel(rx, export_folder=tmp_path)
+    trade.controls["plot"].value = "capacitance"
+    assert isinstance(trade.axes["choice"].yaxis.get_major_formatter(), EngFormatter)
+    trade.controls["plot"].value = "snr_db"
+    assert not isinstance(trade.axes["choice"].yaxis.get_major_formatter(), EngFormatter)
+    assert "[dB]" in trade.axes["choice"].get_ylabel()
+
+
+def test_slider_readouts_use_si_prefixes():
+    from photorx.views.widgets_base import lin_slider, log_slider
+
+    assert log_slider("Cf [F]", 6e-14, 1e-16, 1e-8).readout_format == ".3s"  # "60.0f"
+    assert log_slider("doping [cm^-3]", 1e18, 1e14, 1e20).readout_format == ".3g"
+    assert lin_slider("wavelength [nm]", 1310, 800, 1700, 5).readout_format == ".4"
