@@ -15,6 +15,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..circuit.filters import filter_response
+from ..errors import DesignError
 from ..circuit.metrics import tia_figures
 from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
@@ -113,6 +114,24 @@ def _filter_kwargs(pf):
     return {} if pf is None else dict(filter_kind=pf.kind, filter_order=pf.order, filter_cutoff=pf.cutoff)
 
 
+def _no_photocurrent(pd_, wavelength, responsivity):
+    """A receiver without photocurrent has no figures: say which wavelength and why."""
+    wl = np.broadcast_to(np.asarray(wavelength, dtype=float), np.shape(responsivity))
+    bad = float(np.ravel(wl)[np.argmax(np.ravel(np.asarray(responsivity) <= 0))])
+    material = getattr(pd_, "material", None)
+    if material is not None:
+        temperature = float(np.max(np.asarray(pd_.temperature)))
+        edge = float(material.cutoff_wavelength(temperature))
+        why = (f"beyond the absorption edge of {material.name} ({edge * 1e9:.0f} nm at "
+               f"{temperature:.0f} K): the photodiode gives no photocurrent")
+        valid = f"< {edge * 1e9:.0f} nm"
+    else:
+        why = "where the photodiode's responsivity is zero"
+        valid = "wavelengths with a responsivity > 0"
+    return DesignError(f"wavelength = {bad * 1e9:.0f} nm is {why}; valid range: {valid}",
+                       parameter="wavelength")
+
+
 class _Point:
     """The operating point shared by every stage: photodiode numbers and the circuit."""
 
@@ -123,6 +142,8 @@ class _Point:
         self.amp = rx.tia.amp
         self.net = rx.equivalent_circuit()
         self.responsivity = np.asarray(self.pd.responsivity(rx.wavelength, self.v), dtype=float)
+        if np.any(self.responsivity <= 0):
+            raise _no_photocurrent(self.pd, rx.wavelength, self.responsivity)
         self.dark = np.asarray(self.pd.dark_current(self.v), dtype=float)
         # shot noise counts the magnitude of the diode current: in forward bias the dark
         # current is negative (it flows forward), and the photodiode's own equivalent circuit

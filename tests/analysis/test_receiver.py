@@ -295,3 +295,12 @@ def test_bias_beyond_breakdown_names_reverse_bias(rx_abrupt):
     with pytest.raises(prx.DesignError, match="reverse_bias = .*breakdown") as info:
         dataclasses.replace(rx_abrupt, reverse_bias=1.2 * vb).evaluate()
     assert info.value.parameter == "reverse_bias"
+
+
+def test_wavelength_beyond_the_absorption_edge_is_named(rx):
+    """Silicon does not absorb at 1550 nm (cutoff about 1.1 um; common practice)."""
+    import dataclasses
+
+    with pytest.raises(prx.DesignError, match=r"wavelength = 1550 nm .*absorption edge of Si") as info:
+        dataclasses.replace(rx, wavelength=1550e-9).evaluate()
+    assert info.value.parameter == "wavelength"
