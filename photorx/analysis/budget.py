@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import numpy as np
 import pandas as pd
 
 from ..errors import DesignError
@@ -43,27 +42,14 @@ def receiver_budget(rx, title: str | None = None):
             values[name] = "no limit set" if name != "bandwidth_for_bit_rate" else "no bit rate set"
     tables = {}
     for table in _TABLE_ORDER:
-        rows = [dict(quantity=desc, value=_plain(values[name]), unit=unit)
+        rows = [dict(quantity=desc, value=values[name], unit=unit)
                 for name, (unit, tab, desc) in FIGURES.items() if tab == table and name in values]
-        if table == "noise":
-            tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
-            tables["noise by source"] = _noise_table(rx)
-            continue
         tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
+        if table == "noise":
+            tables["noise by source"] = rx.noise().budget()
     notes = list(result.warnings)
     notes.append("Noise integrated over the closed-loop response (times the post filter) from "
                  f"{rx.noise_band_low:g} Hz to where the integral converges; input-referred values "
                  "divide by the DC transimpedance.")
     return Budget(tables, title=title or "Receiver budget", notes=notes)
 
-
-def _noise_table(rx) -> pd.DataFrame:
-    spectrum = rx.noise()
-    table = spectrum.budget()
-    return table
-
-
-def _plain(value):
-    if isinstance(value, (np.generic,)):
-        return value.item()
-    return value

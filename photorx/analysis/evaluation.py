@@ -19,7 +19,7 @@ from ..errors import DesignError
 from ..circuit.metrics import tia_figures
 from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
-from .noise import chain_enbw, integrated_output_noise
+from .noise import chain_enbw, integrated_output_noise, with_frequency_axis
 from .parameters import with_trailing_axis
 from .sensitivity import (analog_snr, dynamic_range, minimum_detectable_power,
                           noise_equivalent_power, q_from_ber, required_average_power)
@@ -104,12 +104,6 @@ def minus_3db_frequency(response, ref, scale, shape=None):
     return np.broadcast_to(bw, shape)
 
 
-def _expand(circuit):
-    """Give every circuit parameter a trailing frequency axis."""
-    return {k: (tuple(np.asarray(p, dtype=float)[..., None] for p in val) if k == "poles"
-                else np.asarray(val, dtype=float)[..., None]) for k, val in circuit.items()}
-
-
 def _filter_kwargs(pf):
     return {} if pf is None else dict(filter_kind=pf.kind, filter_order=pf.order, filter_cutoff=pf.cutoff)
 
@@ -152,7 +146,7 @@ class _Point:
         self.dark_shot = np.abs(self.dark)
         self.i_signal = self.responsivity * rx.optical_power
         self.i_background = self.responsivity * rx.background_power
-        self.circuit = rx._circuit(self.net)
+        self.circuit = rx.tia._args(self.net)
         self.loop = tia_figures(**self.circuit, output_swing=self.amp.output_swing)
         self.shape = np.broadcast_shapes(
             np.shape(self.loop["stable"]), np.shape(self.v), np.shape(rx.wavelength),
@@ -192,7 +186,7 @@ def _speed(p: _Point) -> dict:
     pd_e = with_trailing_axis(pd_, p.shape)  # swept diode fields broadcast against f grids
     v_e = np.asarray(p.v, dtype=float)[..., None]
     wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
-    circuit_e = _expand(p.circuit)
+    circuit_e = with_frequency_axis(p.circuit)
 
     def photodiode(f):
         return pd_e.intrinsic_response(f, v_e, wl_e)

@@ -49,6 +49,7 @@ __all__ = [
     "SOURCE_LABELS",
     "NoiseSpectrum",
     "chain_enbw",
+    "with_frequency_axis",
     "input_noise_psd",
     "integrated_output_noise",
     "johnson_current_density",
@@ -373,7 +374,7 @@ def input_noise_psd(
     return {name: v / zt2 for name, v in out.items()}
 
 
-def _expand(params):
+def with_frequency_axis(params):
     """Give every design parameter a trailing frequency axis (``p[..., None]``)."""
     out = {}
     for name, value in params.items():
@@ -414,7 +415,7 @@ def integrated_output_noise(f_lo=0.0, f_hi=np.inf, *, rtol=DEFAULT_RTOL, **param
     v_rms^2 = integral_{f_lo}^{f_hi} S_out(f) df. A brick-wall post filter is applied as an
     upper limit min(f_hi, cutoff) so that no discontinuity enters the integrand.
     """
-    expanded = _expand(params)
+    expanded = with_frequency_axis(params)
     f_hi = np.asarray(f_hi, dtype=float)
     if expanded.get("filter_kind") == "brickwall":
         f_hi = np.minimum(f_hi, np.asarray(params["filter_cutoff"], dtype=float))
@@ -470,7 +471,7 @@ def chain_enbw(
         "rs": rs,
         "cin": cin,
     }
-    p = _expand(circuit)
+    p = with_frequency_axis(circuit)
     zt0 = np.abs(noise_transfer_functions(0.0, **p)["junction"])[..., 0]
     f_hi = np.inf
     kind = filter_kind

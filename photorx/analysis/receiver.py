@@ -216,12 +216,6 @@ class Receiver:
                               background_current=r * self.background_power,
                               f_lo=self.noise_band_low)
 
-    def _circuit(self, net):
-        amp = self.tia.amp
-        return dict(gbw=amp.gbw, dc_gain=amp.dc_gain, poles=amp.poles, rf=self.tia.rf, cf=self.tia.cf,
-                    cd=net.capacitance, rsh=net.shunt_resistance, rs=net.series_resistance,
-                    cin=amp.input_capacitance)
-
     def evaluate(self) -> "ReceiverResult":
         """Every figure of merit at this operating point (arrays if any field is an array).
 

@@ -56,7 +56,7 @@ def test_every_value_carries_a_citation():
 def test_table_values_at_300k(name):
     ref = TABLE[name]
     mat = material(name)
-    # transcription check of the data file against the reference table, rtol 1e-9
+    # copy check: the data file agrees with the reference table, rtol 1e-9
     assert mat.eps_r == pytest.approx(ref["eps_r"], rel=1e-9)
     assert mat.permittivity == pytest.approx(ref["eps_r"] * sc.epsilon_0, rel=1e-12)
     assert mat.intrinsic_density(300.0) == pytest.approx(ref["ni"] * 1e6, rel=1e-9)
