@@ -37,7 +37,9 @@ def _public_objects():
         for name in names:
             if name.startswith("_"):
                 continue
-            obj = getattr(module, name)
+            # a functools.cache / lru_cache wrapper is no function to inspect: read the
+            # function it wraps (its signature and docstring are what users see)
+            obj = inspect.unwrap(getattr(module, name))
             if not (inspect.isfunction(obj) or inspect.isclass(obj)):
                 continue
             if not getattr(obj, "__module__", "").startswith("photorx"):
@@ -49,6 +51,7 @@ def _public_objects():
                         continue
                     if isinstance(member, (staticmethod, classmethod)):
                         member = member.__func__
+                    member = inspect.unwrap(member)
                     if inspect.isfunction(member):
                         seen.setdefault(f"{obj.__module__}.{obj.__qualname__}.{attr}", member)
     return sorted(seen.items())
