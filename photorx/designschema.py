@@ -231,6 +231,16 @@ SCHEMA: tuple[Key, ...] = (
     Key("limits", "max_bias_power", "W", None, check=">0",
         doc="Largest power the bias supply may deliver to the diode (bias times current).",
         example="1 mW"),
+    # common practice for a feedback loop: phase margin >= 45 deg, peaking <= 3 dB
+    Key("limits", "min_phase_margin", "deg", OMIT, check=">=0",
+        doc="Smallest acceptable phase margin of the feedback loop (default 45 deg).",
+        example="45 deg"),
+    Key("limits", "max_peaking", "", OMIT, check=">=0",
+        doc="Largest acceptable closed-loop peaking in dB, a plain number (default 3).",
+        example="3.0"),
+    Key("limits", "max_overshoot", "", None, check=">0",
+        doc="Largest acceptable step overshoot, a fraction of the final value.",
+        example="0.2"),
     # -- optional analysis settings ------------------------------------------------------------
     Key("analysis", "noise_band_low", "Hz", 1.0, check=">0",
         doc="Lower edge of the noise integration (1/f noise diverges at 0 Hz).",

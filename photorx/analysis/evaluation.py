@@ -21,7 +21,7 @@ from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
 from .noise import chain_enbw, integrated_output_noise, with_frequency_axis
 from .parameters import with_trailing_axis
-from .sensitivity import (analog_snr, dynamic_range, minimum_detectable_power,
+from .sensitivity import (_levels, analog_snr, dynamic_range, minimum_detectable_power,
                           noise_equivalent_power, q_from_ber, required_average_power)
 
 __all__ = ["evaluate_receiver", "minus_3db_frequency"]
@@ -294,7 +294,18 @@ def _checks(p: _Point, op: dict, speed: dict) -> dict:
     ok = np.ones(p.shape, bool)
     v = op["reverse_bias"]
     bias_power = np.abs(v * p.b(p.net.current))  # net.current = dark + signal + background
+    # the largest signal power: the one level of NRZ (average and extinction ratio, as the
+    # sensitivity stage splits them) or the crest P (1 + m) of the analog signal
+    power = p.b(rx.optical_power)
+    peak = (_levels(power, None, float(rx.extinction_ratio))[0] if rx.bit_rate is not None
+            else power * (1.0 + rx.modulation_depth))
+    # a DC-coupled stage carries background and dark current at its output too
+    i_peak = p.b(p.responsivity) * peak + p.b(p.i_background) + p.b(p.dark_shot)
     return {
+        "peak_photocurrent": i_peak,
+        "peak_output": i_peak * speed["dc_transimpedance"],
+        "output_swing": p.b(p.amp.output_swing),
+        "bit_rate": p.b(np.nan if rx.bit_rate is None else rx.bit_rate),
         "bias_power": bias_power,
         "bias_below_breakdown": v < op["breakdown_voltage"],
         "bias_within_limit": v <= rx.max_bias if rx.max_bias is not None else ok,

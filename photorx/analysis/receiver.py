@@ -41,6 +41,10 @@ FIGURES = {
     "shunt_resistance": ("ohm", "operating point", "shunt resistance"),
     "series_resistance": ("ohm", "operating point", "series resistance"),
     "breakdown_voltage": ("V", "operating point", "breakdown voltage (estimate)"),
+    "peak_photocurrent": ("A", "operating point",
+                          "largest photocurrent: signal peak (one level) + background + dark"),
+    "peak_output": ("V", "operating point", "output at the largest photocurrent, |Zt(0)| x that current"),
+    "output_swing": ("V", "operating point", "output swing of the amplifier"),
     # speed
     "bandwidth": ("Hz", "speed", "-3 dB bandwidth of the whole chain"),
     "loop_bandwidth": ("Hz", "speed", "-3 dB bandwidth of the transimpedance stage"),
@@ -76,6 +80,7 @@ FIGURES = {
     "snr_db": ("dB", "sensitivity", "analog SNR"),
     "max_photocurrent": ("A", "sensitivity", "photocurrent at the output-swing limit"),
     "dynamic_range_db": ("dB", "sensitivity", "output-swing limit over the noise floor (20 log10 of the current ratio)"),
+    "bit_rate": ("bit/s", "sensitivity", "NRZ bit rate (none: an analog receiver)"),
     "target_ber": ("", "sensitivity", "target bit-error ratio"),
     "sensitivity": ("W", "sensitivity", "average optical power for the target BER"),
     "sensitivity_dbm": ("dBm", "sensitivity", "sensitivity for the target BER"),
@@ -87,6 +92,9 @@ FIGURES = {
     "bias_power_within_limit": ("", "checks", "bias-supply power within its limit"),
     "bandwidth_for_bit_rate": ("", "checks", "bandwidth >= 0.7 x bit rate (NRZ rule of thumb)"),
 }
+
+#: Figures of a digital receiver only: an analog design (no bit rate) does not show them.
+BER_FIGURES = ("bit_rate", "target_ber", "sensitivity", "sensitivity_dbm", "bandwidth_for_bit_rate")
 
 _TABLE_ORDER = ("operating point", "speed", "stability", "noise", "sensitivity", "checks")
 
@@ -128,6 +136,12 @@ class Receiver:
     max_bias_power : float, optional
         Limit [W] on the power the bias supply delivers to the diode, reverse bias times
         (dark + signal + background) current, for the checks.
+    min_phase_margin : float
+        Smallest acceptable phase margin [deg], 0 to 90; default 45 (common practice).
+    max_peaking : float
+        Largest acceptable closed-loop peaking [dB], >= 0; default 3 (common practice).
+    max_overshoot : float, optional
+        Largest acceptable step overshoot (fraction of the final value), > 0.
     noise_band_low : float
         Lower edge of the noise integration [Hz], > 0 (1/f noise diverges at 0 Hz);
         the upper edge is infinite (the integral is extended until it converges).
@@ -149,6 +163,10 @@ class Receiver:
     max_bias: float | None = None
     max_bias_power: float | None = None
     noise_band_low: float = 1.0
+    # common practice for a feedback loop: >= 45 deg phase margin, <= 3 dB peaking
+    min_phase_margin: float = 45.0
+    max_peaking: float = 3.0
+    max_overshoot: float | None = None
 
     def __post_init__(self):
         set_ = object.__setattr__
@@ -182,6 +200,11 @@ class Receiver:
         if self.max_bias_power is not None:
             set_(self, "max_bias_power", require_positive("max_bias_power", self.max_bias_power, "W"))
         set_(self, "noise_band_low", require_positive("noise_band_low", self.noise_band_low, "Hz"))
+        set_(self, "min_phase_margin", float(require_in_range("min_phase_margin", self.min_phase_margin,
+                                                              "deg", 0.0, 90.0)))
+        set_(self, "max_peaking", float(require_nonnegative("max_peaking", self.max_peaking, "dB")))
+        if self.max_overshoot is not None:
+            set_(self, "max_overshoot", float(require_positive("max_overshoot", self.max_overshoot, "")))
 
     # -- composition -------------------------------------------------------------------
     def photodiode_at_temperature(self):
@@ -239,6 +262,16 @@ class Receiver:
 
         return receiver_budget(self, title=title)
 
+    def checks(self) -> pd.DataFrame:
+        """Every check of this (scalar) design against its limits, one row per check.
+
+        Columns ``check`` (words), ``value``, ``limit``, ``unit`` (SI), ``ok`` (bool);
+        see :func:`photorx.analysis.checks.receiver_checks`.
+        """
+        from .checks import receiver_checks
+
+        return receiver_checks(self)
+
 
 @dataclass(frozen=True)
 class ReceiverResult:
@@ -286,6 +319,21 @@ class ReceiverResult:
                 for k, v in self.to_dict().items()}
         return pd.DataFrame(data)
 
+    def _shown(self) -> list:
+        """Figures to show (scalar results): BER figures only for a digital receiver."""
+        digital = np.all(np.isfinite(np.asarray(self.values.get("bit_rate", 1.0), dtype=float)))
+        return [k for k in FIGURES if k in self.values and (digital or k not in BER_FIGURES)]
+
+    def __repr__(self) -> str:
+        from ..views.tables import display_value
+
+        if self.size != 1:
+            return f"ReceiverResult({self.size} design points; figures: {', '.join(self.values)})"
+        width = max(len(FIGURES[k][2]) for k in self._shown())
+        lines = [f"  {FIGURES[k][2]:<{width}}  {display_value(getattr(self, k), FIGURES[k][0])}"
+                 for k in self._shown()]
+        return "ReceiverResult\n" + "\n".join(lines)
+
     def _repr_html_(self) -> str:
         from ..views.tables import display_value
 
@@ -294,5 +342,5 @@ class ReceiverResult:
             return frame._repr_html_()
         rows = "".join(
             f"<tr><td>{FIGURES[k][2]}</td><td>{display_value(frame[k].iloc[0], FIGURES[k][0])}</td></tr>"
-            for k in FIGURES if k in frame)
+            for k in self._shown() if k in frame)
         return f"<table><tr><th>figure</th><th>value</th></tr>{rows}</table>"

@@ -40,7 +40,10 @@ def test_display_value():
     assert display_value(2.2e-12, "F") == "2.2 pF"
     assert display_value(True) == "yes"
     assert display_value(np.bool_(False)) == "no"
-    assert display_value(float("nan"), "Hz") == "n/a"
+    # a figure that does not exist reads "none", never "nan"/"inf" (issue 11)
+    assert display_value(float("nan"), "Hz") == "none"
+    assert display_value(float("inf"), "dB") == "none"
+    assert display_value(-float("inf"), "dB") == "none"
     assert display_value("transit") == "transit"
     assert display_value(None) == ""
     # a vanishing noise share is shown as such, not as "5.51e-09 %"
@@ -65,7 +68,7 @@ def test_wavelength_shown_in_nm_and_cautions_in_text_and_latex():
 def test_terminal_text_uses_engineering_units():
     text = str(make_budget())
     assert text.startswith("Test receiver\n=============")
-    for piece in ["1.23 GHz", "280 ps", "61.2 deg", "yes", "transit", "inf ohm", "150 uV",
+    for piece in ["1.23 GHz", "280 ps", "61.2 deg", "yes", "transit", "none", "150 uV",
                   "1e15 cm^-3", "2.2 pF", "Note: model estimate"]:
         assert piece in text
     assert "1234567000" not in text
@@ -89,7 +92,9 @@ def test_csv_parses_back_with_si_values(tmp_path):
     assert float(speed.loc["bandwidth", "value"]) == 1.234567e9
     assert float(speed.loc["rise time", "value"]) == 2.8e-10
     assert speed.loc["rise time", "unit"] == "s"
-    assert math.isinf(float(speed.loc["shunt R", "value"]))
+    assert speed.loc["shunt R", "value"] == "none"  # not "inf" (issue 11)
+    assert math.isnan(pd.read_csv(path, na_values=["none"]).set_index("quantity")
+                      .loc["shunt R", "value"])
     noise = df[df["table"] == "noise by source"]
     assert noise["output_rms"].astype(float).tolist() == [1.5e-4, 2.5e-4]
     assert b.to_csv() == path.read_text()
@@ -103,7 +108,7 @@ def test_json_parses_back(tmp_path):
     assert rows["bandwidth"]["value"] == 1.234567e9 and rows["bandwidth"]["unit"] == "Hz"
     assert rows["bandwidth"]["display"] == "1.23 GHz"
     assert rows["stable"]["value"] is True
-    assert rows["shunt R"]["value"] is None and rows["shunt R"]["display"] == "inf ohm"
+    assert rows["shunt R"]["value"] is None and rows["shunt R"]["display"] == "none"
     assert doc["column_units"] == {"noise by source": {"output_rms": "V"}}
     assert doc["tables"]["operating point"][0]["display"] == "1e15 cm^-3"
     assert any("IEC 60825-1" in c for c in doc["cautions"])
