@@ -176,12 +176,22 @@ def _cmd_budget(args) -> int:
     fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
     from .designfile import design_name
 
-    budget = _load(args.design).budget(title=design_name(args.design) or None)
+    rx = _load(args.design)
+    budget = rx.budget(title=design_name(args.design) or None)
     text = str(budget) if fmt == "text" else {
         "csv": budget.to_csv, "md": budget.to_markdown, "latex": budget.to_latex,
         "html": budget.to_html, "json": budget.to_json}[fmt]()
     _write_or_print(text, args.output)
+    _warn_failed_checks(rx)
     return EXIT_OK
+
+
+def _warn_failed_checks(rx) -> None:
+    """One line on stderr for every check of ``rx.checks()`` that fails."""
+    from .analysis.checks import check_warning, failed_checks
+
+    for _, row in failed_checks(rx.checks()).iterrows():
+        print(f"photorx: warning: {check_warning(row)}", file=sys.stderr)
 
 
 def _cmd_sweep(args) -> int:
@@ -238,18 +248,28 @@ def _cmd_optimize(args) -> int:
     res = optimize(rx, vary=vary, objective=args.objective, constraints=constraints,
                    grid_points=args.grid_points)
     name = res.objective.split(" ", 1)[-1]
-    lines = [f"objective: {res.objective} = {format_eng(res.value, _figure_unit(name))}",
+    unit = _figure_unit(name)
+    lines = [f"objective: {res.objective} = {format_eng(res.value, unit)}",
              f"feasible: {'yes' if res.success else 'no'} ({res.evaluations} evaluations)"]
     lines += [f"  {name} = {format_eng(value, _unit_of(name))}"
               for name, value in res.parameters.items()]
+    if res.flat:
+        tol = f"{100 * res.flat_tolerance:g} %"
+        lines.append(f"flat objective: within {tol} of the optimum at less bias; least bias "
+                     f"for the same result ({name} = {format_eng(res.low_bias_value, unit)}):")
+        lines += [f"  {p} = {format_eng(value, _unit_of(p))}"
+                  for p, value in res.low_bias_parameters.items()]
+    lines += [f"note: {note}" for note in res.notes]  # the design's bounds on vary
     if len(res.constraints):
-        lines.append("constraints:")
+        lines.append("constraints (given, then the design's limits):")
         for row in res.constraints.itertuples(index=False):
             state = "active" if row.active else ("ok" if row.satisfied else "VIOLATED")
-            unit = _figure_unit(row.figure)
-            lines.append(f"  {row.figure} {row.relation} {format_eng(row.limit, unit)}: "
-                         f"{format_eng(row.value, unit)} ({state})")
+            cunit = _figure_unit(row.figure)
+            tag = "" if row.source == "given" else f" [{row.source}]"
+            lines.append(f"  {row.figure} {row.relation} {format_eng(row.limit, cunit)}: "
+                         f"{format_eng(row.value, cunit)} ({state}){tag}")
     print("\n".join(lines))
+    _warn_failed_checks(res.receiver)
     if args.save:
         from .designfile import save_design
 
