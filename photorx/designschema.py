@@ -171,6 +171,13 @@ SCHEMA: tuple[Key, ...] = (
         doc="Reverse bias of the measured dark current.", example="5 V"),
     Key("photodiode", "shunt_resistance", "ohm", OMIT, argument="zero_bias_resistance",
         check=">0", doc="Measured zero-bias shunt resistance R0.", example="1 Gohm"),
+    Key("photodiode", "coating_index", "", OMIT, check=">0",
+        doc="Index of a single-layer anti-reflection coating (default none: bare surface).",
+        example="1.9"),
+    Key("photodiode", "coating_thickness", "m", OMIT, write="nm", check=">=0",
+        doc="Coating thickness (default quarter-wave at coating_wavelength).", example="110 nm"),
+    Key("photodiode", "coating_wavelength", "m", OMIT, write="nm", check=">0",
+        doc="Design wavelength of the quarter-wave coating.", example="850 nm"),
     # -- amplifier -----------------------------------------------------------------------------
     Key("amplifier", "gbw", "Hz", REQUIRED, check=">0", doc="Gain-bandwidth product.",
         example="1 GHz"),
