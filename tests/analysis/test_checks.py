@@ -117,7 +117,7 @@ def test_analog_peak_is_the_crest_of_the_modulation(demo):
 
 def test_limits_set_in_the_design_file(cf6, tmp_path):
     text = dumps_design(cf6).replace("[limits]\n", "[limits]\nmin_phase_margin = \"5 deg\"\n"
-                                     "max_peaking = 20.0\nmax_overshoot = 0.5\n")
+                                     "max_peaking = \"20 dB\"\nmax_overshoot = 0.5\n")
     path = tmp_path / "loose.toml"
     path.write_text(text)
     rx = load_design(path)
@@ -128,6 +128,9 @@ def test_limits_set_in_the_design_file(cf6, tmp_path):
     assert over["limit"] == 0.5 and over["value"] > 0.5 and not over["ok"]
     # and they survive a save / load round trip
     assert "min_phase_margin" in dumps_design(rx) and "max_overshoot" in dumps_design(rx)
+    # "3 dB" of peaking is 3 (the limit is in dB), not the power ratio 10^0.3
+    path.write_text(text.replace('max_peaking = "20 dB"', 'max_peaking = "3 dB"'))
+    assert load_design(path).max_peaking == 3.0
 
 
 def test_limit_fields_are_validated(demo):
@@ -270,3 +273,25 @@ def test_checks_need_a_single_design(demo):
     with pytest.raises(prx.DesignError, match="single design"):
         arr.checks()
     assert isinstance(demo.checks(), pd.DataFrame)
+
+
+# -- property: the checks table agrees with the evaluation's own flags ----------------------------
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=15)
+@given(bias=st.floats(0.5, 30.0), max_bias=st.floats(1.0, 40.0),
+       max_dark=st.floats(1e-10, 1e-7), margin=st.floats(10.0, 80.0))
+def test_checks_agree_with_the_evaluation_flags(bias, max_bias, max_dark, margin):
+    rx = dataclasses.replace(prx.demo_receiver(), reverse_bias=bias, max_bias=max_bias,
+                             max_dark_current=max_dark, min_phase_margin=margin)
+    r = rx.evaluate()
+    checks = rx.checks()
+    assert _row(checks, "max_bias")["ok"] == r.bias_within_limit == (bias <= max_bias)
+    assert _row(checks, "dark_current")["ok"] == r.dark_current_within_limit
+    assert _row(checks, "breakdown")["ok"] == r.bias_below_breakdown
+    assert _row(checks, "phase_margin")["ok"] == (r.phase_margin >= margin)
+    assert _row(checks, "bit_rate")["ok"] == r.bandwidth_for_bit_rate
+    # a check fails exactly when it is in failed_checks
+    assert len(failed_checks(checks)) == int((~checks["ok"]).sum())
