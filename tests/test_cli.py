@@ -434,3 +434,15 @@ def test_exports_read_none_for_missing_figures(capsys, tmp_path, fmt):
         assert rows["gain margin"]["value"] is None and rows["gain margin"]["display"] == "none"
     # an analog design: no BER sensitivity
     assert "bit-error" not in out and "BER" not in out
+
+
+def test_trade_curve_export_reads_none(capsys, tmp_path):
+    curve = tmp_path / "trade.csv"
+    code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=1:5", "--constraint",
+                       "gain_margin_db>=6", "--grid-points", "8", "--trade-curve", str(curve))
+    assert code == 0, err
+    text = curve.read_text()
+    # the demo's loop has no phase crossover: its gain margin does not exist
+    assert "none" in text and not re.search(r"\b(inf|nan)\b", text, flags=re.IGNORECASE)
+    df = pd.read_csv(curve, na_values=["none"])
+    assert df["gain_margin_db"].isna().all()

@@ -356,7 +356,17 @@ def _display_cells(table: pd.DataFrame) -> list:
 
 
 def figure_text(name: str, value, unit: str = "") -> str:
-    """Text of one named figure: :func:`display_value`, with wavelengths in nm."""
+    """Text of one named figure: :func:`display_value`, with wavelengths in nm.
+
+    Parameters
+    ----------
+    name : str
+        Figure name (``"wavelength"`` is shown in nm).
+    value : float, bool, str or None
+        Value in SI units.
+    unit : str
+        SI unit symbol.
+    """
     if unit == "m" and "wavelength" in str(name) and _is_number(value):
         return _wavelength_text(value)
     return display_value(value, unit)
