@@ -276,7 +276,10 @@ def _cmd_optimize(args) -> int:
         save_design(res.receiver, args.save, name="optimised design")
         print(f"wrote {args.save}", file=sys.stderr)
     if args.trade_curve:
-        _write_or_print(res.trade_curve.to_csv(index=False, lineterminator="\n"), args.trade_curve)
+        # figures that do not exist read "none" in this export too
+        curve = res.trade_curve.replace([np.inf, -np.inf], np.nan)
+        _write_or_print(curve.to_csv(index=False, lineterminator="\n", na_rep="none"),
+                        args.trade_curve)
     if not res.success:
         print("photorx optimize: no design satisfies every constraint", file=sys.stderr)
         return EXIT_FAILURE

@@ -357,3 +357,92 @@ def test_template_documents_other_junction_models(capsys, tmp_path):
     code, out, err = run(capsys, "budget", str(path))
     assert code == 0, err
     assert "depletion width" in out
+
+
+# -- limits and checks (issue 11) ----------------------------------------------------------------
+def _design_file(tmp_path, name, **changes):
+    """The embedded demo with fields changed, written as a design file."""
+    import dataclasses
+
+    from photorx.designfile import demo_receiver, dumps_design
+
+    rx = demo_receiver()
+    tia_changes = {k: changes.pop(k) for k in ("cf",) if k in changes}
+    if tia_changes:
+        changes["tia"] = dataclasses.replace(rx.tia, **tia_changes)
+    path = tmp_path / f"{name}.toml"
+    path.write_text(dumps_design(dataclasses.replace(rx, **changes)))
+    return path
+
+
+def test_optimize_honours_the_design_limits_as_python_does(capsys, tmp_path):
+    from photorx import demo_receiver, optimize
+    from photorx.designfile import load_design
+
+    saved = tmp_path / "opt.toml"
+    code, out, err = run(capsys, "optimize", "--vary", "reverse_bias=0:20", "--objective", "snr",
+                         "--constraint", "bandwidth>=900 MHz", "--grid-points", "200",
+                         "--save", str(saved))
+    assert code == 0, err
+    cli_bias = load_design(saved).reverse_bias
+    assert cli_bias <= 10.0  # the design's supply limit (max_bias = 10 V), not 20 V
+    assert "max_bias = 10 V" in out and "[design limit]" in out
+    # the same answer as the Python optimiser with the same design and limits
+    res = optimize(demo_receiver(), vary={"reverse_bias": (0.0, 20.0)}, objective="snr",
+                   constraints={"bandwidth": (">=", 900e6)}, grid_points=200)
+    assert cli_bias == pytest.approx(res.parameters["reverse_bias"], rel=1e-3)
+    # a flat objective is named, with the least bias for the same result
+    assert res.flat and "flat objective" in out
+    low = re.search(r"least bias.*\n\s+reverse_bias = ([\d.]+) (m?)V", out)
+    assert low, out
+    value = float(low.group(1)) * (1e-3 if low.group(2) == "m" else 1.0)
+    assert value == pytest.approx(res.low_bias_parameters["reverse_bias"], rel=1e-2)
+
+
+@pytest.mark.parametrize("changes, words", [
+    ({"cf": 6e-15}, ["phase margin", "peaking"]),        # phase margin about 10 deg
+    ({"optical_power": 1e-3}, ["output swing"]),          # 0 dBm: clipped at the 1 V swing
+])
+def test_budget_warns_once_for_every_failed_check(capsys, tmp_path, changes, words):
+    from photorx.designfile import load_design
+
+    path = _design_file(tmp_path, "failing", **changes)
+    failed = load_design(path).checks().query("not ok")
+    assert len(failed) == len(words)
+    code, out, err = run(capsys, "budget", str(path))
+    assert code == 0
+    warnings = [ln for ln in err.splitlines() if ln.startswith("photorx: warning:")]
+    assert len(warnings) == len(failed) == len(err.strip().splitlines())
+    for w in words:
+        assert any(w in ln for ln in warnings), err
+    assert "against a limit of" in warnings[0]
+    # the budget's checks table shows the same rows, with the failures
+    for check in failed["check"]:
+        assert check in out
+
+
+@pytest.mark.parametrize("fmt", ["text", "csv", "json", "md", "latex", "html"])
+def test_exports_read_none_for_missing_figures(capsys, tmp_path, fmt):
+    path = _design_file(tmp_path, "nofilter", post_filter=None, bit_rate=None)
+    code, out, err = run(capsys, "budget", str(path), "--format", fmt)
+    assert code == 0, err
+    # no post filter and no phase crossover: "none", never inf or nan (JSON keeps null)
+    assert not re.search(r"\b(inf|nan|n/a)\b", out, flags=re.IGNORECASE), out
+    assert "none" in out
+    if fmt == "json":
+        rows = {r["quantity"]: r for r in json.loads(out)["tables"]["stability"]}
+        assert rows["gain margin"]["value"] is None and rows["gain margin"]["display"] == "none"
+    # an analog design: no BER sensitivity
+    assert "bit-error" not in out and "BER" not in out
+
+
+def test_trade_curve_export_reads_none(capsys, tmp_path):
+    curve = tmp_path / "trade.csv"
+    code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=1:5", "--constraint",
+                       "gain_margin_db>=6", "--grid-points", "8", "--trade-curve", str(curve))
+    assert code == 0, err
+    text = curve.read_text()
+    # the demo's loop has no phase crossover: its gain margin does not exist
+    assert "none" in text and not re.search(r"\b(inf|nan)\b", text, flags=re.IGNORECASE)
+    df = pd.read_csv(curve, na_values=["none"])
+    assert df["gain_margin_db"].isna().all()

@@ -15,7 +15,13 @@ __all__ = ["receiver_budget", "checks_table"]
 
 def checks_table(checks: pd.DataFrame) -> pd.DataFrame:
     """The checks of :meth:`Receiver.checks` as a budget table: the same rows, and a check
-    without its limit says so instead of passing."""
+    without its limit says so instead of passing.
+
+    Parameters
+    ----------
+    checks : pandas.DataFrame
+        The table of :func:`photorx.analysis.checks.receiver_checks`.
+    """
     table = checks.copy()
     unset = [not isinstance(value, (bool, np.bool_)) and (limit is None or limit != limit)
              for limit, value in zip(checks["limit"], checks["value"])]  # limit != limit: NaN

@@ -169,12 +169,24 @@ def receiver_checks(rx, result=None) -> pd.DataFrame:
 
 
 def failed_checks(frame: pd.DataFrame) -> pd.DataFrame:
-    """The rows of a :func:`receiver_checks` table that fail."""
+    """The rows of a :func:`receiver_checks` table that fail.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        A table of :func:`receiver_checks`.
+    """
     return frame[~frame["ok"].astype(bool)]
 
 
 def check_warning(row) -> str:
-    """One line for a failed check: what, the value and the limit, with units."""
+    """One line for a failed check: what, the value and the limit, with units.
+
+    Parameters
+    ----------
+    row : pandas.Series
+        A row of a :func:`receiver_checks` table.
+    """
     from ..views.tables import display_value
 
     if isinstance(row["value"], (bool, np.bool_)):

@@ -325,13 +325,19 @@ class ReceiverResult:
         return [k for k in FIGURES if k in self.values and (digital or k not in BER_FIGURES)]
 
     def __repr__(self) -> str:
-        from ..views.tables import display_value
+        # text, one figure a line: description, value with engineering prefix and unit
+        from ..views.tables import figure_text
+        from .noise import SOURCE_LABELS
 
         if self.size != 1:
             return f"ReceiverResult({self.size} design points; figures: {', '.join(self.values)})"
-        width = max(len(FIGURES[k][2]) for k in self._shown())
-        lines = [f"  {FIGURES[k][2]:<{width}}  {display_value(getattr(self, k), FIGURES[k][0])}"
-                 for k in self._shown()]
+        shown = self._shown()
+        width = max(len(FIGURES[k][2]) for k in shown)
+        lines = []
+        for k in shown:
+            value = getattr(self, k)
+            value = SOURCE_LABELS.get(value, value) if k == "dominant_noise_source" else value
+            lines.append(f"  {FIGURES[k][2]:<{width}}  {figure_text(k, value, FIGURES[k][0])}")
         return "ReceiverResult\n" + "\n".join(lines)
 
     def _repr_html_(self) -> str:

@@ -41,7 +41,7 @@ from ..units import format_eng
 from ._files import atomic_write_text
 from .cautions import CAUTIONS, cautions_html, cautions_markdown, cautions_short, cautions_text
 
-__all__ = ["Budget", "EXPORT_FORMATS", "NONE"]
+__all__ = ["Budget", "EXPORT_FORMATS", "NONE", "display_value", "figure_text"]
 
 #: Text of a figure that does not exist (NaN or infinite in SI) in every table and export.
 NONE = "none"
@@ -353,6 +353,23 @@ def _display_cells(table: pd.DataFrame) -> list:
         cells = [d if isinstance(d, str) and d else c
                  for d, c in zip(table["display"].tolist(), cells)]
     return cells
+
+
+def figure_text(name: str, value, unit: str = "") -> str:
+    """Text of one named figure: :func:`display_value`, with wavelengths in nm.
+
+    Parameters
+    ----------
+    name : str
+        Figure name (``"wavelength"`` is shown in nm).
+    value : float, bool, str or None
+        Value in SI units.
+    unit : str
+        SI unit symbol.
+    """
+    if unit == "m" and "wavelength" in str(name) and _is_number(value):
+        return _wavelength_text(value)
+    return display_value(value, unit)
 
 
 def _missing(value) -> bool:

@@ -9,6 +9,7 @@ from __future__ import annotations
 import json
 import math
 import os
+import re
 from html.parser import HTMLParser
 
 import numpy as np
@@ -226,3 +227,24 @@ def test_units_in_column_headers():
     # the CSV keeps the header with its unit and the SI float
     df = pd.read_csv(__import__("io").StringIO(b.to_csv()))
     assert df["output rms [V]"].tolist() == [1.5e-4]
+
+
+def test_limit_column_takes_each_rows_unit_and_none():
+    # a checks table (value, limit, unit per row): the limit is shown in the row's unit
+    t = pd.DataFrame({"check": ["phase margin", "dark current", "overshoot"],
+                      "value": [62.0, 1e-9, 0.05], "limit": [45.0, 1e-8, None],
+                      "unit": ["deg", "A", ""], "ok": [True, True, "no limit set"]})
+    shown = Budget({"checks": t}).display_table("checks")
+    assert list(shown["limit"]) == ["45 deg", "10 nA", "none"]
+    assert list(shown["value"]) == ["62 deg", "1 nA", "0.05"]
+    doc = json.loads(Budget({"checks": t}).to_json())
+    assert doc["tables"]["checks"][2]["limit"] is None  # JSON keeps null
+
+
+def test_no_inf_or_nan_in_any_export():
+    t = pd.DataFrame({"quantity": ["gain margin", "transit time", "filter"],
+                      "value": [np.inf, np.nan, -np.inf], "unit": ["dB", "s", "Hz"]})
+    wide = pd.DataFrame({"source": ["a"], "output rms [V]": [np.nan]})
+    b = Budget({"stability": t, "wide": wide})
+    for text in (str(b), b.to_csv(), b.to_markdown(), b.to_latex(), b.to_html(), b.to_json()):
+        assert not re.search(r"\b(inf|nan|n/a)\b", text, flags=re.IGNORECASE), text
