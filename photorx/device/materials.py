@@ -11,7 +11,7 @@ Examples
 >>> import photorx as prx
 >>> si = prx.material("Si")
 >>> round(si.band_gap(300.0), 3)
-1.124
+1.123
 """
 
 from __future__ import annotations
@@ -37,6 +37,7 @@ __all__ = [
     "check_temperature",
     "band_gap_varshni",
     "universal_breakdown_voltage",
+    "intrinsic_density_from_states",
 ]
 
 #: Temperatures [K] over which the device models are offered (DesignError outside).
@@ -56,7 +57,7 @@ _UNIT_FACTORS = {
     "V/cm": 1e2,
 }
 
-_FIELDS = ("eps_r", "eg_0k", "varshni_alpha", "varshni_beta", "nc_300", "nv_300", "ni_300",
+_FIELDS = ("eps_r", "eg_0k", "varshni_alpha", "varshni_beta", "nc_300", "nv_300",
            "mu_n", "mu_p", "v_sat_n", "v_sat_p", "e_crit")
 
 
@@ -97,6 +98,30 @@ def band_gap_varshni(temperature, eg_0k, alpha, beta):
     """
     t = np.asarray(temperature, dtype=float)
     out = eg_0k - alpha * t**2 / (t + beta)
+    return out if np.ndim(out) else float(out)
+
+
+def intrinsic_density_from_states(nc, nv, band_gap, temperature):
+    """Intrinsic carrier density ni = sqrt(Nc Nv) exp(-Eg / 2kT) [m^-3].
+
+    Parameters
+    ----------
+    nc, nv : float or array_like
+        Effective densities of states of conduction and valence band at ``temperature``
+        [m^-3].
+    band_gap : float or array_like
+        Band gap at ``temperature`` [eV].
+    temperature : float or array_like
+        Temperature [K], > 0.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 1, Eq. (25).
+    """
+    t = np.asarray(temperature, dtype=float)
+    out = np.sqrt(np.asarray(nc) * np.asarray(nv)) * np.exp(-np.asarray(band_gap) * q
+                                                           / (2.0 * k * t))
     return out if np.ndim(out) else float(out)
 
 
@@ -221,10 +246,11 @@ class Material:
         Notes
         -----
         ni(T) = ni(300 K) (T / 300 K)^(3/2) exp(Eg(300 K) / (2 k 300 K) - Eg(T) / (2 k T)),
-        the ratio of ni = sqrt(Nc Nv) exp(-Eg / 2kT) at T and at 300 K. Anchoring at the
-        tabulated ni(300 K) keeps 300 K exact (the tabulated ni of Si is not
-        sqrt(Nc Nv) exp(-Eg/2kT) with the tabulated Nc, Nv, Eg). Valid 50-600 K; for Si
-        it agrees with Misiakos and Tsamakis (1993) within about 10 % over 200-450 K.
+        the ratio of ni = sqrt(Nc Nv) exp(-Eg / 2kT) at T and at 300 K. The shipped
+        materials have ni(300 K) computed from their Nc, Nv and Eg, so this is
+        sqrt(Nc(T) Nv(T)) exp(-Eg(T)/2kT) itself; a user-set ``ni_300`` (e.g. a textbook
+        example's) anchors the same law. Valid 50-600 K; for Si it agrees with Misiakos
+        and Tsamakis (1993) within about 10 % over 250-400 K.
 
         References
         ----------
@@ -296,6 +322,14 @@ def _table() -> dict:
     for name, rec in data.items():
         values = {key: _convert(rec[key], name, key) for key in _FIELDS}
         sources = {key: cites[rec[key]["source"]] for key in _FIELDS}
+        values["ni_300"] = intrinsic_density_from_states(
+            values["nc_300"], values["nv_300"],
+            band_gap_varshni(_T_REF, values["eg_0k"], values["varshni_alpha"],
+                             values["varshni_beta"]), _T_REF)
+        sources["ni_300"] = ("computed: sqrt(Nc Nv) exp(-Eg/2kT) at 300 K (Sze and Ng 2007, "
+                             "ch. 1, Eq. (25)) from Nc, Nv and the Varshni gap; tabulated "
+                             f"value {_convert(rec['ni_300_published'], name, 'ni'):.3g} m^-3 "
+                             f"({cites[rec['ni_300_published']['source']]})")
         out[name.lower()] = Material(name=name, sources=sources, **values)
     return out
 
