@@ -221,6 +221,17 @@ class Material:
         object.__setattr__(self, "sources", MappingProxyType(dict(self.sources)))
 
     @property
+    def optical_source(self) -> str:
+        """The published data sets behind this material's n, k table (author, year, page).
+
+        Text of the header of ``photorx/data/optical_<name>.csv``; see
+        :mod:`~photorx.device.optical_data`. DesignError for a material without a table.
+        """
+        from .optical_data import optical_source
+
+        return optical_source(self.name)
+
+    @property
     def permittivity(self) -> float:
         """Absolute static permittivity eps_r * eps0 [F/m]."""
         return self.eps_r * eps0
