@@ -58,7 +58,8 @@ _UNIT_FACTORS = {
 }
 
 _FIELDS = ("eps_r", "eg_0k", "varshni_alpha", "varshni_beta", "nc_300", "nv_300",
-           "mu_n", "mu_p", "v_sat_n", "v_sat_p", "e_crit")
+           "mu_n", "mu_p", "v_sat_n", "v_sat_p", "e_crit", "mu_n_exponent", "mu_p_exponent",
+           "v_sat_n_coefficient", "v_sat_p_coefficient")
 
 
 def check_temperature(temperature, name: str = "temperature"):
@@ -184,6 +185,12 @@ class Material:
     e_crit : float
         Nominal critical (breakdown) field as tabulated [V/m]; the junction models use the
         doping-dependent :meth:`critical_field`.
+    mu_n_exponent, mu_p_exponent : float, optional
+        Temperature exponents gamma of the lattice mobility, mu(T) = mu(300 K)
+        (T / 300 K)^-gamma [-] (default 0: no temperature dependence).
+    v_sat_n_coefficient, v_sat_p_coefficient : float, optional
+        Coefficient A of the saturation velocity law v_sat(T) = v_sat(300 K) /
+        ((1 - A) + A T / 300 K) [-], 0 to 1 (default 0: constant).
     sources : Mapping[str, str]
         Field name -> citation of the published value (read-only).
 
@@ -206,12 +213,22 @@ class Material:
     v_sat_n: float
     v_sat_p: float
     e_crit: float
+    mu_n_exponent: float = 0.0
+    mu_p_exponent: float = 0.0
+    v_sat_n_coefficient: float = 0.0
+    v_sat_p_coefficient: float = 0.0
     sources: Mapping[str, str] = field(default_factory=dict, compare=False, hash=False, repr=False)
 
     def __post_init__(self):
         units = {"eps_r": "", "eg_0k": "eV", "varshni_alpha": "eV/K", "varshni_beta": "K",
                  "nc_300": "m^-3", "nv_300": "m^-3", "ni_300": "m^-3", "mu_n": "m^2/(V s)",
                  "mu_p": "m^2/(V s)", "v_sat_n": "m/s", "v_sat_p": "m/s", "e_crit": "V/m"}
+        for name in ("mu_n_exponent", "mu_p_exponent"):
+            object.__setattr__(self, name, float(require_in_range(name, getattr(self, name),
+                                                                  "", 0.0, 4.0)))
+        for name in ("v_sat_n_coefficient", "v_sat_p_coefficient"):
+            object.__setattr__(self, name, float(require_in_range(name, getattr(self, name),
+                                                                  "", 0.0, 1.0)))
         for name, unit in units.items():
             if name == "varshni_alpha":
                 value = require_in_range(name, getattr(self, name), unit, 0.0)
@@ -275,6 +292,53 @@ class Material:
         out = self.ni_300 * (t / _T_REF) ** 1.5 * np.exp(eg_r / (2 * kq * _T_REF)
                                                          - eg_t / (2 * kq * t))
         return out if np.ndim(out) else float(out)
+
+    def mobility(self, carrier, temperature=_T_REF):
+        """Low-field (lattice) mobility of ``carrier`` ("n" or "p") at temperature [m^2/(V s)].
+
+        Notes
+        -----
+        mu(T) = mu(300 K) (T / 300 K)^-gamma, the lattice-scattering law of lightly doped
+        material (gamma: ``mu_n_exponent`` / ``mu_p_exponent``; Si 2.33 / 2.23 after Arora
+        et al. 1982, III-V after Sotoodeh et al. 2000). Valid roughly 200-500 K for doping
+        below ~1e16 cm^-3, where lattice scattering dominates; ionised-impurity scattering
+        of heavily doped layers is not modelled.
+
+        References
+        ----------
+        .. [1] N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices
+           29, 292 (1982).
+        .. [2] M. Sotoodeh, A. H. Khalid and A. A. Rezazadeh, J. Appl. Phys. 87, 2890
+           (2000).
+        """
+        mu, g = self._carrier(carrier, "mu")
+        t = np.asarray(check_temperature(temperature), dtype=float)
+        return _scalar_or_array(mu * (t / _T_REF) ** -g)
+
+    def saturation_velocity(self, carrier, temperature=_T_REF):
+        """Saturation velocity of ``carrier`` ("n" or "p") at temperature [m/s].
+
+        Notes
+        -----
+        v_sat(T) = v_sat(300 K) / ((1 - A) + A T / 300 K) (A: ``v_sat_n_coefficient`` /
+        ``v_sat_p_coefficient``), falling with temperature as phonon emission grows.
+
+        References
+        ----------
+        .. [1] R. Quay, C. Moglestue, V. Palankovski and S. Selberherr, Materials Science
+           in Semiconductor Processing 3, 149 (2000).
+        """
+        v, a = self._carrier(carrier, "v_sat")
+        t = np.asarray(check_temperature(temperature), dtype=float)
+        return _scalar_or_array(v / ((1.0 - a) + a * t / _T_REF))
+
+    def _carrier(self, carrier, what):
+        if carrier not in ("n", "p"):
+            raise DesignError(f"carrier = {carrier!r} is invalid; valid: 'n' or 'p'",
+                              parameter="carrier")
+        if what == "mu":
+            return getattr(self, f"mu_{carrier}"), getattr(self, f"mu_{carrier}_exponent")
+        return getattr(self, f"v_sat_{carrier}"), getattr(self, f"v_sat_{carrier}_coefficient")
 
     def cutoff_wavelength(self, temperature=_T_REF):
         """Long-wavelength absorption edge lambda_c = h c / Eg(T) [m]."""

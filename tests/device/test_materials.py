@@ -160,3 +160,49 @@ def test_material_is_frozen_and_hashable():
     assert hash(si) == hash(material("si"))
     with pytest.raises(TypeError):
         si.sources["eps_r"] = "x"
+
+
+# -- transport versus temperature ---------------------------------------------------------------
+def test_silicon_mobility_temperature_law_against_arora():
+    # N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices 29, 292
+    # (1982) (from memory): lightly doped (1e14 cm^-3) Si,
+    # mu_n = 88 Tn^-0.57 + 7.4e8 T^-2.33 / (1 + (N / (1.26e17 Tn^2.4)) 0.88 Tn^-0.146),
+    # mu_p = 54.3 Tn^-0.57 + 1.36e8 T^-2.23 / (1 + (N / (2.35e17 Tn^2.4)) 0.88 Tn^-0.146);
+    # photorx's lattice law must follow mu(T)/mu(300 K) within 8 % over 250-450 K (it omits
+    # Arora's T^-0.57 floor term, 88 of 1341 cm^2/(V s) at 300 K, which matters when hot).
+    t = np.linspace(250.0, 450.0, 9)
+    tn, n = t / 300.0, 1e14
+
+    def arora(a, b, c, nref, tt):
+        tnn = tt / 300.0
+        return a * tnn**-0.57 + b * tt**-c / (1 + (n / (nref * tnn**2.4)) * 0.88 * tnn**-0.146)
+
+    for carrier, args in (("n", (88.0, 7.4e8, 2.33, 1.26e17)), ("p", (54.3, 1.36e8, 2.23, 2.35e17))):
+        ref = arora(*args, t) / arora(*args, 300.0)
+        ours = material("Si").mobility(carrier, t) / material("Si").mobility(carrier, 300.0)
+        np.testing.assert_allclose(ours, ref, rtol=0.08)
+    assert tn[0] < 1 < tn[-1]
+
+
+def test_silicon_saturation_velocity_against_sze():
+    # Sze and Ng, 3rd ed., ch. 1 (from memory): Si electrons
+    # v_sat = 2.4e7 / (1 + 0.8 exp(T / 600 K)) cm/s; the ratio to 300 K within 5 %, 250-450 K.
+    t = np.linspace(250.0, 450.0, 9)
+    ref = (1 + 0.8 * np.exp(300.0 / 600.0)) / (1 + 0.8 * np.exp(t / 600.0))
+    si = material("Si")
+    np.testing.assert_allclose(si.saturation_velocity("n", t) / si.saturation_velocity("n"),
+                               ref, rtol=0.05)
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_transport_falls_with_temperature(name):
+    # Property (lattice scattering, phonon emission): mobility and saturation velocity fall
+    # as the crystal warms; 300 K returns the tabulated values exactly.
+    mat = material(name)
+    for c in ("n", "p"):
+        mu = mat.mobility(c, np.array([250.0, 300.0, 350.0]))
+        vs = mat.saturation_velocity(c, np.array([250.0, 300.0, 350.0]))
+        assert mu[0] > mu[1] > mu[2] and vs[0] > vs[1] > vs[2]
+        assert mu[1] == getattr(mat, f"mu_{c}") and vs[1] == getattr(mat, f"v_sat_{c}")
+    with pytest.raises(DesignError, match="carrier"):
+        mat.mobility("x")
