@@ -300,9 +300,10 @@ class Material:
         -----
         mu(T) = mu(300 K) (T / 300 K)^-gamma, the lattice-scattering law of lightly doped
         material (gamma: ``mu_n_exponent`` / ``mu_p_exponent``; Si 2.33 / 2.23 after Arora
-        et al. 1982, III-V after Sotoodeh et al. 2000). Valid roughly 200-500 K for doping
-        below ~1e16 cm^-3, where lattice scattering dominates; ionised-impurity scattering
-        of heavily doped layers is not modelled.
+        et al. 1982, III-V after Sotoodeh et al. 2000). Valid roughly 200-400 K for doping
+        below ~1e16 cm^-3, where lattice scattering dominates (Si: within 8 % of Arora's
+        full model there; it omits that model's weak T^-0.57 term, so it falls faster
+        above 400 K); ionised-impurity scattering of heavily doped layers is not modelled.
 
         References
         ----------
