@@ -312,9 +312,7 @@ class Material:
         .. [2] M. Sotoodeh, A. H. Khalid and A. A. Rezazadeh, J. Appl. Phys. 87, 2890
            (2000).
         """
-        mu, g = self._carrier(carrier, "mu")
-        t = np.asarray(check_temperature(temperature), dtype=float)
-        return _scalar_or_array(mu * (t / _T_REF) ** -g)
+        return self._transport(carrier, "mu", check_temperature(temperature))
 
     def saturation_velocity(self, carrier, temperature=_T_REF):
         """Saturation velocity of ``carrier`` ("n" or "p") at temperature [m/s].
@@ -329,17 +327,19 @@ class Material:
         .. [1] R. Quay, C. Moglestue, V. Palankovski and S. Selberherr, Materials Science
            in Semiconductor Processing 3, 149 (2000).
         """
-        v, a = self._carrier(carrier, "v_sat")
-        t = np.asarray(check_temperature(temperature), dtype=float)
-        return _scalar_or_array(v / ((1.0 - a) + a * t / _T_REF))
+        return self._transport(carrier, "v_sat", check_temperature(temperature))
 
-    def _carrier(self, carrier, what):
+    def _transport(self, carrier, what, temperature):
+        """mobility ("mu") or saturation velocity ("v_sat") at an already checked T."""
         if carrier not in ("n", "p"):
             raise DesignError(f"carrier = {carrier!r} is invalid; valid: 'n' or 'p'",
                               parameter="carrier")
+        t = np.asarray(temperature, dtype=float) / _T_REF
         if what == "mu":
-            return getattr(self, f"mu_{carrier}"), getattr(self, f"mu_{carrier}_exponent")
-        return getattr(self, f"v_sat_{carrier}"), getattr(self, f"v_sat_{carrier}_coefficient")
+            mu, g = getattr(self, f"mu_{carrier}"), getattr(self, f"mu_{carrier}_exponent")
+            return _scalar_or_array(mu * t**-g) if g else mu + 0.0 * t
+        v, a = getattr(self, f"v_sat_{carrier}"), getattr(self, f"v_sat_{carrier}_coefficient")
+        return _scalar_or_array(v / ((1.0 - a) + a * t))
 
     def cutoff_wavelength(self, temperature=_T_REF):
         """Long-wavelength absorption edge lambda_c = h c / Eg(T) [m]."""

@@ -216,7 +216,8 @@ class DarkCurrentRoutes:
         t = self.temperature
         tau, _ = self._lifetimes()
         na, nd = _contact_dopings(j)
-        d_n, d_p = dk.diffusivity(m.mobility("n", t), t), dk.diffusivity(m.mobility("p", t), t)
+        d_n = dk.diffusivity(m._transport("n", "mu", t), t)  # T checked by the junction
+        d_p = dk.diffusivity(m._transport("p", "mu", t), t)
         l_n, l_p = dk.diffusion_length(d_n, tau), dk.diffusion_length(d_p, tau)
         w = np.asarray(j.depletion_width(v_r), dtype=float)
         bottom = np.maximum(self.absorber_thickness - w, 0.0)

@@ -31,9 +31,9 @@ class SpeedRoutes:
         At the junction temperature: :meth:`~photorx.device.materials.Material.mobility`
         and :meth:`~photorx.device.materials.Material.saturation_velocity`.
         """
-        m, t = self.material, self.temperature
-        mu_n, mu_p = m.mobility("n", t), m.mobility("p", t)
-        vs_n, vs_p = m.saturation_velocity("n", t), m.saturation_velocity("p", t)
+        m, t = self.material, self.temperature  # the junction has checked its temperature
+        mu_n, mu_p = m._transport("n", "mu", t), m._transport("p", "mu", t)
+        vs_n, vs_p = m._transport("n", "v_sat", t), m._transport("p", "v_sat", t)
         if self.illuminated_side == "p":  # electrons minority on top and drift away
             return mu_n, mu_p, mu_n, vs_n, mu_p, vs_p
         return mu_p, mu_n, mu_p, vs_p, mu_n, vs_n
