@@ -178,6 +178,11 @@ SCHEMA: tuple[Key, ...] = (
         doc="Coating thickness (default quarter-wave at coating_wavelength).", example="110 nm"),
     Key("photodiode", "coating_wavelength", "m", OMIT, write="nm", check=">0",
         doc="Design wavelength of the quarter-wave coating.", example="850 nm"),
+    Key("photodiode", "reference_temperature", "K", OMIT, write="K", check=">0",
+        doc="Temperature of the datasheet values (parametric junction; default 300 K).",
+        example="298 K"),
+    Key("photodiode", "band_gap", "eV", OMIT, check=">0",
+        doc="Band gap for rescaling datasheet values with temperature.", example="1.12 eV"),
     # -- amplifier -----------------------------------------------------------------------------
     Key("amplifier", "gbw", "Hz", REQUIRED, check=">0", doc="Gain-bandwidth product.",
         example="1 GHz"),

@@ -189,7 +189,10 @@ def absorption_coefficient(wavelength, material, temperature=_T_REF):
     mat = _material(material) if isinstance(material, str) else material
     key = _od.table_key(mat.name)
     t = _od._load(key)
-    shift = np.asarray(mat.band_gap(temperature)) - mat.band_gap(_T_REF)
+    if np.ndim(temperature) == 0 and temperature == _T_REF:
+        shift = 0.0  # the tables' own temperature: no band-gap lookups
+    else:
+        shift = np.asarray(mat.band_gap(temperature)) - mat.band_gap(_T_REF)
     return _od.shifted_absorption(wavelength, t.energy, t.log_alpha, shift,
                                   f"{key} absorption")
 

@@ -33,12 +33,17 @@ from .._validate import (
     require_nonnegative,
     require_positive,
 )
+from ..constants import thermal_voltage
 from ..errors import DesignError
 from . import darkcurrent as dk
 from . import optics
 from .equivalent_circuit import EquivalentCircuit
 from .junction import ParametricJunction, diffusion_capacitance
-from .photodiode_dark import DarkCurrentRoutes
+from .photodiode_dark import (
+    DarkCurrentRoutes,
+    datasheet_temperature_factors,
+    junction_potential_at_temperature,
+)
 from .photodiode_optics import OpticsRoutes
 from .photodiode_speed import SpeedRoutes
 
@@ -150,6 +155,13 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
     zero_bias_resistance : float, optional
         Measured zero-bias shunt resistance R0 [ohm], > 0 (with or without
         ``reference_dark_current``).
+    reference_temperature : float, optional
+        Temperature [K] at which the datasheet values (capacitance of a parametric
+        junction, reference dark current, R0) hold, and the temperature of a diode on a
+        parametric junction; default 300 K. :meth:`at_temperature` rescales them.
+    band_gap : float, optional
+        Band gap [eV] of the diode material for that rescaling (default: the junction
+        material's Eg(300 K); required to rescale a diode on a parametric junction).
 
     Notes
     -----
@@ -191,6 +203,8 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
     reference_dark_current: float | None = None
     reference_bias: float | None = None
     zero_bias_resistance: float | None = None
+    reference_temperature: float | None = None
+    band_gap: float | None = None
     _fit: tuple = field(init=False, repr=False, compare=False, default=None)
 
     # ----------------------------------------------------------------------- validation
@@ -246,6 +260,21 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
                               "valid: 'p' (p-on-n) or 'n' (n-on-p)", parameter="illuminated_side")
         setf(self, "intrinsic_bandwidth", _optional_positive(
             "intrinsic_bandwidth", self.intrinsic_bandwidth, "Hz"))
+        if self.reference_temperature is not None:
+            from .materials import check_temperature
+
+            t_ref = check_temperature(self.reference_temperature, "reference_temperature")
+            if np.ndim(t_ref):
+                raise DesignError("reference_temperature must be a single number [K]",
+                                  parameter="reference_temperature")
+            if self._physical:
+                raise DesignError("reference_temperature is for a parametric junction; a "
+                                  "physical junction carries its own temperature",
+                                  parameter="reference_temperature")
+            setf(self, "reference_temperature", float(t_ref))
+        if self.band_gap is not None:
+            setf(self, "band_gap", float(require_in_range("band_gap", self.band_gap, "eV",
+                                                          0.1, 6.0)))
         self._setup_dark_fit()
 
     def _setup_coating(self):
@@ -280,8 +309,12 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
 
     @property
     def temperature(self):
-        """Temperature of the junction [K] (300 K for a parametric junction); may be an array."""
-        return _out(np.asarray(getattr(self.junction, "temperature", 300.0), dtype=float))
+        """Temperature of the junction [K]; may be an array.
+
+        A parametric junction has none: ``reference_temperature`` (default 300 K).
+        """
+        default = 300.0 if self.reference_temperature is None else self.reference_temperature
+        return _out(np.asarray(getattr(self.junction, "temperature", default), dtype=float))
 
     @property
     def material(self):
@@ -350,26 +383,76 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
 
     # ----------------------------------------------------------------------- variants
     def at_temperature(self, temperature):
-        """The same diode with its junction at another temperature [K] (physics mode).
+        """The same diode at another temperature [K].
+
+        Physics mode: the junction at that temperature (every model follows). Datasheet
+        values (fitted dark current, R0, a parametric junction's capacitance) are
+        rescaled from ``reference_temperature`` as documented in Notes; a given
+        responsivity and intrinsic bandwidth are kept.
+
+        Notes
+        -----
+        Fitted dark current I = I_g s(v_r) + G v_r: I_g ~ ni(T) and G ~ ni(T)^2
+        (:func:`~photorx.device.photodiode_dark.datasheet_temperature_factors`, band gap
+        ``band_gap`` or the material's). Parametric junction: Vj(T) from
+        :func:`~photorx.device.photodiode_dark.junction_potential_at_temperature` and
+        Cj0(T) = Cj0(T0) (Vj0 / Vj(T))^m, i.e. C ~ (Vj + v_r)^-m of the depletion layer.
 
         Raises
         ------
         DesignError
-            Parametric junction or fitted dark current (datasheet values hold at their
-            measurement temperature only).
+            Temperature outside 50-600 K; a parametric junction without ``band_gap``.
         """
-        if not self._physical or self._fit is not None:
-            raise DesignError("at_temperature needs a physical junction and the physical "
-                              "dark-current model (datasheet values hold at their measurement "
-                              "temperature)", parameter="temperature")
-        j = dataclasses.replace(self.junction, temperature=temperature)
-        return dataclasses.replace(self, junction=j)
+        from .materials import check_temperature
+
+        t_new = check_temperature(temperature)
+        if self._physical and self._fit is None:
+            j = dataclasses.replace(self.junction, temperature=t_new)
+            return dataclasses.replace(self, junction=j)
+        if np.ndim(t_new):
+            raise DesignError("temperature must be a single number [K] for a diode with "
+                              "datasheet values", parameter="temperature")
+        t_new, t0 = float(t_new), float(self.temperature)
+        eg = self.band_gap
+        if eg is None and self._physical:
+            eg = float(self.material.band_gap(300.0))
+        if eg is None:
+            raise DesignError("band_gap [eV] of the diode material is required to move a "
+                              "datasheet photodiode to another temperature (e.g. 1.12 for Si, "
+                              "0.74 for InGaAs)", parameter="band_gap")
+        if self._physical:
+            junction = dataclasses.replace(self.junction, temperature=t_new)
+        else:
+            j = self.junction
+            vj = junction_potential_at_temperature(j.vj, t_new, t0, eg)
+            if not vj > 0.05:
+                raise DesignError.out_of_range("temperature", t_new, "K",
+                                               "a temperature where the junction potential "
+                                               f"stays > 0.05 V (Vj = {vj:.3g} V here)")
+            junction = dataclasses.replace(j, vj=float(vj),
+                                           cj0=float(j.cj0 * (j.vj / vj) ** j.m))
+        kw = dict(junction=junction, reference_temperature=t_new)
+        if self._fit is not None:
+            f_gen, f_diff = datasheet_temperature_factors(t_new, t0, eg)
+            i_g, g = self._fit[0] * f_gen, self._fit[1] * f_diff
+            probe = dataclasses.replace(self, junction=junction, reference_temperature=t_new,
+                                        reference_dark_current=None, reference_bias=None,
+                                        zero_bias_resistance=None)
+            nvt = 2.0 * thermal_voltage(t_new)
+            if self.reference_dark_current is not None:
+                v = self.reference_bias
+                s0 = probe._width_ratio(v) * -np.expm1(-v / nvt)
+                kw["reference_dark_current"] = float(i_g * s0 + g * v)
+            if self.zero_bias_resistance is not None:
+                kw["zero_bias_resistance"] = float(1.0 / (i_g / nvt + g))
+        return dataclasses.replace(self, **kw)
 
     @classmethod
     def from_datasheet(cls, responsivity, capacitance=None, capacitance_bias=None, cj0=None,
                        vj=0.7, m=None, dark_current=None, dark_current_bias=None,
                        shunt_resistance=None, series_resistance=_DEFAULT_SERIES_RESISTANCE,
-                       package_capacitance=0.0, bandwidth=None, fc=0.5):
+                       package_capacitance=0.0, bandwidth=None, fc=0.5, temperature=None,
+                       band_gap=None):
         """Photodiode from the few numbers of a datasheet-style description.
 
         Parameters
@@ -398,6 +481,11 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
             Intrinsic (transit) 3-dB bandwidth [Hz]; default none (no intrinsic limit).
         fc : float, optional
             Forward-bias coefficient of the parametric junction [-].
+        temperature : float, optional
+            Temperature [K] at which the datasheet values hold (default 300 K).
+        band_gap : float, optional
+            Band gap of the diode material [eV] (e.g. 1.12 Si, 0.74 InGaAs), needed by
+            :meth:`at_temperature` to rescale dark current and capacitance.
 
         Returns
         -------
@@ -451,12 +539,14 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
                        series_resistance=series_resistance,
                        package_capacitance=package_capacitance, intrinsic_bandwidth=bandwidth,
                        reference_dark_current=dark_current, reference_bias=dark_current_bias,
-                       zero_bias_resistance=shunt_resistance)
+                       zero_bias_resistance=shunt_resistance, reference_temperature=temperature,
+                       band_gap=band_gap)
         except DesignError as exc:  # speak the datasheet's names
             names = {"given_responsivity": "responsivity", "intrinsic_bandwidth": "bandwidth",
                      "reference_dark_current": "dark_current",
                      "reference_bias": "dark_current_bias",
-                     "zero_bias_resistance": "shunt_resistance"}
+                     "zero_bias_resistance": "shunt_resistance",
+                     "reference_temperature": "temperature"}
             msg = str(exc)
             for old, new in names.items():
                 msg = msg.replace(old, new)

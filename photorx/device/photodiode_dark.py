@@ -17,7 +17,8 @@ from ..errors import DesignError
 from . import darkcurrent as dk
 from .junction import FORWARD_LIMIT
 
-__all__ = ["DarkCurrentRoutes", "MIN_REFERENCE_BIAS"]
+__all__ = ["DarkCurrentRoutes", "MIN_REFERENCE_BIAS", "datasheet_temperature_factors",
+           "junction_potential_at_temperature"]
 
 MIN_REFERENCE_BIAS = 0.1  # [V] a dark current quoted nearer 0 V does not separate the terms
 _MIN_REFERENCE_BIAS = MIN_REFERENCE_BIAS
@@ -51,6 +52,60 @@ def _contact_dopings(junction):
     raise DesignError(f"cannot find the dopings of junction {type(junction).__name__}; give "
                       "reference_dark_current", parameter="junction")
 
+
+
+def datasheet_temperature_factors(temperature, reference_temperature, band_gap):
+    """Scale factors of fitted (datasheet) dark-current terms from T0 to T [-].
+
+    Parameters
+    ----------
+    temperature, reference_temperature : float
+        Temperature T and the temperature T0 of the datasheet values [K].
+    band_gap : float
+        Band gap of the diode material [eV] (its 300 K value; the law's activation).
+
+    Returns
+    -------
+    generation, diffusion : float
+        Factor of the generation-like term (~ ni) and of the zero-bias conductance term
+        (~ ni^2, diffusion-like).
+
+    Notes
+    -----
+    ni ~ T^(3/2) exp(-Eg / 2kT): generation = (T/T0)^(3/2) exp(-(Eg/2k)(1/T - 1/T0)),
+    diffusion = (T/T0)^3 exp(-(Eg/k)(1/T - 1/T0)). For Si (1.12 eV) the generation term
+    doubles about every 8-9 K near room temperature (common practice: silicon dark current
+    doubles every 8-10 K).
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 1, Eq. (25) (ni) and ch. 2 (generation ~ ni, diffusion ~ ni^2).
+    """
+    t, t0 = float(temperature), float(reference_temperature)
+    kq = 8.617333262e-5  # Boltzmann constant [eV/K] (scipy.constants k/e)
+    x = (1.0 / t - 1.0 / t0) / kq
+    return (t / t0) ** 1.5 * np.exp(-band_gap * x / 2.0), (t / t0) ** 3 * np.exp(-band_gap * x)
+
+
+def junction_potential_at_temperature(vj, temperature, reference_temperature, band_gap):
+    """Junction (built-in) potential Vj at T from its value at T0 [V].
+
+    Notes
+    -----
+    Vbi = Eg/q - (kT/q) ln(Nc Nv / (N_A N_D)) with Nc Nv ~ T^3 gives
+    Vj(T) = Eg + (Vj0 - Eg) T/T0 - 3 (k/q) T ln(T/T0) (Eg in V, held at its 300 K value):
+    about -1.7 mV/K for a silicon diode with Vj0 = 0.7 V (common practice: -1.5 to
+    -2.5 mV/K). The depletion capacitance follows as C ~ (Vj + v_r)^-m.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 2, Eq. (3) (Vbi) and ch. 1 (Nc, Nv ~ T^(3/2)).
+    """
+    t, t0 = float(temperature), float(reference_temperature)
+    kq = 8.617333262e-5
+    return band_gap + (vj - band_gap) * t / t0 - 3.0 * kq * t * np.log(t / t0)
 
 
 class DarkCurrentRoutes:
@@ -161,7 +216,8 @@ class DarkCurrentRoutes:
         t = self.temperature
         tau, _ = self._lifetimes()
         na, nd = _contact_dopings(j)
-        d_n, d_p = dk.diffusivity(m.mu_n, t), dk.diffusivity(m.mu_p, t)
+        d_n = dk.diffusivity(m._transport("n", "mu", t), t)  # T checked by the junction
+        d_p = dk.diffusivity(m._transport("p", "mu", t), t)
         l_n, l_p = dk.diffusion_length(d_n, tau), dk.diffusion_length(d_p, tau)
         w = np.asarray(j.depletion_width(v_r), dtype=float)
         bottom = np.maximum(self.absorber_thickness - w, 0.0)

@@ -26,11 +26,17 @@ class SpeedRoutes:
     """Transit time, bandwidths and the intrinsic response (mixin of Photodiode)."""
 
     def _mobilities(self):
-        """(mu_top_minority, mu_bottom_minority, mu_far, v_sat_far, mu_near, v_sat_near)."""
-        m = self.material
+        """(mu_top_minority, mu_bottom_minority, mu_far, v_sat_far, mu_near, v_sat_near).
+
+        At the junction temperature: :meth:`~photorx.device.materials.Material.mobility`
+        and :meth:`~photorx.device.materials.Material.saturation_velocity`.
+        """
+        m, t = self.material, self.temperature  # the junction has checked its temperature
+        mu_n, mu_p = m._transport("n", "mu", t), m._transport("p", "mu", t)
+        vs_n, vs_p = m._transport("n", "v_sat", t), m._transport("p", "v_sat", t)
         if self.illuminated_side == "p":  # electrons minority on top and drift away
-            return m.mu_n, m.mu_p, m.mu_n, m.v_sat_n, m.mu_p, m.v_sat_p
-        return m.mu_p, m.mu_n, m.mu_p, m.v_sat_p, m.mu_n, m.v_sat_n
+            return mu_n, mu_p, mu_n, vs_n, mu_p, vs_p
+        return mu_p, mu_n, mu_p, vs_p, mu_n, vs_n
 
     def _velocities(self, v_r):
         """Drift velocities (far, near) [m/s] at the mean depletion field (Vbi + v_r)/W."""
