@@ -321,8 +321,9 @@ def parse_quantity(text, unit: str | None = None) -> float:
         try:
             return float(text)
         except OverflowError:  # an integer beyond the float range
-            raise DesignError(f"cannot read {text:.3e} as a quantity: beyond the range of "
-                              "floating-point numbers") from None
+            digits = int(int(text).bit_length() * math.log10(2)) + 1  # str() may refuse it
+            raise DesignError(f"cannot read an integer of about {digits} digits as a quantity: "
+                              "beyond the range of floating-point numbers") from None
     if not isinstance(text, str):
         raise DesignError(f"cannot read {text!r} as a quantity; write e.g. '2.2 pF'")
     raw = text.strip()
