@@ -223,8 +223,7 @@ def mutants(draw, docs: dict):
                     continue
                 target = draw(st.sampled_from(targets))
                 _get(doc, target)[key] = parent.pop(key)
-                names.update(target)
-            names.update(path)
+            names.add(key)  # the error must name the key (or section) that changed
             steps.append(f"{op} {'.'.join(path)}")
         elif op == "add_key":
             tables = [p for p in paths if isinstance(_get(doc, p), dict)] + [()]
@@ -232,7 +231,7 @@ def mutants(draw, docs: dict):
             key = draw(st.sampled_from(["extra", "gbw", "rf", "area", "Area", "voltage-noise",
                                         "cutoff", "x" * 300, "k\u00e9y", "model"]))
             _get(doc, where)[key] = draw(st.sampled_from(["1 V", 1.0, "5 pF", [1], True]))
-            names.update(where + (key,))
+            names.add(key)
             steps.append(f"add key {'.'.join(where + (key,))}")
         else:
             section = draw(st.sampled_from(["extras", "amplifier2", "photodiode.junk",
@@ -242,7 +241,7 @@ def mutants(draw, docs: dict):
             for p in parts[:-1]:
                 target = target.setdefault(p, {}) if isinstance(target.get(p, {}), dict) else {}
             target[parts[-1]] = {"a": "1 V"}
-            names.update(parts)
+            names.add(parts[-1])
             steps.append(f"add section {section}")
     return name, dumps_toml(doc), sorted(str(n) for n in names), steps
 

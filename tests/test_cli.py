@@ -446,3 +446,139 @@ def test_trade_curve_export_reads_none(capsys, tmp_path):
     assert "none" in text and not re.search(r"\b(inf|nan)\b", text, flags=re.IGNORECASE)
     df = pd.read_csv(curve, na_values=["none"])
     assert df["gain_margin_db"].isna().all()
+# -- sweeps and optimisation refuse what would mislead (issue 11) --------------------------------
+def test_sweep_refuses_more_than_max_points(capsys):
+    # 1001 x 1000 points: refused before the design is even evaluated
+    code, out, err = run(capsys, "sweep", "--reverse-bias", "0:20:1001", "--rf", "1e3:1e4:1000")
+    assert code == 2 and out == ""
+    assert_one_line_error(err)
+    assert "1001000 points" in err and "--max-points" in err
+    # one axis alone beyond the cap: refused before its values are allocated
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:20:1000000000000")
+    assert code == 2 and "--max-points" in err
+    assert_one_line_error(err)
+
+
+def test_sweep_max_points_raises_or_lowers_the_cap(capsys):
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--max-points", "5")
+    assert code == 2 and "more than --max-points 5" in err
+    code, out, _ = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--max-points", "6",
+                       "--columns", "bandwidth", "-q")
+    assert code == 0 and len(pd.read_csv(__import__("io").StringIO(out))) == 6
+
+
+def test_sweep_progress_bar_is_tqdm(capsys, monkeypatch):
+    import tqdm
+
+    made = []
+    real = tqdm.tqdm
+
+    def spy(*args, **kwargs):
+        made.append(kwargs)
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(tqdm, "tqdm", spy)
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:600", "--columns", "bandwidth")
+    assert code == 0
+    # shown only once the sweep has run for a second (tqdm's delay)
+    assert made and made[0]["delay"] == 1.0 and made[0]["total"] == 600
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:600", "--columns", "bandwidth",
+                       "--progress-threshold", "1")
+    assert code == 0 and "600/600 points" in err
+
+
+def test_sweep_in_python_honours_max_points():
+    import photorx as prx
+
+    with pytest.raises(DesignError, match="max_points"):
+        prx.sweep(prx.demo_receiver(), reverse_bias=np.linspace(0, 5, 11), rf=[1e3, 2e3],
+                  max_points=21)
+
+
+def test_grid_points_must_be_at_least_two(capsys):
+    for n in ("1", "0", "-5", "x"):
+        code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=0:5", "--grid-points", n)
+        assert code == 2 and "--grid-points" in err
+        assert_one_line_error(err)
+
+
+@pytest.mark.parametrize("argv", [
+    ["--objective", "stable"], ["--objective", "max:stable"],
+    ["--constraint", "stable>=1"], ["--constraint", "bias_within_limit>=1"],
+])
+def test_yes_no_figures_are_not_objectives_or_constraints(capsys, argv):
+    code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=0:5", "--grid-points", "3",
+                       *argv)
+    assert code == 2 and "yes/no" in err
+    assert_one_line_error(err)
+
+
+def test_yes_no_figure_list_matches_the_engine():
+    # every boolean figure of an evaluation is in the CLI's list, so none slips through
+    import photorx as prx
+    from photorx.cli import _is_yes_no
+
+    values = prx.demo_receiver().evaluate().values
+    booleans = {k for k, v in values.items() if np.asarray(v).dtype == bool}
+    assert booleans and all(_is_yes_no(k) for k in booleans)
+    assert not any(_is_yes_no(k) for k in values if k not in booleans)
+
+
+@pytest.mark.parametrize("argv", [
+    ["budget", "-o", "{d}"], ["sweep", "--reverse-bias", "0:1:2", "-o", "{d}"],
+    ["template", "-o", "{d}", "--force"], ["report", "-o", "{d}"],
+    ["optimize", "--vary", "reverse_bias=0:5", "--save", "{d}"],
+])
+def test_output_path_that_is_a_directory_is_named(capsys, tmp_path, argv):
+    folder = tmp_path / "results"
+    folder.mkdir()
+    code, _, err = run(capsys, *[a.format(d=folder) for a in argv])
+    assert code == 2 and f"{folder}: is a directory" in err
+    assert ".tmp" not in err  # the user's path, not the temporary file
+    assert_one_line_error(err)
+    assert list(folder.iterdir()) == []
+
+
+def test_no_runtime_warning_reaches_the_terminal(capsys, monkeypatch):
+    # numpy's floating-point warnings inside a command never reach the user's terminal
+    import warnings
+
+    from photorx import cli
+
+    def noisy(args):
+        np.float64(1.0) / np.float64(0.0)  # numpy: "divide by zero encountered"
+        warnings.warn("overflow encountered", RuntimeWarning)
+        return 0
+
+    original = cli.build_parser
+    monkeypatch.setattr(cli, "build_parser", lambda: _with_func(original(), noisy))
+    with warnings.catch_warnings():
+        warnings.simplefilter("default")  # show what would reach a terminal
+        code, _, err = run(capsys, "demos")
+    assert code == 0 and "Warning" not in err and "encountered" not in err
+
+
+def _with_func(parser, func):
+    for action in parser._subparsers._group_actions:
+        for sub in action.choices.values():
+            sub.set_defaults(func=func)
+    return parser
+
+
+def test_photorx_warnings_get_one_line(capsys, monkeypatch):
+    import warnings
+
+    from photorx import cli
+    from photorx.errors import ModelRangeWarning
+
+    def warns(args):
+        warnings.warn("noise integral not converged\n to rtol", ModelRangeWarning)
+        return 0
+
+    original = cli.build_parser
+    monkeypatch.setattr(cli, "build_parser", lambda: _with_func(original(), warns))
+    with warnings.catch_warnings():
+        warnings.simplefilter("default")
+        code, _, err = run(capsys, "demos")
+    assert code == 0
+    assert err.strip() == "photorx: warning: noise integral not converged to rtol"
