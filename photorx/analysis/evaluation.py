@@ -105,7 +105,7 @@ def minus_3db_frequency(response, ref, scale, shape=None):
     return np.broadcast_to(bw, shape)
 
 
-_PER_DECADE = 10  # shared search grid: 10 points per decade on the lattice 10^(k/10)
+_PER_DECADE = 5  # shared search grid: 5 points per decade on the lattice 10^(k/5)
 _WINDOW = (1e-4, 30.0)  # each part's window relative to its scale, as in minus_3db_frequency
 
 
@@ -120,33 +120,51 @@ def _lattice(lo, hi):
     return 10.0 ** ((k_lo[..., None] + np.arange(max(n, 2))) / _PER_DECADE)
 
 
-def _crossing_on_grid(f, g, log_g, usable, n_iter=8):
-    """First -3 dB crossing from samples ``g = log|H| - log(level)`` on the grid ``f``.
+class _Bracket:
+    """First -3 dB crossing of many designs, bracketed on a grid and refined step by step.
 
-    Brackets the first sign change on the grid, then refines with the Illinois variant of
-    false position on log|H| against log f, calling ``log_g(x)`` (x = ln f, shape (..., 1))
-    once per step. Returns ``(bandwidth, found)``; ``found`` is False where the grid's bottom
-    is already below the level or no crossing lies on the grid (the caller then falls back
-    to the moving-window search of :func:`minus_3db_frequency`).
+    ``g = log|H| - log(level)`` sampled on the grid ``f`` (..., n) brackets the first sign
+    change; each :meth:`update` with ``g`` at the proposed ``x = ln f`` (..., 1) is one step
+    of the Illinois variant of false position on log|H| against log f (superlinear; from a
+    bracket of 10^0.2, 8 steps reach about 1e-10 relative). ``found`` is False where the grid's
+    bottom is already below the level or no crossing lies on the grid (the caller then falls
+    back to the moving-window search of :func:`minus_3db_frequency`).
+
+    References
+    ----------
+    .. [1] M. Dowell and P. Jarratt, A modified regula falsi method for computing the root
+       of an equation, BIT 11 (1971) 168-174 (the Illinois algorithm).
     """
-    below = g < 0
-    found = below.any(axis=-1) & (g[..., 0] >= 0) & usable
-    k = np.clip(np.argmax(below, axis=-1), 1, f.shape[-1] - 1)[..., None]
-    x_lo, x_hi = np.log(np.take_along_axis(f, k - 1, -1)), np.log(np.take_along_axis(f, k, -1))
-    g_lo, g_hi = np.take_along_axis(g, k - 1, -1), np.take_along_axis(g, k, -1)
-    x = x_lo
-    last = np.zeros(x.shape, dtype=np.int8)
-    for _ in range(n_iter):
-        denom = np.where(g_lo != g_hi, g_lo - g_hi, 1.0)
-        x = np.clip(x_lo + g_lo * (x_hi - x_lo) / denom, x_lo, x_hi)
-        gx = log_g(x)
+
+    def __init__(self, f, g, usable):
+        below = g < 0
+        self.found = below.any(axis=-1) & (g[..., 0] >= 0) & usable
+        k = np.clip(np.argmax(below, axis=-1), 1, f.shape[-1] - 1)[..., None]
+        self.x_lo = np.log(np.take_along_axis(f, k - 1, -1))
+        self.x_hi = np.log(np.take_along_axis(f, k, -1))
+        self.g_lo, self.g_hi = np.take_along_axis(g, k - 1, -1), np.take_along_axis(g, k, -1)
+        self.x = self.x_lo
+        self.last = np.zeros(self.x.shape, dtype=np.int8)
+
+    def propose(self):
+        denom = np.where(self.g_lo != self.g_hi, self.g_lo - self.g_hi, 1.0)
+        self.x = np.clip(self.x_lo + self.g_lo * (self.x_hi - self.x_lo) / denom, self.x_lo, self.x_hi)
+        return self.x
+
+    def update(self, gx):
         above = gx >= 0
-        g_hi = np.where(above & (last == 1), 0.5 * g_hi, g_hi)
-        g_lo = np.where(~above & (last == -1), 0.5 * g_lo, g_lo)
-        x_lo, g_lo = np.where(above, x, x_lo), np.where(above, gx, g_lo)
-        x_hi, g_hi = np.where(above, x_hi, x), np.where(above, g_hi, gx)
-        last = np.where(above, 1, -1).astype(np.int8)
-    return np.where(found, np.exp(x[..., 0]), np.nan), found
+        last = self.last
+        g_hi = np.where(above & (last == 1), 0.5 * self.g_hi, self.g_hi)
+        g_lo = np.where(~above & (last == -1), 0.5 * self.g_lo, self.g_lo)
+        self.x_lo, self.g_lo = np.where(above, self.x, self.x_lo), np.where(above, gx, g_lo)
+        self.x_hi, self.g_hi = np.where(above, self.x_hi, self.x), np.where(above, g_hi, gx)
+        self.last = np.where(above, 1, -1).astype(np.int8)
+
+    def result(self):
+        return np.where(self.found, np.exp(self.x[..., 0]), np.nan)
+
+
+_REFINE_STEPS = 8
 
 
 def _log_ratio(h, log_level):
@@ -275,24 +293,30 @@ def _speed(p: _Point) -> dict:
     hi = _WINDOW[1] * np.fmax(cs, ps)
     f = _lattice(lo, hi)
     h_circuit = circuit(f)
-    log_unit = np.zeros(p.shape + (1,))
     log_ref = np.log(np.abs(zt0) / np.sqrt(2.0))[..., None]
+    log_half = np.log(1.0 / np.sqrt(2.0))
     if p.has_speed:
         h_pd = photodiode(f)
-        pd_bw, pd_found = _crossing_on_grid(
-            f, _log_ratio(h_pd, np.log(1 / np.sqrt(2.0)) + log_unit),
-            lambda x: _log_ratio(photodiode(np.exp(x)), np.log(1 / np.sqrt(2.0))), pd_ok)
-        miss = pd_ok & ~pd_found
+        pd_b = _Bracket(f, _log_ratio(h_pd, log_half), pd_ok)
+        ch_b = _Bracket(f, _log_ratio(h_pd * h_circuit, log_ref), chain_ok)
+        for _ in range(_REFINE_STEPS):  # both searches share each call of the photodiode model
+            x = np.concatenate([pd_b.propose(), ch_b.propose()], axis=-1)
+            hp = photodiode(np.exp(x))
+            pd_b.update(_log_ratio(hp[..., :1], log_half))
+            ch_b.update(_log_ratio(hp[..., 1:] * circuit(np.exp(x[..., 1:])), log_ref))
+        pd_bw = pd_b.result()
+        miss = pd_ok & ~pd_b.found
         if miss.any():  # the crossing lies outside the shared grid: the moving-window search
             slow = minus_3db_frequency(photodiode, p.b(1.0), transit_bw, p.shape)
             pd_bw = np.where(miss, slow, pd_bw)
-        h_chain = h_pd * h_circuit
     else:
         pd_bw = p.b(np.inf)
-        h_chain = h_circuit
-    bandwidth, ch_found = _crossing_on_grid(
-        f, _log_ratio(h_chain, log_ref), lambda x: _log_ratio(chain(np.exp(x)), log_ref), chain_ok)
-    miss = chain_ok & ~ch_found
+        ch_b = _Bracket(f, _log_ratio(h_circuit, log_ref), chain_ok)
+        for _ in range(_REFINE_STEPS):
+            x = ch_b.propose()
+            ch_b.update(_log_ratio(circuit(np.exp(x)), log_ref))
+    bandwidth = ch_b.result()
+    miss = chain_ok & ~ch_b.found
     if miss.any():
         slowest = np.fmin(np.fmin(loop_bw, np.where(np.isnan(pd_bw), np.inf, pd_bw)), filter_bw)
         scale = np.where(np.isfinite(loop_bw), slowest, np.nan)
