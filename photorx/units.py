@@ -291,6 +291,40 @@ _BARE_PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "k":
                   "G": 1e9, "T": 1e12}
 
 
+_PLAIN_PREFIXES = {"": 1.0, "m": 1e-3, "c": 1e-2, **_BARE_PREFIXES}
+
+
+def _parse_plain(raw: str, unit: str | None):
+    """``"<number> <prefix><unit>"`` in exactly the expected unit, without pint; else None.
+
+    Most design-file values look like this ("10 kohm", "0.3 pF", "4 nV/rtHz"); reading them
+    without the units library keeps the command line fast (pint takes about 0.4 s to load).
+    A power of one unit (``m^-3``) takes the prefix to that power (``cm^-3`` = 1e6 m^-3);
+    anything else - other units, offsets, dimension errors - goes the general way.
+    """
+    match = re.fullmatch(rf"({_NUMBER})\s*(\S*)", raw)
+    if not match:
+        return None
+    if not match.group(2):
+        return float(match.group(1))  # bare number: SI already
+    if unit == "W" and match.group(2).lower() == "dbm":
+        return float(dbm_to_watt(float(match.group(1))))
+    if unit is None or unit == "degC":
+        return None
+    written = _clean_unit(match.group(2))
+    if unit == "K":  # offset scales (degC) go the general way
+        return float(match.group(1)) if written == "K" else None
+    power = re.fullmatch(r"([A-Za-z]+)(?:\^|\*\*)(-?\d+)", unit)
+    base, exponent = (power.group(1), int(power.group(2))) if power else (unit, 1)
+    suffix = base if exponent == 1 else f"{base}**{exponent}"
+    if not power and ("^" in unit or "**" in unit):
+        return None
+    if not written.endswith(suffix):
+        return None
+    factor = _PLAIN_PREFIXES.get(written[: len(written) - len(suffix)])
+    return None if factor is None else _exact_scale(match.group(1), factor ** exponent)
+
+
 def parse_quantity(text, unit: str | None = None) -> float:
     """Parse a quantity written as the trade writes it and return it in SI.
 
@@ -327,6 +361,9 @@ def parse_quantity(text, unit: str | None = None) -> float:
     if not isinstance(text, str):
         raise DesignError(f"cannot read {text!r} as a quantity; write e.g. '2.2 pF'")
     raw = text.strip()
+    fast = _parse_plain(raw, unit)
+    if fast is not None:
+        return fast
     ureg = _registry()
     target = None if unit is None else _parse_units(unit, unit)
     match = re.fullmatch(rf"({_NUMBER})\s*(.*)", raw)
