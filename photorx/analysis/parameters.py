@@ -26,6 +26,20 @@ def parameter_paths(obj, prefix: str = "") -> dict[str, str]:
     """Map every numeric leaf field of ``obj``'s dataclass tree to its dotted path.
 
     Shallower fields shadow deeper ones of the same name; the dotted path always works.
+    Material and source tables (fields ``material``, ``sources``) are not searched.
+
+    Parameters
+    ----------
+    obj : dataclass instance
+        Root of the tree, usually a :class:`~photorx.analysis.receiver.Receiver`.
+    prefix : str, optional
+        Dotted path of ``obj`` itself, put in front of every path (default ``""``, the
+        root).
+
+    Returns
+    -------
+    dict of str to str
+        Field name -> dotted path (e.g. ``"area"`` -> ``"photodiode.junction.area"``).
     """
     found: dict[str, str] = {}
     level = [(prefix, obj)]
@@ -46,7 +60,26 @@ def parameter_paths(obj, prefix: str = "") -> dict[str, str]:
 
 
 def resolve_parameter(obj, name: str) -> str:
-    """Dotted path of the parameter called ``name`` (a field name or a dotted path)."""
+    """Dotted path of the parameter called ``name`` (a field name or a dotted path).
+
+    Parameters
+    ----------
+    obj : dataclass instance
+        Root of the tree, usually a :class:`~photorx.analysis.receiver.Receiver`.
+    name : str
+        A numeric field name found by :func:`parameter_paths` (``"rf"``) or a dotted path
+        (``"tia.rf"``).
+
+    Returns
+    -------
+    str
+        The dotted path.
+
+    Raises
+    ------
+    DesignError
+        No such parameter; the message lists the known names.
+    """
     if "." in name:
         get_parameter(obj, name)  # raises if absent
         return name
@@ -59,7 +92,25 @@ def resolve_parameter(obj, name: str) -> str:
 
 
 def get_parameter(obj, path: str):
-    """Value at a dotted path."""
+    """Value at a dotted path.
+
+    Parameters
+    ----------
+    obj : dataclass instance
+        Root of the tree.
+    path : str
+        Dotted path of field names from ``obj`` (``"photodiode.junction.area"``).
+
+    Returns
+    -------
+    object
+        The field's value (a number, an array or a nested dataclass).
+
+    Raises
+    ------
+    DesignError
+        A part of the path is not a field of the dataclass reached so far.
+    """
     node = obj
     for part in path.split("."):
         if not dataclasses.is_dataclass(node) or part not in {f.name for f in dataclasses.fields(node)}:
@@ -78,7 +129,14 @@ def with_parameters(obj, **values):
         Root of the tree, usually a :class:`~photorx.analysis.receiver.Receiver`.
     **values
         ``name=value``; a dotted path can be written with double underscores
-        (``photodiode__junction__area=...``). Values may be numpy arrays.
+        (``photodiode__junction__area=...``). Values may be numpy arrays, in SI units.
+        An unknown name raises :class:`~photorx.errors.DesignError` listing the known
+        ones.
+
+    Returns
+    -------
+    dataclass instance
+        A new tree; each dataclass on the way is rebuilt, so its checks run again.
     """
     out = obj
     for key, value in values.items():
@@ -110,6 +168,18 @@ def with_trailing_axis(obj, shape):
     """Copy of a dataclass tree with every design-point array (of exactly ``shape``) given a
     trailing axis, ``value[..., None]``, so that the tree broadcasts against a frequency grid
     of shape ``shape + (n,)``. Scalars and other arrays (tables) are left alone.
+
+    Parameters
+    ----------
+    obj : dataclass instance
+        Root of the tree.
+    shape : tuple of int
+        Shape of the design points; ``()`` returns ``obj`` unchanged.
+
+    Returns
+    -------
+    dataclass instance
+        ``obj`` itself when nothing changed, else a rebuilt copy.
     """
     import numpy as np
 

@@ -227,6 +227,22 @@ def q_factor(i_one, i_zero, sigma_one, sigma_zero):
 
     The levels must be finite and sigma1 + sigma0 > 0 (otherwise a DesignError).
 
+    Parameters
+    ----------
+    i_one : array_like
+        Mean photocurrent of the one level [A], finite.
+    i_zero : array_like
+        Mean photocurrent of the zero level [A], finite.
+    sigma_one : array_like
+        rms noise current on the one level [A], >= 0.
+    sigma_zero : array_like
+        rms noise current on the zero level [A], >= 0; sigma_one + sigma_zero > 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        Q [-], broadcast over all arguments.
+
     References
     ----------
     .. [1] G. P. Agrawal, *Fiber-Optic Communication Systems*, 4th ed., Wiley, 2010, sec. 4.5.
@@ -341,7 +357,29 @@ def sensitivity_dbm(
     extinction_ratio=np.inf,
     dark_current=0.0,
 ):
-    """Receiver sensitivity: :func:`required_average_power` in dBm (10 log10(P / 1 mW))."""
+    """Receiver sensitivity: :func:`required_average_power` in dBm (10 log10(P / 1 mW)).
+
+    Parameters
+    ----------
+    q_value : array_like
+        Target Q factor, > 0 (use :func:`q_from_ber` for a target BER).
+    responsivity : array_like
+        Responsivity [A/W], > 0.
+    circuit_noise_rms : array_like
+        Input-referred rms noise of the circuit (thermal, amplifier), without shot noise of
+        the signal and dark current, in the receiver band [A], >= 0.
+    noise_bandwidth : array_like
+        Noise bandwidth for the shot noise [Hz], > 0.
+    extinction_ratio : array_like
+        r = P1 / P0 [-], > 1; ``inf`` for a zero level without light.
+    dark_current : array_like
+        Dark current [A], >= 0.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Average optical power needed for ``q_value`` [dBm].
+    """
     return watt_to_dbm(
         required_average_power(
             q_value,

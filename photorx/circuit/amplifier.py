@@ -59,6 +59,18 @@ def flicker_factor(f, corner):
 
     Exactly 1 where the corner is 0 (no 1/f noise), also at f = 0, where 0/0 would give NaN;
     ``inf`` at f = 0 with a corner (the 1/f density diverges there).
+
+    Parameters
+    ----------
+    f : float or array_like
+        Frequency [Hz], >= 0.
+    corner : float or array_like
+        1/f corner frequency f_c [Hz], >= 0 (0 = no 1/f noise); broadcasts against ``f``.
+
+    Returns
+    -------
+    numpy.ndarray
+        1 + f_c/f [-], >= 1.
     """
     f = np.asarray(f, dtype=float)
     corner = np.asarray(corner, dtype=float)
@@ -73,12 +85,43 @@ def voltage_noise_density(f, white, corner):
     e_n(f) = e_w * sqrt(1 + f_c / f). Common practice (Motchenbacher and Connelly,
     *Low-Noise Electronic System Design*, 1993, ch. 1). With f_c = 0 the density is e_w at
     every frequency, including 0 Hz.
+
+    Parameters
+    ----------
+    f : float or array_like
+        Frequency [Hz], >= 0 (> 0 with a corner; the density is ``inf`` at 0 Hz then).
+    white : float or array_like
+        White (high-frequency) noise density e_w [V/rtHz], >= 0.
+    corner : float or array_like
+        1/f corner frequency f_c [Hz], >= 0 (0 = no 1/f noise).
+
+    Returns
+    -------
+    numpy.ndarray
+        e_n(f) [V/rtHz], broadcast over all arguments.
     """
     return np.asarray(white, dtype=float) * np.sqrt(flicker_factor(f, corner))
 
 
 def current_noise_density(f, white, corner):
-    """Amplifier input current noise density with a 1/f corner [A/rtHz]; same form as the voltage noise."""
+    """Amplifier input current noise density with a 1/f corner [A/rtHz]; same form as the voltage noise.
+
+    i_n(f) = i_w * sqrt(1 + f_c / f), see :func:`voltage_noise_density`.
+
+    Parameters
+    ----------
+    f : float or array_like
+        Frequency [Hz], >= 0 (> 0 with a corner; the density is ``inf`` at 0 Hz then).
+    white : float or array_like
+        White (high-frequency) noise density i_w [A/rtHz], >= 0.
+    corner : float or array_like
+        1/f corner frequency f_c [Hz], >= 0 (0 = no 1/f noise).
+
+    Returns
+    -------
+    numpy.ndarray
+        i_n(f) [A/rtHz], broadcast over all arguments.
+    """
     return voltage_noise_density(f, white, corner)
 
 
@@ -147,13 +190,31 @@ class OpAmp:
         return self.gbw / self.dc_gain
 
     def gain(self, f):
-        """Open-loop gain A(jf), complex [V/V]; see :func:`open_loop_gain`."""
+        """Open-loop gain A(jf), complex [V/V]; see :func:`open_loop_gain`.
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], >= 0.
+        """
         return open_loop_gain(f, self.gbw, self.dc_gain, self.poles)
 
     def voltage_noise_density(self, f):
-        """Input voltage noise density at ``f`` [V/rtHz]."""
+        """Input voltage noise density at ``f`` [V/rtHz]; see :func:`voltage_noise_density`.
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], >= 0 (> 0 with a ``voltage_noise_corner``).
+        """
         return voltage_noise_density(f, self.voltage_noise, self.voltage_noise_corner)
 
     def current_noise_density(self, f):
-        """Input current noise density at ``f`` [A/rtHz]."""
+        """Input current noise density at ``f`` [A/rtHz]; see :func:`current_noise_density`.
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], >= 0 (> 0 with a ``current_noise_corner``).
+        """
         return current_noise_density(f, self.current_noise, self.current_noise_corner)

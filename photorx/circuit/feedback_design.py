@@ -58,18 +58,20 @@ TARGET_Q = {"butterworth": 1.0 / np.sqrt(2.0), "bessel": 1.0 / np.sqrt(3.0), "cr
 class FeedbackDesign:
     """Result of :func:`design_feedback_capacitor`; ``float(result)`` is the capacitance.
 
-    Attributes
+    Each parameter is also the attribute of that name.
+
+    Parameters
     ----------
     cf : float
-        Feedback capacitance solved on the full model [F].
+        Feedback capacitance solved on the full model [F], >= 0.
     target : str
         ``"butterworth"``, ``"bessel"``, ``"critical"`` or ``"phase_margin"``.
     target_value : float
-        The Q of the dominant pair, or the phase margin [deg], that was solved for.
+        The Q of the dominant pair [-], or the phase margin [deg], that was solved for.
     closed_form_cf : float
         Two-pole closed form 2 zeta sqrt(Ci/(2 pi Rf GBW)) [F].
     closed_form_error : float
-        (closed_form_cf - cf) / cf, dimensionless.
+        (closed_form_cf - cf) / cf [-]; ``inf`` when ``cf`` is 0.
     metrics : TiaMetrics
         Figures of the stage with ``cf``.
     tia : Tia

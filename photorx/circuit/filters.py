@@ -150,6 +150,18 @@ def filter_response(f, kind, order, cutoff):
 def filter_enbw_factor(kind, order):
     """Equivalent noise bandwidth divided by the cutoff frequency (dimensionless).
 
+    Parameters
+    ----------
+    kind : {"butterworth", "bessel", "brickwall"}
+        Filter family.
+    order : int
+        Order 1 to 6 (ignored for the brick wall).
+
+    Returns
+    -------
+    float
+        ENBW / cutoff [-].
+
     Notes
     -----
     ENBW = integral_0^inf |H(f)|^2 df / |H(0)|^2, evaluated numerically (adaptive
@@ -208,7 +220,13 @@ class PostFilter:
         object.__setattr__(self, "cutoff", float(require_positive("cutoff", self.cutoff, "Hz")))
 
     def response(self, f):
-        """Complex response H(jf) [dimensionless]; see :func:`filter_response`."""
+        """Complex response H(jf) [dimensionless]; see :func:`filter_response`.
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], >= 0.
+        """
         return filter_response(f, self.kind, self.order, self.cutoff)
 
     def enbw(self):

@@ -52,12 +52,27 @@ class EquivalentCircuit:
         """Admittance of the diode branch seen from the summing node [S], complex.
 
         Y = 1 / (Rs + Zd), Zd = Rsh || 1/(j 2 pi f Cd).
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], >= 0; broadcasts against the circuit's array fields (give
+            array fields a trailing axis, ``value[..., None]``, to pair them with a 1-D grid).
         """
         yd = 1.0 / self.shunt_resistance + 2j * np.pi * np.asarray(f, dtype=float) * self.capacitance
         return yd / (1.0 + self.series_resistance * yd)
 
     def junction_impedance(self, f):
-        """Impedance of Rsh || Cd [ohm], complex."""
+        """Impedance of Rsh || Cd [ohm], complex.
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], > 0 (>= 0 with a finite ``shunt_resistance``: without a shunt
+            the junction is an open circuit at DC); broadcasts against the circuit's array
+            fields (give array fields a trailing axis, ``value[..., None]``, to pair them
+            with a 1-D grid).
+        """
         s = 2j * np.pi * np.asarray(f, dtype=float)
         return 1.0 / (1.0 / self.shunt_resistance + s * self.capacitance)
 
@@ -66,6 +81,12 @@ class EquivalentCircuit:
 
         Zd / (Zd + Rs): the Norton short-circuit current of the source, Cd, Rsh and Rs branch,
         exact whatever the summing-node voltage. Dimensionless, complex.
+
+        Parameters
+        ----------
+        f : float or array_like
+            Frequency [Hz], >= 0; broadcasts against the circuit's array fields (give
+            array fields a trailing axis, ``value[..., None]``, to pair them with a 1-D grid).
         """
         yd = 1.0 / self.shunt_resistance + 2j * np.pi * np.asarray(f, dtype=float) * self.capacitance
         return 1.0 / (1.0 + self.series_resistance * yd)  # finite at f = 0 with Rsh = inf

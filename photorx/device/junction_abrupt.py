@@ -147,6 +147,20 @@ def graded_built_in_potential(gradient, ni, eps, temperature=300.0, iterations=4
 def graded_depletion_width(v_total, gradient, eps):
     """Depletion width of a linearly graded junction [m]: W = (12 eps (Vbi+V_R)/(q a))^(1/3).
 
+    Parameters
+    ----------
+    v_total : float or array_like
+        Total potential across the depletion layer, Vbi + v_r [V], > 0.
+    gradient : float or array_like
+        Net impurity gradient a [m^-4], > 0 (1 cm^-4 = 1e8 m^-4).
+    eps : float or array_like
+        Permittivity [F/m].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        W [m].
+
     References
     ----------
     .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
@@ -159,6 +173,18 @@ def graded_depletion_width(v_total, gradient, eps):
 
 def graded_breakdown_voltage(gradient, band_gap_300):
     """Universal avalanche breakdown voltage of a linearly graded junction [V].
+
+    Parameters
+    ----------
+    gradient : float or array_like
+        Net impurity gradient a [m^-4] (1 cm^-4 = 1e8 m^-4), > 0.
+    band_gap_300 : float or array_like
+        Band gap of the semiconductor at 300 K [eV] (the law is written for Eg in eV).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Breakdown voltage VB [V], counted from zero bias (Vbi not subtracted).
 
     Notes
     -----
@@ -230,28 +256,68 @@ class AbruptJunction(JunctionBase):
                                          self.temperature)
 
     def depletion_width(self, v_r):
-        """Depletion width W [m] at reverse bias ``v_r`` [V] (:func:`abrupt_depletion_width`)."""
+        """Depletion width W [m] at reverse bias ``v_r`` [V] (:func:`abrupt_depletion_width`).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return abrupt_depletion_width(self._total_potential(v_r), self.na, self.nd,
                                       self.material.permittivity)
 
     def depletion_edges(self, v_r):
-        """Depletion extents (x_p, x_n) [m] into the p and n sides from the junction."""
+        """Depletion extents (x_p, x_n) [m] into the p and n sides from the junction.
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         w = np.asarray(self.depletion_width(v_r))
         na, nd = np.asarray(self.na), np.asarray(self.nd)
         return self._scalar(w * nd / (na + nd)), self._scalar(w * na / (na + nd))
 
     def capacitance(self, v_r):
-        """Junction (depletion) capacitance C = eps A / W [F]."""
+        """Junction (depletion) capacitance C = eps A / W [F].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return self._scalar(self.material.permittivity * np.asarray(self.area)
                             / np.asarray(self.depletion_width(v_r)))
 
     def charge(self, v_r):
-        """Depletion charge on one side, Q = q A N_eff W [C]; dQ/dv_r = capacitance(v_r)."""
+        """Depletion charge on one side, Q = q A N_eff W [C]; dQ/dv_r = capacitance(v_r).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return self._scalar(q * np.asarray(self.area) * self.effective_doping
                             * np.asarray(self.depletion_width(v_r)))
 
     def peak_field(self, v_r):
-        """Peak field at the metallurgical junction, 2 (Vbi + v_r) / W [V/m]."""
+        """Peak field at the metallurgical junction, 2 (Vbi + v_r) / W [V/m].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         v = np.asarray(self._total_potential(v_r))
         return self._scalar(2.0 * v / np.asarray(self.depletion_width(v_r)))
 
@@ -329,27 +395,67 @@ class LinearlyGradedJunction(JunctionBase):
         return self._vbi
 
     def depletion_width(self, v_r):
-        """Depletion width W [m] (cube-root law)."""
+        """Depletion width W [m] (cube-root law).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return graded_depletion_width(self._total_potential(v_r), self.gradient,
                                       self.material.permittivity)
 
     def depletion_edges(self, v_r):
-        """Depletion extents (x_p, x_n) = (W/2, W/2) [m]."""
+        """Depletion extents (x_p, x_n) = (W/2, W/2) [m].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         w = self.depletion_width(v_r)
         return self._scalar(np.asarray(w) / 2.0), self._scalar(np.asarray(w) / 2.0)
 
     def capacitance(self, v_r):
-        """Junction capacitance C = eps A / W [F]."""
+        """Junction capacitance C = eps A / W [F].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return self._scalar(self.material.permittivity * np.asarray(self.area)
                             / np.asarray(self.depletion_width(v_r)))
 
     def charge(self, v_r):
-        """Depletion charge on one side, Q = q A a W^2 / 8 [C]; dQ/dv_r = capacitance(v_r)."""
+        """Depletion charge on one side, Q = q A a W^2 / 8 [C]; dQ/dv_r = capacitance(v_r).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         w = np.asarray(self.depletion_width(v_r))
         return self._scalar(q * np.asarray(self.area) * np.asarray(self.gradient) * w**2 / 8.0)
 
     def peak_field(self, v_r):
-        """Peak field at the junction, q a W^2 / (8 eps) [V/m]."""
+        """Peak field at the junction, q a W^2 / (8 eps) [V/m].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         w = np.asarray(self.depletion_width(v_r))
         return self._scalar(q * np.asarray(self.gradient) * w**2
                             / (8.0 * self.material.permittivity))

@@ -85,6 +85,25 @@ def _pow_integral(u, m):
 def parametric_charge(v_r, cj0, vj, m, fc=0.5):
     """Junction charge of the parametric form relative to zero bias [C]; dQ/dv_r = C.
 
+    Parameters
+    ----------
+    v_r : float or array_like
+        Reverse bias [V]; negative is forward bias.
+    cj0 : float or array_like
+        Zero-bias capacitance [F].
+    vj : float or array_like
+        Junction potential [V].
+    m : float or array_like
+        Grading coefficient [-] (m = 1 takes the logarithmic form).
+    fc : float or array_like
+        Forward-bias coefficient [-]: the power law holds for forward bias below fc*Vj,
+        the linear capacitance extension beyond.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Q(v_r) - Q(0) [C].
+
     Notes
     -----
     Q(v_r) = Cj0 Vj ((1 + v_r/Vj)^(1-m) - 1) / (1 - m) (Cj0 Vj ln(1 + v_r/Vj) for m = 1)
@@ -136,18 +155,51 @@ class ParametricJunction:
         object.__setattr__(self, "fc", require_in_range("fc", self.fc, "", *_FC_RANGE))
 
     def capacitance(self, v_r):
-        """Junction capacitance [F] at reverse bias ``v_r`` [V] (negative = forward)."""
+        """Junction capacitance [F] at reverse bias ``v_r`` [V] (negative = forward).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), any finite value (the form has no
+            breakdown; forward bias beyond fc*Vj follows the linear extension).
+        """
         v = require_finite("v_r", v_r, "V")
         return parametric_capacitance(v, self.cj0, self.vj, self.m, self.fc)
 
     def charge(self, v_r):
-        """Junction charge relative to zero bias [C]; dQ/dv_r = capacitance(v_r)."""
+        """Junction charge relative to zero bias [C]; dQ/dv_r = capacitance(v_r).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), any finite value (the form has no
+            breakdown; forward bias beyond fc*Vj follows the linear extension).
+        """
         v = require_finite("v_r", v_r, "V")
         return parametric_charge(v, self.cj0, self.vj, self.m, self.fc)
 
     def total_capacitance(self, v_r, i_forward=0.0, transit_time=0.0, ideality=1.0,
                           temperature=300.0):
-        """Junction plus diffusion capacitance [F] (see :func:`diffusion_capacitance`)."""
+        """Junction plus diffusion capacitance [F] (see :func:`diffusion_capacitance`).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V]; negative is forward bias. Any finite value.
+        i_forward : float or array_like, optional
+            Forward DC current [A], >= 0 (0 in reverse bias).
+        transit_time : float or array_like, optional
+            Minority-carrier transit time or lifetime [s], >= 0.
+        ideality : float or array_like, optional
+            Ideality factor n [-], 1 to 5.
+        temperature : float or array_like, optional
+            Temperature [K], 50 to 600 (default 300); the form itself has none, so it is
+            given here for the thermal voltage of the diffusion term.
+
+        Notes
+        -----
+        C = C_j(v_r) + tau I / (n V_T).
+        """
         return self.capacitance(v_r) + diffusion_capacitance(i_forward, transit_time, ideality,
                                                              temperature)
 
@@ -155,12 +207,13 @@ class ParametricJunction:
 class ParametricFit(NamedTuple):
     """Result of :func:`fit_parametric_junction`; unpacks as ``(junction, residual)``.
 
-    Attributes
+    Parameters
     ----------
     junction : ParametricJunction
-        The fitted model.
+        The fitted model (also the attribute of that name).
     residual : float
-        Root-mean-square relative error of the fitted capacitance over the points [-].
+        Root-mean-square relative error of the fitted capacitance over the points [-],
+        >= 0 (also the attribute of that name).
     """
 
     junction: ParametricJunction

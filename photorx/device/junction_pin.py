@@ -134,6 +134,22 @@ def pin_breakdown_field(material, ni_doping, thickness, iterations=64):
 def pin_punch_through_potential(na, ni_doping, thickness, eps):
     """Total potential (Vbi + V_R) at which the i layer is just fully depleted [V].
 
+    Parameters
+    ----------
+    na : float or array_like
+        Acceptor density of the p+ layer [m^-3], > 0.
+    ni_doping : float or array_like
+        Net donor density of the i layer [m^-3], > 0.
+    thickness : float or array_like
+        i-layer thickness d [m], > 0.
+    eps : float or array_like
+        Permittivity [F/m].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        V_pt [V]; subtract Vbi for the punch-through reverse bias.
+
     Notes
     -----
     V_pt = q Ni d^2 (1 + Ni/Na) / (2 eps): the one-sided p+/n- junction whose n- depletion
@@ -281,27 +297,67 @@ class PinJunction(JunctionBase):
 
     def depletion_edges(self, v_r):
         """Depletion extents (x_p, x_n) [m]: into the p+ layer, and from the p+/i interface
-        through the i layer (and, above punch-through, into the n+ layer)."""
+        through the i layer (and, above punch-through, into the n+ layer).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return pin_depletion_edges(self._total_potential(v_r), self.p_doping, self.i_doping,
                                    self.n_doping, self.i_thickness, self.material.permittivity)
 
     def depletion_width(self, v_r):
-        """Depletion width W = x_p + x_n [m]."""
+        """Depletion width W = x_p + x_n [m].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         x_p, x_n = self.depletion_edges(v_r)
         return self._scalar(np.asarray(x_p) + x_n)
 
     def capacitance(self, v_r):
-        """Junction capacitance C = eps A / W [F]; continuous across punch-through."""
+        """Junction capacitance C = eps A / W [F]; continuous across punch-through.
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         return self._scalar(self.material.permittivity * np.asarray(self.area)
                             / np.asarray(self.depletion_width(v_r)))
 
     def charge(self, v_r):
-        """Depletion charge on one side, Q = q A Na x_p [C]; dQ/dv_r = capacitance(v_r)."""
+        """Depletion charge on one side, Q = q A Na x_p [C]; dQ/dv_r = capacitance(v_r).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         x_p, _ = self.depletion_edges(v_r)
         return self._scalar(q * np.asarray(self.area) * np.asarray(self.p_doping) * x_p)
 
     def peak_field(self, v_r):
-        """Peak field at the p+/i interface, q Na x_p / eps [V/m]."""
+        """Peak field at the p+/i interface, q Na x_p / eps [V/m].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V] (negative is forward bias), -0.9 Vbi < v_r <=
+            :meth:`breakdown_voltage`; outside, a DesignError. Broadcasts against the
+            design's array fields.
+        """
         x_p, _ = self.depletion_edges(v_r)
         return self._scalar(q * np.asarray(self.p_doping) * x_p / self.material.permittivity)
 

@@ -46,12 +46,26 @@ def cautions_text() -> str:
 
 
 def cautions_markdown(level: int = 2) -> str:
-    """The cautions as a Markdown section with a heading of the given level."""
+    """The cautions as a Markdown section with a heading of the given level.
+
+    Parameters
+    ----------
+    level : int, optional
+        Heading level, the number of ``#`` (default 2, a section under the document
+        title); 1 to 6 for a heading Markdown renders (not checked).
+    """
     return "#" * level + f" {CAUTIONS_TITLE}\n\n" + "\n".join(f"- {c}" for c in CAUTIONS) + "\n"
 
 
 def cautions_html(level: int = 2) -> str:
-    """The cautions as an HTML fragment (heading and list), text escaped."""
+    """The cautions as an HTML fragment (heading and list), text escaped.
+
+    Parameters
+    ----------
+    level : int, optional
+        Heading level of the ``<hN>`` element (default 2); 1 to 6, the levels HTML has
+        (not checked).
+    """
     items = "\n".join(f"  <li>{html.escape(c)}</li>" for c in CAUTIONS)
     return (f'<section class="cautions">\n<h{level}>{CAUTIONS_TITLE}</h{level}>\n'
             f"<ul>\n{items}\n</ul>\n</section>\n")

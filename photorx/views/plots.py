@@ -53,6 +53,8 @@ def plot_bode(f, loop_gain=None, closed_loop=None, ax=None, closed_loop_unit="oh
         (magnitude axes, phase axes).
     closed_loop_unit : str
         Unit of ``closed_loop`` for the legend (magnitude shown in dB re 1 unit).
+    title : str, optional
+        Title above the magnitude axes.
 
     Returns
     -------
@@ -90,8 +92,19 @@ def plot_step(t, response, ax=None, unit="V", title="Step response", final=None)
         Time [s].
     response : array_like
         Output [``unit``], e.g. normalised to its final value (unit ``""``).
+    ax : matplotlib.axes.Axes, optional
+        Axes to draw into; by default a new Figure is made.
+    unit : str, optional
+        SI unit of ``response`` for the axis label and engineering ticks (default
+        ``"V"``); ``""`` labels the axis "output (normalised)".
+    title : str, optional
+        Axes title.
     final : float, optional
-        Final value, drawn as a dashed line with the 10 % and 90 % levels.
+        Final value [``unit``], drawn as a dashed line with the 10 % and 90 % levels.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
     """
     fig, (a,) = _new_axes(ax)
     a.plot(np.asarray(t, dtype=float), np.asarray(response, dtype=float), color="C0")
@@ -118,8 +131,17 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
     densities : dict of str to array_like, or pandas.DataFrame
         Amplitude density of each source [``unit``/rtHz] on the grid ``f``. The powers
         (squares) are stacked, since uncorrelated sources add in power.
+    ax : matplotlib.axes.Axes, optional
+        Axes to draw into; by default a new Figure is made.
     unit : str
-        Unit of the amplitude densities without /rtHz.
+        Unit of the amplitude densities without /rtHz (default ``"V"``; ``"A"`` for
+        input-referred densities).
+    title : str, optional
+        Axes title.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
     """
     fig, (a,) = _new_axes(ax)
     f = np.asarray(f, dtype=float)
@@ -160,8 +182,24 @@ def plot_curve(x, y, ax=None, xlabel="", ylabel="", xunit="", yunit="", mark=Non
     ----------
     x, y : array_like
         Data in SI units ``xunit`` and ``yunit``.
+    ax : matplotlib.axes.Axes, optional
+        Axes to draw into; by default a new Figure is made.
+    xlabel, ylabel : str, optional
+        Axis labels, without the unit (the tick labels carry it).
+    xunit, yunit : str, optional
+        SI units of ``x`` and ``y`` for engineering tick labels (``"V"`` gives 500 mV).
     mark : (float, float), optional
         Point to mark, e.g. the operating bias and its value.
+    logx, logy : bool, optional
+        Logarithmic x or y axis (default linear).
+    title : str, optional
+        Axes title; none by default.
+    label : str, optional
+        Legend label of the curve (the legend is drawn with ``mark``).
+
+    Returns
+    -------
+    matplotlib.figure.Figure
     """
     fig, (a,) = _new_axes(ax)
     a.plot(np.asarray(x, dtype=float), np.asarray(y, dtype=float), color="C0", label=label)
@@ -195,7 +233,13 @@ def plot_bias_tradeoff(bias, series, ax=None, mark=None, title="Bias trade-off")
     ax : sequence of Axes, optional
         One axes per series.
     mark : float, optional
-        Operating bias, drawn as a vertical line.
+        Operating bias [V], drawn as a vertical line.
+    title : str, optional
+        Title above the first panel.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
     """
     series = list(series)
     fig, axes = _new_axes(ax, len(series), figsize=(6.4, 1.9 * len(series) + 0.6))
@@ -219,7 +263,22 @@ def plot_bias_tradeoff(bias, series, ax=None, mark=None, title="Bias trade-off")
 
 
 def figure_to_base64(fig, fmt: str = "png", dpi: int = 110) -> str:
-    """The figure as a base64 ``data:`` URI (``png`` or ``svg``) for a self-contained page."""
+    """The figure as a base64 ``data:`` URI (``png`` or ``svg``) for a self-contained page.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+        The figure to encode.
+    fmt : {"png", "svg"}, optional
+        Image format (default ``"png"``).
+    dpi : int, optional
+        Resolution of the PNG [dots per inch] (default 110).
+
+    Returns
+    -------
+    str
+        ``"data:image/png;base64,..."`` (or ``image/svg+xml``).
+    """
     import base64
     import io
 

@@ -282,11 +282,24 @@ class Panel:
     def set(self, **values):
         """Set several controls at once and update once (for scripts and tests).
 
+        Parameters
+        ----------
+        **values
+            ``name=value`` for controls in :attr:`controls`, each in the display unit of
+            that control (the unit in its description, e.g. ``"area [mm^2]"``). An unknown
+            name raises :class:`TypeError` listing the panel's controls; nothing is set then.
+
         Returns
         -------
         bool
             What :meth:`update` returned: False when an error is shown in ``message``.
         """
+        unknown = [name for name in values if name not in self.controls]
+        if unknown:
+            # refuse before anything moves: a typo must not leave the panel half updated
+            raise TypeError(f"{type(self).__name__}.set() got unknown control(s) "
+                            f"{', '.join(map(repr, unknown))}; controls: "
+                            f"{', '.join(sorted(self.controls))}")
         self._updating = True
         try:
             for name, v in values.items():
