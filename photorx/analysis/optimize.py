@@ -316,9 +316,11 @@ def optimize(receiver, vary: dict, objective="snr", constraints: dict | None = N
             scale = np.where(limit != 0, np.abs(limit), 1.0)
             with np.errstate(invalid="ignore"):
                 slack = (value - limit) / scale if c["relation"] == ">=" else (limit - value) / scale
-            # a limit at infinity (no breakdown estimate) holds; a missing value does not
+            # a limit at infinity (no breakdown estimate) holds, and so does an infinite
+            # value on the right side (no phase crossover: gain margin >= 6 dB); a missing
+            # value (NaN) does not
             slack = np.where(np.isinf(limit) & ~np.isnan(value), 1.0, slack)
-            viol += np.where(np.isfinite(slack), np.clip(-slack, 0, None), 1e3)
+            viol += np.where(np.isnan(slack), 1e3, np.minimum(np.clip(-slack, 0, None), 1e3))
         viol += np.where(frame["stable"].to_numpy(dtype=bool), 0.0, 1e3)
         obj = np.where(np.isfinite(obj), obj, np.inf)
         return obj, viol
