@@ -307,7 +307,11 @@ def _parse_plain(raw: str, unit: str | None):
         return None
     if not match.group(2):
         return float(match.group(1))  # bare number: SI already
+    if not math.isfinite(float(match.group(1))):
+        return None  # overflowing numbers are named by the general path
     if unit == "W" and match.group(2).lower() == "dbm":
+        if not abs(float(match.group(1))) <= MAX_DBM:
+            return None  # out of range: the general path names the limits
         return float(dbm_to_watt(float(match.group(1))))
     if unit is None or unit == "degC":
         return None

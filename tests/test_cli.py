@@ -446,6 +446,8 @@ def test_trade_curve_export_reads_none(capsys, tmp_path):
     assert "none" in text and not re.search(r"\b(inf|nan)\b", text, flags=re.IGNORECASE)
     df = pd.read_csv(curve, na_values=["none"])
     assert df["gain_margin_db"].isna().all()
+
+
 # -- sweeps and optimisation refuse what would mislead (issue 11) --------------------------------
 def test_sweep_refuses_more_than_max_points(capsys):
     # 1001 x 1000 points: refused before the design is even evaluated
