@@ -401,7 +401,7 @@ def test_optimize_honours_the_design_limits_as_python_does(capsys, tmp_path):
 
 @pytest.mark.parametrize("changes, words", [
     ({"cf": 6e-15}, ["phase margin", "peaking"]),        # phase margin about 10 deg
-    ({"optical_power": 1e-3}, ["output swing"]),          # 0 dBm: clipped at the 1 V swing
+    ({"optical_power": 1e-3}, ["average photocurrent", "largest photocurrent"]),  # 0 dBm: clipped
 ])
 def test_budget_warns_once_for_every_failed_check(capsys, tmp_path, changes, words):
     from photorx.designfile import load_design

@@ -75,6 +75,10 @@ CHECKS = (
           limit_field="max_peaking"),
     Check("overshoot", "step overshoot (fraction) within its limit", "overshoot", "<=", "",
           limit_field="max_overshoot"),
+    # the DC level (average photocurrent) must fit first; the one level of NRZ (or the analog
+    # crest) must fit too, or the peaks clip (common practice)
+    Check("average_output", "output at the average photocurrent within the output swing "
+          "(DC level)", "average_output", "<=", "V", limit_figure="output_swing"),
     Check("output_swing", "output at the largest photocurrent within the output swing "
           "(no clipping)", "peak_output", "<=", "V", limit_figure="output_swing"),
     Check("breakdown", "reverse bias below the breakdown estimate", "reverse_bias", "<", "V",

@@ -418,6 +418,8 @@ def _checks(p: _Point, op: dict, speed: dict) -> dict:
     return {
         "peak_photocurrent": i_peak,
         "peak_output": i_peak * speed["dc_transimpedance"],
+        # the DC level a DC-coupled stage sits at: average signal + background + dark current
+        "average_output": np.abs(p.b(p.net.current)) * speed["dc_transimpedance"],
         "output_swing": p.b(p.amp.output_swing),
         "bit_rate": p.b(np.nan if rx.bit_rate is None else rx.bit_rate),
         "bias_power": bias_power,

@@ -44,6 +44,8 @@ FIGURES = {
     "peak_photocurrent": ("A", "operating point",
                           "largest photocurrent: signal peak (one level) + background + dark"),
     "peak_output": ("V", "operating point", "output at the largest photocurrent, |Zt(0)| x that current"),
+    "average_output": ("V", "operating point",
+                       "output at the average photocurrent (DC level), |Zt(0)| x that current"),
     "output_swing": ("V", "operating point", "output swing of the amplifier"),
     # speed
     "bandwidth": ("Hz", "speed", "-3 dB bandwidth of the whole chain"),
