@@ -2,11 +2,9 @@
 
 from __future__ import annotations
 
-import pandas as pd
-
 from ..errors import DesignError
 from .noise import SOURCE_LABELS
-from .receiver import _TABLE_ORDER, FIGURES
+from .result import _TABLE_ORDER, FIGURES
 
 __all__ = ["receiver_budget"]
 
@@ -25,6 +23,8 @@ def receiver_budget(rx, title: str | None = None):
     -------
     photorx.views.tables.Budget
     """
+    import pandas as pd
+
     from ..views.tables import Budget
 
     result = rx.evaluate()
@@ -46,7 +46,8 @@ def receiver_budget(rx, title: str | None = None):
                 for name, (unit, tab, desc) in FIGURES.items() if tab == table and name in values]
         tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
         if table == "noise":
-            tables["noise by source"] = rx.noise().budget()
+            # read from the same evaluation: the noise is integrated once
+            tables["noise by source"] = result.noise_table(rx.noise_band_low)
     notes = list(result.warnings)
     notes.append("Noise integrated over the closed-loop response (times the post filter) from "
                  f"{rx.noise_band_low:g} Hz to where the integral converges; input-referred values "
