@@ -3,17 +3,16 @@
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from ..errors import DesignError
-from .noise import SOURCE_LABELS
 from .checks import receiver_checks
-from .receiver import _TABLE_ORDER, BER_FIGURES, FIGURES
+from .noise import SOURCE_LABELS
+from .result import _TABLE_ORDER, BER_FIGURES, FIGURES
 
 __all__ = ["receiver_budget", "checks_table"]
 
 
-def checks_table(checks: pd.DataFrame) -> pd.DataFrame:
+def checks_table(checks):
     """The checks of :meth:`Receiver.checks` as a budget table: the same rows, and a check
     without its limit says so instead of passing.
 
@@ -45,6 +44,8 @@ def receiver_budget(rx, title: str | None = None):
     -------
     photorx.views.tables.Budget
     """
+    import pandas as pd
+
     from ..views.tables import Budget
 
     result = rx.evaluate()
@@ -65,7 +66,8 @@ def receiver_budget(rx, title: str | None = None):
                 and (digital or name not in BER_FIGURES)]
         tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
         if table == "noise":
-            tables["noise by source"] = rx.noise().budget()
+            # read from the same evaluation: the noise is integrated once
+            tables["noise by source"] = result.noise_table(rx.noise_band_low)
     notes = list(result.warnings)
     notes.append("Noise integrated over the closed-loop response (times the post filter) from "
                  f"{rx.noise_band_low:g} Hz to where the integral converges; input-referred values "

@@ -14,7 +14,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import pandas as pd
 
 from ..errors import DesignError
 
@@ -115,7 +114,7 @@ def _passes(relation: str, value, limit) -> bool:
     return bool(value < limit)
 
 
-def receiver_checks(rx, result=None) -> pd.DataFrame:
+def receiver_checks(rx, result=None):
     """Every check of one design: ``check``, ``value``, ``limit``, ``unit``, ``ok``.
 
     Parameters
@@ -166,13 +165,15 @@ def receiver_checks(rx, result=None) -> pd.DataFrame:
             ok = _passes(check.relation, value, limit)
         rows.append(dict(check=check.words, value=value, limit=limit, unit=check.unit, ok=ok))
         names.append(check.name)
+    import pandas as pd  # imported where used: the command line starts faster
+
     frame = pd.DataFrame(rows, columns=CHECK_COLUMNS)
     frame["ok"] = frame["ok"].astype(bool)
     frame.attrs["names"] = names
     return frame
 
 
-def failed_checks(frame: pd.DataFrame) -> pd.DataFrame:
+def failed_checks(frame):
     """The rows of a :func:`receiver_checks` table that fail.
 
     Parameters

@@ -19,9 +19,10 @@ from ..errors import DesignError
 from ..circuit.metrics import tia_figures
 from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
-from .noise import with_frequency_axis
+from .noise import input_noise_psd, with_frequency_axis
 from .noise_integrals import chain_noise
 from .parameters import with_trailing_axis
+from .result import ReceiverResult
 from .sensitivity import (_levels, analog_snr, dynamic_range, minimum_detectable_power,
                           noise_equivalent_power, q_from_ber, required_average_power)
 
@@ -347,17 +348,25 @@ def _stability(p: _Point) -> dict:
 
 
 def _noise(p: _Point):
-    """Every source integrated over the real response; returns figures and per-source rms."""
+    """Every source integrated over the real response.
+
+    Returns the figures, the input-referred rms [A], the mean-square output noise [V^2] and
+    the input-referred spot density at ENBW/10 [A/rtHz] of every source.
+    """
     rx, amp = p.rx, p.amp
     circuit = {k: (tuple(p.b(x) for x in val) if k == "poles" else p.b(val)) for k, val in p.circuit.items()}
     filt = _filter_kwargs(rx.post_filter)
-    # one grid for both integrals: the loop's transfer functions are built once
-    mean_square, enbw = chain_noise(
-        rx.noise_band_low, **circuit, **filt,
+    sources = dict(
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),
         in_corner=p.b(amp.current_noise_corner), temperature=p.b(rx.temperature),
         i_shot={"dark": p.b(p.dark_shot), "signal": p.b(p.i_signal), "background": p.b(p.i_background)})
+    # one grid for both integrals: the loop's transfer functions are built once
+    mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources)
     enbw = p.b(enbw)
+    # input-referred spot density of every source at ENBW/10 (in the flat part of the
+    # response), the column of the budget's by-source table
+    spot_psd = input_noise_psd((enbw / 10.0)[..., None], **with_frequency_axis({**circuit, **sources}))
+    spot = {name: p.b(np.sqrt(v[..., 0])) for name, v in spot_psd.items()}
     zt0 = np.abs(p.b(p.loop["dc_transimpedance"]))
     total = sum(mean_square.values())
     # circuit noise = all but the signal and dark shot noise, which the sensitivity formulas add
@@ -378,7 +387,8 @@ def _noise(p: _Point):
         "noise_floor_rms": floor_rms, "noise_floor_density": floor_rms / np.sqrt(enbw),
         "dominant_noise_source": dominant,
     }
-    return figures, {name: p.b(np.sqrt(ms) / zt0) for name, ms in mean_square.items()}
+    by_source = {name: p.b(np.sqrt(ms) / zt0) for name, ms in mean_square.items()}
+    return figures, by_source, {name: p.b(ms) for name, ms in mean_square.items()}, spot
 
 
 def _sensitivity(p: _Point, noise: dict) -> dict:
@@ -454,12 +464,11 @@ def evaluate_receiver(rx):
     -------
     ReceiverResult
     """
-    from .receiver import ReceiverResult
-
     p = _Point(rx)
     op = _operating_point(p)
     speed = _speed(p)
-    noise, by_source = _noise(p)
+    noise, by_source, mean_square, spot = _noise(p)
     values = {**op, **speed, **_stability(p), **noise, **_sensitivity(p, noise), **_checks(p, op, speed)}
     warnings = tuple(text for name, text in _WARNINGS if not np.all(values[name]))
-    return ReceiverResult(values=values, noise_by_source=by_source, warnings=warnings)
+    return ReceiverResult(values=values, noise_by_source=by_source, warnings=warnings,
+                          noise_mean_square=mean_square, noise_spot_density=spot)
