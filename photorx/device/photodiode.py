@@ -130,10 +130,13 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
         Minority-carrier diffusion length in the top layer [m], > 0 (default 1 um, typical
         of a ~1e19 cm^-3 contact layer).
     lifetime : float, optional
-        Minority-carrier lifetime in the undepleted bottom layer [s], > 0 (default by
-        material, :data:`~photorx.device.darkcurrent.DEFAULT_LIFETIMES`; 1 us otherwise).
+        Minority-carrier lifetime in the undepleted bottom layer at 300 K [s], > 0
+        (default by material, :data:`~photorx.device.darkcurrent.DEFAULT_LIFETIMES`; 1 us
+        otherwise); at other junction temperatures it follows tau ~ T^-1/2
+        (:func:`~photorx.device.darkcurrent.lifetime_at_temperature`).
     generation_lifetime : float, optional
-        Generation lifetime of the depletion layer [s], > 0 (default by material).
+        Generation lifetime of the depletion layer at 300 K [s], > 0 (default by
+        material; same temperature law).
     leakage_resistance : float, optional
         Ohmic (surface) leakage resistance [ohm], > 0 (default inf). Not combined with a
         datasheet dark current, whose fit determines the leakage.
@@ -322,10 +325,19 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
         return getattr(self.junction, "material", None) if self._physical else None
 
     def _lifetimes(self):
+        """(lifetime, generation lifetime) [s] at the junction temperature.
+
+        The given (or default) values hold at 300 K and follow the SRH thermal-velocity
+        law (:func:`~photorx.device.darkcurrent.lifetime_at_temperature`).
+        """
         name = self.material.name if self._physical else ""
         tau0, taug0 = dk.default_lifetimes(name)
-        return (self.lifetime if self.lifetime is not None else tau0,
-                self.generation_lifetime if self.generation_lifetime is not None else taug0)
+        tau = self.lifetime if self.lifetime is not None else tau0
+        tau_g = self.generation_lifetime if self.generation_lifetime is not None else taug0
+        t = self.temperature
+        if np.ndim(t) == 0 and t == 300.0:
+            return tau, tau_g
+        return dk.lifetime_at_temperature(tau, t), dk.lifetime_at_temperature(tau_g, t)
 
     # ----------------------------------------------------------------------- electrical
     def capacitance(self, v_r=0.0):
