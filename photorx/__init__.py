@@ -5,9 +5,10 @@ first use so that ``import photorx`` stays fast and plotting libraries load only
 a plot is drawn.
 """
 
-from __future__ import annotations
-
-import importlib
+# no ``from __future__ import annotations`` here: it would bind the name ``annotations``
+# in the package namespace (and so in ``dir(photorx)``); this module needs no postponed
+# annotations
+import importlib as _importlib
 
 __version__ = "0.1.0"
 
@@ -34,7 +35,7 @@ _EXPORTS = {
     "TiaMetrics": "photorx.circuit.metrics",
     "design_feedback_capacitor": "photorx.circuit.feedback_design",
     "PostFilter": "photorx.circuit.filters",
-    "NoiseSpectrum": "photorx.analysis.noise",
+    "NoiseSpectrum": "photorx.analysis.noise_spectrum",
     "Receiver": "photorx.analysis.receiver",
     "ReceiverResult": "photorx.analysis.receiver",
     "Budget": "photorx.views.tables",
@@ -54,7 +55,7 @@ def __getattr__(name: str):
         module = _EXPORTS[name]
     except KeyError:
         raise AttributeError(f"module 'photorx' has no attribute {name!r}") from None
-    value = getattr(importlib.import_module(module), name)
+    value = getattr(_importlib.import_module(module), name)
     globals()[name] = value  # cache: later lookups skip __getattr__
     return value
 

@@ -6,6 +6,8 @@ The functions return the value as a float or a float ndarray so that callers can
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from .errors import DesignError
@@ -22,6 +24,8 @@ __all__ = [
 
 def as_float_array(name: str, value, unit: str = ""):
     """Return ``value`` as float (scalar in, scalar out) or float ndarray; reject non-numbers."""
+    if type(value) is float:  # the common case, without an array round trip
+        return value
     try:
         arr = np.asarray(value, dtype=float)
     except (TypeError, ValueError):
@@ -33,6 +37,12 @@ def as_float_array(name: str, value, unit: str = ""):
 def require_finite(name: str, value, unit: str = ""):
     """Reject NaN and infinities."""
     arr = as_float_array(name, value, unit)
+    # fast paths: these checks run hundreds of times per receiver evaluation
+    if type(arr) is float:
+        if math.isfinite(arr):
+            return arr
+    elif np.isfinite(arr).all():
+        return arr
     bad = ~np.isfinite(arr)
     if np.any(bad):
         raise DesignError.out_of_range(name, np.asarray(arr)[bad] if np.ndim(arr) else arr, unit,
@@ -43,6 +53,8 @@ def require_finite(name: str, value, unit: str = ""):
 def require_positive(name: str, value, unit: str = ""):
     """Require ``value > 0`` (and finite)."""
     arr = require_finite(name, value, unit)
+    if (arr > 0) if type(arr) is float else (arr > 0).all():
+        return arr
     bad = np.asarray(arr) <= 0
     if np.any(bad):
         raise DesignError.out_of_range(name, _first(arr, bad), unit, "> 0")
@@ -52,6 +64,8 @@ def require_positive(name: str, value, unit: str = ""):
 def require_nonnegative(name: str, value, unit: str = ""):
     """Require ``value >= 0`` (and finite)."""
     arr = require_finite(name, value, unit)
+    if (arr >= 0) if type(arr) is float else (arr >= 0).all():
+        return arr
     bad = np.asarray(arr) < 0
     if np.any(bad):
         raise DesignError.out_of_range(name, _first(arr, bad), unit, ">= 0")

@@ -13,13 +13,14 @@ import math
 import os
 import re
 import sys
+import warnings
 from pathlib import Path
 
 import numpy as np
 
 from .errors import DesignError
 
-__all__ = ["main", "parse_axis", "parse_constraint"]
+__all__ = ["main", "parse_axis", "parse_constraint", "MAX_POINTS", "YES_NO_FIGURES"]
 
 EXIT_OK, EXIT_FAILURE, EXIT_USAGE = 0, 1, 2
 
@@ -63,11 +64,17 @@ def _expected_unit(name: str | None):
     return unit.replace("rtHz", "Hz^0.5")
 
 
-def parse_axis(name: str, spec: str) -> np.ndarray:
+#: Largest sweep grid the command line evaluates unless --max-points raises it.
+MAX_POINTS = 10**6
+
+
+def parse_axis(name: str, spec: str, max_points: int = MAX_POINTS) -> np.ndarray:
     """Values of a sweep axis from ``START:STOP:N[:log]`` or a comma list, in SI.
 
     ``"0:20:81"`` is 81 points from 0 to 20 inclusive; ``"1 kohm:100 kohm:21:log"`` is
     logarithmically spaced; ``"1e3,5e3,10e3"`` or ``"1 pF,2 pF"`` lists the values.
+    An axis of more than ``max_points`` points is a :class:`DesignError` (before any
+    memory is allocated for it); so are ends that are not finite.
     """
     text = spec.strip()
     try:
@@ -82,6 +89,13 @@ def parse_axis(name: str, spec: str) -> np.ndarray:
             n = int(parts[2])
             if n < 1:
                 raise ValueError
+            if n > max_points:
+                raise DesignError(f"--{name.replace('_', '-')} {spec!r}: {n} points, more than "
+                                  f"--max-points {max_points}; raise --max-points to sweep "
+                                  "that many", parameter=name)
+            if not (math.isfinite(start) and math.isfinite(stop)):
+                raise DesignError(f"--{name.replace('_', '-')} {spec!r}: the ends must be "
+                                  "finite", parameter=name)
             if log:
                 if start <= 0 or stop <= 0:
                     raise DesignError(f"--{name}: a log axis needs positive ends, got {spec!r}",
@@ -104,12 +118,55 @@ _CONSTRAINT = re.compile(r"^\s*([A-Za-z_][\w.]*)\s*(>=|<=)\s*(.+)$")
 
 
 def parse_constraint(text: str) -> tuple[str, tuple[str, float]]:
-    """``"bandwidth>=1 GHz"`` -> ``("bandwidth", (">=", 1e9))``."""
+    """``"bandwidth>=1 GHz"`` -> ``("bandwidth", (">=", 1e9))``; yes/no figures are refused."""
     m = _CONSTRAINT.match(text)
     if not m:
         raise DesignError(f"--constraint {text!r}: write FIGURE>=VALUE or FIGURE<=VALUE, "
                           "e.g. 'bandwidth>=1 GHz'", parameter="constraint")
+    _require_numeric_figure(m.group(1), f"--constraint {text!r}")
     return m.group(1), (m.group(2), _quantity(m.group(3), m.group(1)))
+
+
+#: Receiver figures that are yes/no answers (checks), not numbers with an order.
+YES_NO_FIGURES = frozenset({"stable", "bias_below_breakdown", "bias_within_limit",
+                            "dark_current_within_limit", "bias_power_within_limit",
+                            "bandwidth_for_bit_rate"})
+
+
+def _is_yes_no(name: str) -> bool:
+    return name in YES_NO_FIGURES or name.endswith("_within_limit")
+
+
+def _require_numeric_figure(name: str, where: str) -> None:
+    if _is_yes_no(name):
+        raise DesignError(f"{where}: {name} is a yes/no figure, not a number to optimise or "
+                          f"bound; the optimiser keeps every design stable and reports the "
+                          "checks", parameter=name)
+
+
+def _objective(text: str) -> str:
+    """``--objective`` value: a figure name, optionally ``max:``/``min:``; not a yes/no figure."""
+    name = text.split(":", 1)[1] if text.startswith(("max:", "min:")) else text
+    try:
+        _require_numeric_figure(name.strip(), f"--objective {text!r}")
+    except DesignError as exc:
+        raise argparse.ArgumentTypeError(str(exc).split(": ", 1)[1]) from None
+    return text
+
+
+def _at_least(low: int):
+    """argparse type: an integer >= ``low``."""
+    def parse(text: str) -> int:
+        try:
+            value = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{text!r} is not an integer") from None
+        if value < low:
+            raise argparse.ArgumentTypeError(f"{value} is below the least value, {low}")
+        return value
+
+    parse.__name__ = f"integer >= {low}"
+    return parse
 
 
 def _parse_vary(text: str) -> tuple[str, tuple[float, float]]:
@@ -176,12 +233,22 @@ def _cmd_budget(args) -> int:
     fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
     from .designfile import design_name
 
-    budget = _load(args.design).budget(title=design_name(args.design) or None)
+    rx = _load(args.design)
+    budget = rx.budget(title=design_name(args.design) or None)
     text = str(budget) if fmt == "text" else {
         "csv": budget.to_csv, "md": budget.to_markdown, "latex": budget.to_latex,
         "html": budget.to_html, "json": budget.to_json}[fmt]()
     _write_or_print(text, args.output)
+    _warn_failed_checks(rx)
     return EXIT_OK
+
+
+def _warn_failed_checks(rx) -> None:
+    """One line on stderr for every check of ``rx.checks()`` that fails."""
+    from .analysis.checks import check_warning, failed_checks
+
+    for _, row in failed_checks(rx.checks()).iterrows():
+        print(f"photorx: warning: {check_warning(row)}", file=sys.stderr)
 
 
 def _cmd_sweep(args) -> int:
@@ -191,28 +258,36 @@ def _cmd_sweep(args) -> int:
     for name in _AXIS_OPTIONS:
         spec = getattr(args, name)
         if spec is not None:
-            axes[name] = parse_axis(name, spec)
+            axes[name] = parse_axis(name, spec, args.max_points)
     for item in args.axis or ():
         name, sep, spec = item.partition("=")
         if not sep or not name.strip():
             raise DesignError(f"--axis {item!r}: write NAME=SPEC, e.g. i_thickness=1e-6:4e-6:7",
                               parameter="axis")
-        axes[name.strip().replace("-", "_").replace(".", "__")] = parse_axis(name.strip(), spec)
+        axes[name.strip().replace("-", "_").replace(".", "__")] = parse_axis(name.strip(), spec,
+                                                                             args.max_points)
     if not axes:
         raise UsageError("photorx sweep: give at least one axis, e.g. --reverse-bias 0:20:81 "
                          "(see 'photorx sweep --help')")
-    rx = _load(args.design)
     total = math.prod(len(v) for v in axes.values())
-    show = not args.quiet and total >= args.progress_threshold
+    if total > args.max_points:
+        raise UsageError(f"photorx sweep: the grid has {total} points, more than --max-points "
+                         f"{args.max_points}; use fewer points or raise --max-points")
+    rx = _load(args.design)
+    from tqdm import tqdm
 
-    def progress(done, n):
-        if show:
-            width = 30
-            filled = int(width * done / n)
-            print(f"\rsweep [{'#' * filled}{'.' * (width - filled)}] {done}/{n} points",
-                  end="" if done < n else "\n", file=sys.stderr, flush=True)
+    # the bar appears once the sweep has run for a second (or at once from the hidden
+    # --progress-threshold number of points on, for tests)
+    forced = args.progress_threshold is not None and total >= args.progress_threshold
+    with tqdm(total=total, file=sys.stderr, disable=args.quiet, delay=0 if forced else 1.0,
+              ascii=".#", unit="point", leave=True,
+              bar_format="sweep [{bar:30}] {n_fmt}/{total_fmt} points "
+                         "[{elapsed}<{remaining}]") as bar:
 
-    frame = sweep(rx, progress=progress, **axes)
+        def progress(done, n):
+            bar.update(done - bar.n)
+
+        frame = sweep(rx, progress=progress, max_points=args.max_points, **axes)
     if args.columns:
         wanted = [c.strip() for c in args.columns.split(",") if c.strip()]
         unknown = [c for c in wanted if c not in frame.columns]
@@ -238,25 +313,38 @@ def _cmd_optimize(args) -> int:
     res = optimize(rx, vary=vary, objective=args.objective, constraints=constraints,
                    grid_points=args.grid_points)
     name = res.objective.split(" ", 1)[-1]
-    lines = [f"objective: {res.objective} = {format_eng(res.value, _figure_unit(name))}",
+    unit = _figure_unit(name)
+    lines = [f"objective: {res.objective} = {format_eng(res.value, unit)}",
              f"feasible: {'yes' if res.success else 'no'} ({res.evaluations} evaluations)"]
     lines += [f"  {name} = {format_eng(value, _unit_of(name))}"
               for name, value in res.parameters.items()]
+    if res.flat:
+        tol = f"{100 * res.flat_tolerance:g} %"
+        lines.append(f"flat objective: within {tol} of the optimum at less bias; least bias "
+                     f"for the same result ({name} = {format_eng(res.low_bias_value, unit)}):")
+        lines += [f"  {p} = {format_eng(value, _unit_of(p))}"
+                  for p, value in res.low_bias_parameters.items()]
+    lines += [f"note: {note}" for note in res.notes]  # the design's bounds on vary
     if len(res.constraints):
-        lines.append("constraints:")
+        lines.append("constraints (given, then the design's limits):")
         for row in res.constraints.itertuples(index=False):
             state = "active" if row.active else ("ok" if row.satisfied else "VIOLATED")
-            unit = _figure_unit(row.figure)
-            lines.append(f"  {row.figure} {row.relation} {format_eng(row.limit, unit)}: "
-                         f"{format_eng(row.value, unit)} ({state})")
+            cunit = _figure_unit(row.figure)
+            tag = "" if row.source == "given" else f" [{row.source}]"
+            lines.append(f"  {row.figure} {row.relation} {format_eng(row.limit, cunit)}: "
+                         f"{format_eng(row.value, cunit)} ({state}){tag}")
     print("\n".join(lines))
+    _warn_failed_checks(res.receiver)
     if args.save:
         from .designfile import save_design
 
         save_design(res.receiver, args.save, name="optimised design")
         print(f"wrote {args.save}", file=sys.stderr)
     if args.trade_curve:
-        _write_or_print(res.trade_curve.to_csv(index=False, lineterminator="\n"), args.trade_curve)
+        # figures that do not exist read "none" in this export too
+        curve = res.trade_curve.replace([np.inf, -np.inf], np.nan)
+        _write_or_print(curve.to_csv(index=False, lineterminator="\n", na_rep="none"),
+                        args.trade_curve)
     if not res.success:
         print("photorx optimize: no design satisfies every constraint", file=sys.stderr)
         return EXIT_FAILURE
@@ -352,8 +440,12 @@ def build_parser() -> argparse.ArgumentParser:
                    help="any other parameter (field name or dotted path), repeatable")
     p.add_argument("--columns", help="comma-separated result columns to keep (default: all)")
     p.add_argument("-o", "--output", help="CSV file (default: standard output)")
-    p.add_argument("-q", "--quiet", action="store_true", help="no progress indication")
-    p.add_argument("--progress-threshold", type=int, default=2000, help=argparse.SUPPRESS)
+    p.add_argument("-q", "--quiet", action="store_true",
+                   help="no progress bar (shown on sweeps that run longer than a second)")
+    p.add_argument("--max-points", type=_at_least(1), default=MAX_POINTS, metavar="N",
+                   help=f"largest grid to evaluate (default: {MAX_POINTS:,}; a point takes "
+                        "about a kilobyte while it is evaluated)")
+    p.add_argument("--progress-threshold", type=int, default=None, help=argparse.SUPPRESS)
     p.set_defaults(func=_cmd_sweep)
 
     p = sub.add_parser("optimize", help="optimise parameters under constraints",
@@ -362,12 +454,12 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("design", nargs="?", help=design_help)
     p.add_argument("--vary", action="append", metavar="NAME=LOW:HIGH",
                    help="parameter and its bounds, repeatable (e.g. reverse_bias=0:20)")
-    p.add_argument("--objective", default="snr",
+    p.add_argument("--objective", default="snr", type=_objective,
                    help="figure to optimise, e.g. snr, nep, sensitivity_dbm, or max:NAME / "
                         "min:NAME (default: snr)")
     p.add_argument("--constraint", action="append", metavar="FIGURE>=VALUE",
                    help="e.g. 'bandwidth>=1 GHz', 'phase_margin>=60', repeatable")
-    p.add_argument("--grid-points", type=int, default=2000,
+    p.add_argument("--grid-points", type=_at_least(2), default=2000,
                    help="size of the coarse grid searched before refinement (default: 2000)")
     p.add_argument("--save", metavar="FILE", help="write the optimised design to a design file")
     p.add_argument("--trade-curve", metavar="FILE", help="write the trade curve against bias (CSV)")
@@ -403,7 +495,13 @@ def main(argv=None) -> int:
         if args.command is None:
             parser.print_help()
             return EXIT_USAGE
-        return args.func(args)
+        _check_outputs(args)
+        with warnings.catch_warnings(), np.errstate(all="ignore"):
+            # numpy's floating-point warnings are not for the user: a figure that is not
+            # finite is refused by the engine itself; photorx's own warnings get one line
+            warnings.simplefilter("ignore", RuntimeWarning)
+            warnings.showwarning = _show_warning
+            return args.func(args)
     except SystemExit as exc:  # --help and --version
         return exc.code if isinstance(exc.code, int) else EXIT_OK
     except UsageError as exc:
@@ -430,6 +528,19 @@ def main(argv=None) -> int:
         print(f"photorx: internal error: {type(exc).__name__}: {_one_line(exc)} "
               "(set PHOTORX_DEBUG=1 for details)", file=sys.stderr)
         return EXIT_FAILURE
+
+
+def _show_warning(message, category, filename, lineno, file=None, line=None):
+    print(f"photorx: warning: {_one_line(message)}", file=sys.stderr)
+
+
+def _check_outputs(args) -> None:
+    """An output path that is a directory is a usage error naming the path as given."""
+    for option in ("output", "save", "trade_curve"):
+        path = getattr(args, option, None)
+        if path not in (None, "-") and Path(path).is_dir():
+            raise UsageError(f"photorx {args.command}: --{option.replace('_', '-')} {path}: is "
+                             "a directory; give a file name")
 
 
 def _join_negative_values(argv: list) -> list:

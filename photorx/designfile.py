@@ -136,13 +136,75 @@ def _photodiode_factory(junction, **kwargs):
     return Photodiode(junction=junction, **kwargs)
 
 
+#: Deepest nesting of arrays and inline tables a design file may use (a wavelength table
+#: needs 2); deeper nesting would exhaust the TOML parser's recursion.
+MAX_NESTING = 16
+
+
+def _check_nesting(text: str, where: str) -> None:
+    """Refuse arrays or inline tables nested deeper than :data:`MAX_NESTING`, naming the key.
+
+    A linear scan that skips strings and comments; table headers (``[a.b]``, ``[[a]]``)
+    open no nesting.
+    """
+    section, key, depth, i, n = "", "", 0, 0, len(text)
+    line_start = True
+    while i < n:
+        c = text[i]
+        if c in "\"'":
+            quote = text[i:i + 3] if text[i:i + 3] in ('"""', "'''") else c
+            j = i + len(quote)
+            while j < n and not text.startswith(quote, j):
+                j += 2 if (c == '"' and text[j] == "\\") else 1
+            i, line_start = j + len(quote), False
+            continue
+        if c == "#":
+            i = text.find("\n", i)
+            i = n if i < 0 else i
+            continue
+        if c == "\n":
+            line_start = True
+        elif c in " \t\r":
+            pass
+        elif line_start and depth == 0 and c == "[":
+            end = text.find("\n", i)
+            section = text[i:n if end < 0 else end].strip("[] \t\r").split("]")[0].strip()
+            i = n if end < 0 else end
+            continue
+        elif line_start and depth == 0:
+            m = re.match(r"[^=\n]*", text[i:])
+            key = m.group(0).strip()
+            i += len(m.group(0))
+            line_start = False
+            continue
+        elif c in "[{":
+            depth += 1
+            if depth > MAX_NESTING:
+                place = f"[{section}] {key}" if section else key
+                raise DesignError(f"{where}{place}: arrays or tables nested deeper than "
+                                  f"{MAX_NESTING} levels; expected a value such as '5 pF'",
+                                  parameter=place)
+        elif c in "]}":
+            depth = max(depth - 1, 0)
+        if c != "\n":
+            line_start = line_start and c in " \t\r"
+        i += 1
+
+
 def loads_design(text: str, name: str = ""):
     """Build a :class:`~photorx.analysis.receiver.Receiver` from design-file text."""
     where = f"{name}: " if name else ""
+    _check_nesting(text, where)
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise DesignError(f"{where}not a valid TOML file ({exc})") from None
+    except (RecursionError, ValueError) as exc:  # an integer of 5,000 digits, ...
+        long = re.search(r"^[ \t]*([^=\n#]+?)[ \t]*=[ \t]*[-+]?[\d_]{1000,}", text, re.M)
+        place = f"{long.group(1)}: an integer of more than 1,000 digits; " if long else ""
+        raise DesignError(f"{where}{place}not a valid TOML file ({type(exc).__name__}: "
+                          f"{str(exc)[:80]})", parameter=long.group(1) if long else None
+                          ) from None
     return _build(read_design(doc, name), where)
 
 

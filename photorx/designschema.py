@@ -13,10 +13,12 @@ from __future__ import annotations
 
 import difflib
 import math
+import re
+import reprlib
 from dataclasses import dataclass
 
 from .errors import DesignError
-from .units import _dimension_name, parse_quantity
+from .units import _dimension_name, format_eng, parse_quantity
 
 __all__ = ["Key", "SCHEMA", "SECTIONS", "REQUIRED", "OMIT", "read_design", "section_keys"]
 
@@ -48,7 +50,10 @@ class Key:
         Unit the value is written in (``"nm"``, ``"cm^-3"``, ``"area"`` for um^2 or mm^2);
         None picks an engineering prefix of ``unit``.
     check : str
-        Range check: ``">0"``, ``">=0"``, ``"0..1"``, ``"(0..1]"``, ``"(0..0.5)"`` or ``""``.
+        Valid range of the SI value: an interval ``"[1e-12..1e-2]"`` (brackets inclusive,
+        parentheses exclusive; ``"[1..inf]"`` also admits infinity, any other bound
+        refuses it), a named check (``">0"``, ``">=0"``, ``"0..1"``, ``"(0..1]"``,
+        ``"(0..0.5)"``, ``"optical"``) or ``""``. Errors and the template show it.
     kind : str
         ``"quantity"``, ``"text"``, ``"integer"``, ``"list"`` (of quantities), ``"ratio"``
         (a plain number or decibels, ``"10 dB"``) or ``"table"`` (a quantity, or a list of
@@ -100,139 +105,161 @@ SCHEMA: tuple[Key, ...] = (
             "(Cj0/(1+Vr/Vj)^m, for datasheet numbers).", example="pin"),
     Key("photodiode.junction", "material", None, REQUIRED, kind="text", when=_PHYSICAL,
         doc="Semiconductor: Si, Ge, GaAs, InP or InGaAs (In0.53Ga0.47As).", example="Si"),
-    Key("photodiode.junction", "area", "m^2", REQUIRED, write="area", check=">0",
+    Key("photodiode.junction", "area", "m^2", REQUIRED, write="area", check="[1e-12..1e-2]",
         when=_PHYSICAL, doc="Junction (active) area.", example="(100 um)^2"),
-    Key("photodiode.junction", "na", "m^-3", REQUIRED, write="cm^-3", check=">0",
+    Key("photodiode.junction", "na", "m^-3", REQUIRED, write="cm^-3", check="[1e14..1e28]",
         when=("abrupt",), doc="Acceptor doping of the p side.", example="1e19 cm^-3"),
-    Key("photodiode.junction", "nd", "m^-3", REQUIRED, write="cm^-3", check=">0",
+    Key("photodiode.junction", "nd", "m^-3", REQUIRED, write="cm^-3", check="[1e14..1e28]",
         when=("abrupt",), doc="Donor doping of the n side.", example="1e15 cm^-3"),
-    Key("photodiode.junction", "i_thickness", "m", REQUIRED, write="um", check=">0",
+    Key("photodiode.junction", "i_thickness", "m", REQUIRED, write="um", check="[1e-9..1e-2]",
         when=("pin",), doc="Thickness of the intrinsic (absorbing) layer.", example="2 um"),
-    Key("photodiode.junction", "i_doping", "m^-3", REQUIRED, write="cm^-3", check=">0",
+    Key("photodiode.junction", "i_doping", "m^-3", REQUIRED, write="cm^-3", check="[1e14..1e28]",
         when=("pin",), doc="Residual doping of the intrinsic layer.", example="1e14 cm^-3"),
-    Key("photodiode.junction", "p_doping", "m^-3", REQUIRED, write="cm^-3", check=">0",
+    Key("photodiode.junction", "p_doping", "m^-3", REQUIRED, write="cm^-3", check="[1e14..1e28]",
         when=("pin",), doc="Doping of the p contact layer.", example="1e19 cm^-3"),
-    Key("photodiode.junction", "n_doping", "m^-3", REQUIRED, write="cm^-3", check=">0",
+    Key("photodiode.junction", "n_doping", "m^-3", REQUIRED, write="cm^-3", check="[1e14..1e28]",
         when=("pin",), doc="Doping of the n contact layer.", example="1e19 cm^-3"),
-    Key("photodiode.junction", "gradient", "m^-4", REQUIRED, write="cm^-4", check=">0",
+    Key("photodiode.junction", "gradient", "m^-4", REQUIRED, write="cm^-4", check="[1e20..1e36]",
         when=("graded",), doc="Net doping gradient.", example="1e20 cm^-4"),
-    Key("photodiode.junction", "cj0", "F", REQUIRED, check=">0", when=("parametric",),
+    Key("photodiode.junction", "cj0", "F", REQUIRED, check="(0..1e-6]", when=("parametric",),
         doc="Zero-bias junction capacitance.", example="1 pF"),
-    Key("photodiode.junction", "vj", "V", REQUIRED, check=">0", when=("parametric",),
+    Key("photodiode.junction", "vj", "V", REQUIRED, check="(0..10]", when=("parametric",),
         doc="Junction potential.", example="0.7 V"),
-    Key("photodiode.junction", "m", "", REQUIRED, when=("parametric",),
+    Key("photodiode.junction", "m", "", REQUIRED, when=("parametric",), check="[0..2]",
         doc="Grading coefficient, 0 to 2 (0.5 abrupt, 1/3 graded, 0 fixed capacitance).",
         example="0.5"),
-    Key("photodiode.junction", "fc", "", 0.5, when=("parametric",),
+    Key("photodiode.junction", "fc", "", 0.5, when=("parametric",), check="[0..0.95]",
         doc="Forward-bias linearisation point as a fraction of vj, 0 to 0.95.", example="0.5"),
     Key("photodiode.junction", "temperature", "K", None, write="K", check=">0", when=_PHYSICAL,
         doc="Junction temperature when it differs from the operating point's.",
         example="300 K"),
     # -- photodiode (beyond its junction); absent keys keep the Photodiode defaults -----------
     Key("photodiode", "responsivity", "A/W", OMIT, argument="given_responsivity", write="A/W",
-        kind="table", check=">=0",
+        kind="table", check="[0..10]",
         doc="Given responsivity instead of the absorption model: a number, or a table of "
             "[wavelength, responsivity] pairs (required with the parametric junction).",
         example="0.9 A/W"),
     Key("photodiode", "reflectance", "", OMIT, check="0..1",
         doc="Front power reflectance (default: bare surface of the material).",
         example="0.03"),
-    Key("photodiode", "top_thickness", "m", OMIT, write="um", check=">=0",
+    Key("photodiode", "top_thickness", "m", OMIT, write="um", check="[0..1e-2]",
         doc="Undepleted absorbing layer above the depletion layer (default 0.3 um; 0 for a "
             "transparent window).", example="0.2 um"),
-    Key("photodiode", "absorber_thickness", "m", OMIT, write="um", check=">0",
+    Key("photodiode", "absorber_thickness", "m", OMIT, write="um", check="[1e-9..inf]",
         doc="Absorbing material below the top layer (default inf: thick substrate).",
         example="2 um"),
-    Key("photodiode", "top_diffusion_length", "m", OMIT, write="um", check=">0",
+    Key("photodiode", "top_diffusion_length", "m", OMIT, write="um", check="[1e-9..1e-2]",
         doc="Minority-carrier diffusion length in the top layer (default 1 um).",
         example="1 um"),
-    Key("photodiode", "lifetime", "s", OMIT, check=">0",
+    Key("photodiode", "lifetime", "s", OMIT, check="[1e-15..1]",
         doc="Minority-carrier lifetime in the undepleted bottom layer (default by material).",
         example="1 us"),
-    Key("photodiode", "generation_lifetime", "s", OMIT, check=">0",
+    Key("photodiode", "generation_lifetime", "s", OMIT, check="[1e-15..1]",
         doc="Generation lifetime of the depletion layer (default by material).",
         example="1 ms"),
-    Key("photodiode", "leakage_resistance", "ohm", OMIT, check=">0",
+    Key("photodiode", "leakage_resistance", "ohm", OMIT, check="[1..inf]",
         doc="Ohmic surface leakage resistance (default inf).", example="100 Gohm"),
-    Key("photodiode", "series_resistance", "ohm", OMIT, check=">=0",
+    Key("photodiode", "series_resistance", "ohm", OMIT, check="[0..1e6]",
         doc="Series resistance (default 10 ohm).", example="10 ohm"),
-    Key("photodiode", "package_capacitance", "F", OMIT, check=">=0",
+    Key("photodiode", "package_capacitance", "F", OMIT, check="[0..1e-9]",
         doc="Package and pad capacitance in parallel with the junction (default 0).",
         example="0.1 pF"),
     Key("photodiode", "illuminated_side", None, OMIT, kind="text", choices=("p", "n"),
         doc="Doping type of the illuminated top layer (default p, p-on-n).", example="p"),
-    Key("photodiode", "intrinsic_bandwidth", "Hz", OMIT, check=">0",
+    Key("photodiode", "intrinsic_bandwidth", "Hz", OMIT, check="[1..1e13]",
         doc="Given intrinsic (transit) bandwidth replacing the transit model.",
         example="5 GHz"),
-    Key("photodiode", "dark_current", "A", OMIT, argument="reference_dark_current", check=">0",
+    Key("photodiode", "dark_current", "A", OMIT, argument="reference_dark_current",
+        check="[1e-18..1e-2]",
         doc="Measured dark current at dark_current_bias (replaces the dark-current model).",
         example="1 nA"),
-    Key("photodiode", "dark_current_bias", "V", OMIT, argument="reference_bias",
+    Key("photodiode", "dark_current_bias", "V", OMIT, argument="reference_bias", check="[0..1e4]",
         doc="Reverse bias of the measured dark current.", example="5 V"),
     Key("photodiode", "shunt_resistance", "ohm", OMIT, argument="zero_bias_resistance",
-        check=">0", doc="Measured zero-bias shunt resistance R0.", example="1 Gohm"),
+        check="[1..inf]", doc="Measured zero-bias shunt resistance R0.", example="1 Gohm"),
+    Key("photodiode", "coating_index", "", OMIT, check="[1..5]",
+        doc="Index of a single-layer anti-reflection coating (default none: bare surface).",
+        example="1.9"),
+    Key("photodiode", "coating_thickness", "m", OMIT, write="nm", check="[0..1e-5]",
+        doc="Coating thickness (default quarter-wave at coating_wavelength).", example="110 nm"),
+    Key("photodiode", "coating_wavelength", "m", OMIT, write="nm", check="optical",
+        doc="Design wavelength of the quarter-wave coating.", example="850 nm"),
+    Key("photodiode", "reference_temperature", "K", OMIT, write="K", check="[50..600]",
+        doc="Temperature of the datasheet values (parametric junction; default 300 K).",
+        example="298 K"),
+    Key("photodiode", "band_gap", "eV", OMIT, check="[0.1..10]",
+        doc="Band gap for rescaling datasheet values with temperature.", example="1.12 eV"),
     # -- amplifier -----------------------------------------------------------------------------
-    Key("amplifier", "gbw", "Hz", REQUIRED, check=">0", doc="Gain-bandwidth product.",
+    Key("amplifier", "gbw", "Hz", REQUIRED, check="[1e3..1e12]", doc="Gain-bandwidth product.",
         example="1 GHz"),
-    Key("amplifier", "dc_gain", "", 1e5, check=">0", doc="DC open-loop gain [V/V].",
+    Key("amplifier", "dc_gain", "", 1e5, check="[1..1e10]", doc="DC open-loop gain [V/V].",
         example="1e5"),
-    Key("amplifier", "poles", "Hz", (), kind="list", check=">0",
+    Key("amplifier", "poles", "Hz", (), kind="list", check="[1e3..1e13]",
         doc="Extra poles beyond the dominant one.", example='["3 GHz"]'),
-    Key("amplifier", "voltage_noise", "V/rtHz", REQUIRED, check=">=0",
+    Key("amplifier", "voltage_noise", "V/rtHz", REQUIRED, check="[0..1e-6]",
         doc="White input voltage noise density.", example="5 nV/rtHz"),
-    Key("amplifier", "current_noise", "A/rtHz", REQUIRED, check=">=0",
+    Key("amplifier", "current_noise", "A/rtHz", REQUIRED, check="[0..1e-9]",
         doc="White input current noise density.", example="2 pA/rtHz"),
-    Key("amplifier", "voltage_noise_corner", "Hz", 0.0, check=">=0",
+    Key("amplifier", "voltage_noise_corner", "Hz", 0.0, check="[0..1e9]",
         doc="1/f corner of the voltage noise (0 = none).", example="10 kHz"),
-    Key("amplifier", "current_noise_corner", "Hz", 0.0, check=">=0",
+    Key("amplifier", "current_noise_corner", "Hz", 0.0, check="[0..1e9]",
         doc="1/f corner of the current noise (0 = none).", example="1 kHz"),
-    Key("amplifier", "input_capacitance", "F", 0.0, check=">=0",
+    Key("amplifier", "input_capacitance", "F", 0.0, check="[0..1e-9]",
         doc="Common-mode plus differential input capacitance.", example="1 pF"),
-    Key("amplifier", "output_swing", "V", 2.0, check=">0",
+    Key("amplifier", "output_swing", "V", 2.0, check="(0..1000]",
         doc="Largest output magnitude before clipping.", example="1.5 V"),
     # -- feedback ------------------------------------------------------------------------------
-    Key("feedback", "rf", "ohm", REQUIRED, check=">0", doc="Feedback resistance.",
+    Key("feedback", "rf", "ohm", REQUIRED, check="[1..1e15]", doc="Feedback resistance.",
         example="10 kohm"),
-    Key("feedback", "cf", "F", REQUIRED, check=">=0",
+    Key("feedback", "cf", "F", REQUIRED, check="[0..1e-6]",
         doc="Feedback capacitance (include the resistor's parasitic).", example="0.2 pF"),
     # -- operating point -----------------------------------------------------------------------
-    Key("operating_point", "reverse_bias", "V", REQUIRED,
+    Key("operating_point", "reverse_bias", "V", REQUIRED, check="[-1..1e4]",
         doc="Reverse bias across the photodiode (negative = forward).", example="5 V"),
     Key("operating_point", "wavelength", "m", REQUIRED, write="nm", check="optical",
         doc="Signal wavelength.", example="1310 nm"),
-    Key("operating_point", "optical_power", "W", REQUIRED, check=">=0",
+    Key("operating_point", "optical_power", "W", REQUIRED, check="[0..1]",
         doc="Average optical signal power at the photodiode (W or dBm).", example="-20 dBm"),
     Key("operating_point", "temperature", "K", 300.0, write="K", check=">0",
         doc="Device temperature (K or degC).", example="300 K"),
-    Key("operating_point", "background_power", "W", 0.0, check=">=0",
+    Key("operating_point", "background_power", "W", 0.0, check="[0..1]",
         doc="Background (ambient) optical power.", example="0 W"),
     # -- signal --------------------------------------------------------------------------------
     Key("signal", "modulation_depth", "", 1.0, check="(0..1]",
         doc="Analog modulation depth of the signal.", example="1.0"),
-    Key("signal", "bit_rate", "bit/s", None, check=">0",
+    Key("signal", "bit_rate", "bit/s", None, check="[1..1e12]",
         doc="Bit rate of a digital receiver (enables the BER sensitivity).",
         example="10 Gbit/s"),
-    Key("signal", "extinction_ratio", "", math.inf, kind="ratio", check=">1",
+    Key("signal", "extinction_ratio", "", math.inf, kind="ratio", check="(1..inf]",
         doc="Extinction ratio P1/P0 (a number or decibels).", example="10 dB"),
-    Key("signal", "target_ber", "", 1e-12, check="(0..0.5)", doc="Target bit-error ratio.",
+    Key("signal", "target_ber", "", 1e-12, check="[1e-30..0.5)", doc="Target bit-error ratio.",
         example="1e-12"),
     # -- optional post filter ------------------------------------------------------------------
     Key("post_filter", "kind", None, REQUIRED, kind="text",
         choices=("butterworth", "bessel", "brickwall"), doc="Filter family.",
         example="bessel"),
     Key("post_filter", "order", None, 4, kind="integer", doc="Order 1 to 6.", example="4"),
-    Key("post_filter", "cutoff", "Hz", REQUIRED, check=">0", doc="-3 dB frequency.",
+    Key("post_filter", "cutoff", "Hz", REQUIRED, check="[1e-3..1e12]", doc="-3 dB frequency.",
         example="7 GHz"),
     # -- optional limits -----------------------------------------------------------------------
-    Key("limits", "max_dark_current", "A", None, check=">0",
+    Key("limits", "max_dark_current", "A", None, check="(0..1]",
         doc="Largest acceptable dark current.", example="10 nA"),
-    Key("limits", "max_bias", "V", None, check=">0",
+    Key("limits", "max_bias", "V", None, check="(0..1e4]",
         doc="Largest bias the supply provides.", example="20 V"),
-    Key("limits", "max_bias_power", "W", None, check=">0",
+    Key("limits", "max_bias_power", "W", None, check="(0..10]",
         doc="Largest power the bias supply may deliver to the diode (bias times current).",
         example="1 mW"),
+    # common practice for a feedback loop: phase margin >= 45 deg, peaking <= 3 dB
+    Key("limits", "min_phase_margin", "deg", OMIT, check="[0..180]",
+        doc="Smallest acceptable phase margin of the feedback loop (default 45 deg).",
+        example="45 deg"),
+    Key("limits", "max_peaking", "dB", OMIT, check="[0..60]",
+        doc="Largest acceptable closed-loop peaking (default 3 dB).", example="3 dB"),
+    Key("limits", "max_overshoot", "", None, check="(0..10]",
+        doc="Largest acceptable step overshoot, a fraction of the final value.",
+        example="0.2"),
     # -- optional analysis settings ------------------------------------------------------------
-    Key("analysis", "noise_band_low", "Hz", 1.0, check=">0",
+    Key("analysis", "noise_band_low", "Hz", 1.0, check="[1e-6..1e9]",
         doc="Lower edge of the noise integration (1/f noise diverges at 0 Hz).",
         example="1 Hz"),
 )
@@ -295,18 +322,82 @@ def _expected(key: Key) -> str:
         return "one of " + ", ".join(repr(c) for c in key.choices) if key.choices else "text"
     if key.kind == "integer":
         return "an integer"
+    valid = f" ({_range_text(key)})" if key.check in _INTERVALS else ""
     if key.kind == "list":
-        return f"a list, each {_dimension_name(key.unit)} in {key.unit}, e.g. {key.example}"
+        return (f"a list, each {_dimension_name(key.unit)} in {key.unit}{valid}, "
+                f"e.g. {key.example}")
     if key.kind == "table":
-        return (f"{_dimension_name(key.unit)} in {key.unit} such as '{key.example}', or a "
-                "list of [wavelength, value] pairs")
+        return (f"{_dimension_name(key.unit)} in {key.unit}{valid} such as '{key.example}', "
+                "or a list of [wavelength, value] pairs")
     if key.kind == "ratio":
-        return f"a number or decibels, e.g. '{key.example}'"
+        return f"a number or decibels{valid}, e.g. '{key.example}'"
     if key.unit == "":
-        return f"a plain number, e.g. {key.example}"
+        return f"a plain number{valid}, e.g. {key.example}"
     if key.unit == "bit/s":
-        return f"a bit rate in bit/s, e.g. '{key.example}'"
-    return f"{_dimension_name(key.unit)} in {key.unit}, e.g. '{key.example}'"
+        return f"a bit rate in bit/s{valid}, e.g. '{key.example}'"
+    return f"{_dimension_name(key.unit)} in {key.unit}{valid}, e.g. '{key.example}'"
+
+
+_INTERVAL = re.compile(r"^([\[(])(-?[\d.e+-]+|-?inf)\.\.(-?[\d.e+-]+|inf)([\])])$")
+#: Units shown in a range as the file writes them (SI factor of one of that unit).
+_SHOWN_IN = {"cm^-3": 1e6, "cm^-4": 1e8, "K": 1.0, "A/W": 1.0}
+
+
+def _interval(check: str):
+    """``"(0..1e-2]"`` -> (test, None); the range text depends on the key (its unit)."""
+    m = _INTERVAL.match(check)
+    if not m:
+        raise ValueError(f"schema check {check!r} is not an interval such as '[1e-12..1e-2]'")
+    lo, hi = float(m.group(2)), float(m.group(3))
+    lo_in, hi_in = m.group(1) == "[", m.group(4) == "]"
+
+    def test(v, lo=lo, hi=hi, lo_in=lo_in, hi_in=hi_in):
+        return (v >= lo if lo_in else v > lo) and (v <= hi if hi_in else v < hi)
+
+    return test, None
+
+
+def _bounds(check: str):
+    m = _INTERVAL.match(check)
+    return float(m.group(2)), float(m.group(3)), m.group(1) == "[", m.group(4) == "]"
+
+
+def _show(key: Key, value: float) -> str:
+    """A range bound in the unit a designer writes for this key."""
+    if math.isinf(value):
+        return "inf"
+    if key.unit == "":
+        return f"{value:g}"
+    write = key.write
+    if write == "area":
+        write = "um^2" if value < 1e-6 else ("mm^2" if value < 1e-4 else "cm^2")
+        return f"{value / {'um^2': 1e-12, 'mm^2': 1e-6, 'cm^2': 1e-4}[write]:g} {write}"
+    if write in _SHOWN_IN:
+        return f"{value / _SHOWN_IN[write]:g} {write}"
+    return format_eng(value, key.unit)
+
+
+def _range_text(key: Key) -> str:
+    """The valid range of an interval-checked key, e.g. ``">= 1 kHz and <= 1 THz"``."""
+    lo, hi, lo_in, hi_in = _bounds(key.check)
+    if math.isinf(hi) and hi_in:
+        return f"{'>=' if lo_in else '>'} {_show(key, lo)}, or inf"
+    return (f"{'>=' if lo_in else '>'} {_show(key, lo)} and {'<=' if hi_in else '<'} "
+            f"{_show(key, hi)}")
+
+
+def _allows_inf(key: Key) -> bool:
+    return key.check in _INTERVALS and math.isinf(_bounds(key.check)[1]) and \
+        _bounds(key.check)[3]
+
+
+#: Raw values in messages: short, whatever their size or nesting.
+_REPR = reprlib.Repr()
+_REPR.maxlevel, _REPR.maxstring, _REPR.maxother, _REPR.maxlist, _REPR.maxdict = 3, 60, 60, 4, 4
+
+
+def _shown(raw) -> str:
+    return _REPR.repr(raw)
 
 
 _CHECKS = {
@@ -322,6 +413,11 @@ _CHECKS = {
 }
 #: checks whose range text already carries its unit
 _CHECKS_WITH_UNIT = frozenset({"optical"})
+#: interval checks of the schema rows, added to the named ones
+_INTERVALS = frozenset(k.check for k in SCHEMA if k.check and k.check not in _CHECKS)
+_CHECKS.update({check: _interval(check) for check in _INTERVALS})
+#: Largest size of a ratio in decibels (10^30 either way is beyond any receiver).
+_MAX_DB = 300.0
 
 
 def _parse_value(key: Key, raw, source: str):
@@ -329,25 +425,25 @@ def _parse_value(key: Key, raw, source: str):
     prefix = f"{source}{key.where}"
     if key.kind == "text":
         if not isinstance(raw, str):
-            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+            raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}", parameter=key.where)
         value = raw.strip()
         if key.choices and value.lower() not in key.choices:
-            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}"
+            raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}"
                               f"{_suggest(value.lower(), key.choices)}", parameter=key.where)
         return value.lower() if key.choices else value
     if key.kind == "integer":
         if isinstance(raw, bool) or not isinstance(raw, int):
-            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+            raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}", parameter=key.where)
         return int(raw)
     if key.kind == "list":
         if not isinstance(raw, list):
-            raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+            raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}", parameter=key.where)
         return tuple(_parse_scalar(key, item, prefix) for item in raw)
     if key.kind == "table" and isinstance(raw, list):
         pairs = []
         for item in raw:
             if not (isinstance(item, list) and len(item) == 2):
-                raise DesignError(f"{prefix} = {raw!r}: expected a list of [wavelength, "
+                raise DesignError(f"{prefix} = {_shown(raw)}: expected a list of [wavelength, "
                                   f"value] pairs, e.g. [[\"850 nm\", \"{key.example}\"]]",
                                   parameter=key.where)
             wl = _parse_scalar(Key(key.section, key.name, "m", check=">0", example="850 nm"),
@@ -356,13 +452,16 @@ def _parse_value(key: Key, raw, source: str):
         return tuple(p[0] for p in pairs), tuple(p[1] for p in pairs)
     if key.kind == "ratio" and isinstance(raw, str) and raw.strip().endswith("dB"):
         db = _parse_scalar(Key(key.section, key.name, ""), raw.strip()[:-2], prefix)
+        if not abs(db) <= _MAX_DB:
+            raise DesignError(f"{prefix} = {_shown(raw)}: decibels beyond -{_MAX_DB:g} to "
+                              f"{_MAX_DB:g} dB; expected {_expected(key)}", parameter=key.where)
         return _checked(key, 10.0 ** (db / 10.0), prefix)
     return _parse_scalar(key, raw, prefix)
 
 
 def _parse_scalar(key: Key, raw, prefix: str) -> float:
     if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
-        raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+        raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}", parameter=key.where)
     try:
         value = parse_quantity(raw, key.unit or None)
     except DesignError as exc:
@@ -372,7 +471,7 @@ def _parse_scalar(key: Key, raw, prefix: str) -> float:
         raise DesignError(f"{prefix}: {text}", parameter=key.where) from None
     if key.unit == "" and isinstance(raw, str) and not _is_plain_number(raw):
         # parse_quantity without a unit accepts any dimension; a plain number must be plain
-        raise DesignError(f"{prefix} = {raw!r}: expected {_expected(key)}", parameter=key.where)
+        raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}", parameter=key.where)
     if math.isnan(value):
         raise DesignError(f"{prefix} = nan: expected {_expected(key)}", parameter=key.where)
     return _checked(key, value, prefix, raw)
@@ -399,11 +498,12 @@ def _checked(key: Key, value: float, prefix: str, raw=None) -> float:
                 if plain else "")
         raise DesignError(f"{prefix} = {value:.6g} {key.unit} is implausibly large for a "
                           f"photodiode receiver (at most {limit[1]}){hint}", parameter=key.where)
-    if key.check:
-        ok, text = _CHECKS[key.check]
-        if not ok(value):
+    if key.check or (key.unit is not None and not math.isfinite(value)):
+        ok, text = _CHECKS.get(key.check, (None, "finite numbers"))
+        if ok is None or not ok(value) or (math.isinf(value) and not _allows_inf(key)):
             unit = f" {key.unit}" if key.unit else ""
-            valid = text if key.check in _CHECKS_WITH_UNIT else f"{text}{unit}"
+            valid = (_range_text(key) if text is None else text
+                     if key.check in _CHECKS_WITH_UNIT or ok is None else f"{text}{unit}")
             hint = ""
             if key.unit and (isinstance(raw, (int, float)) or
                              (isinstance(raw, str) and _is_plain_number(raw))):

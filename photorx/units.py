@@ -198,11 +198,48 @@ def _dimension_name(units) -> str:
 
 def _parse_units(text: str, raw: str):
     ureg = _registry()
+    _guard_expression(text, raw)
     try:
         return ureg.Unit(_clean_unit(text))
     except Exception as exc:  # pint raises several unrelated types
         raise DesignError(f"cannot read '{raw}' as a quantity (unknown unit '{text}': {exc}); "
                           "write e.g. '2.2 pF'") from None
+
+
+#: Limits on what reaches pint: its parser evaluates powers exactly (``9**9**9`` would run
+#: for hours), so exponents are plain numbers of modest size, and expressions are short.
+MAX_EXPRESSION_LENGTH = 80
+MAX_EXPONENT = 6
+MAX_PARENTHESES = 4
+MAX_DBM = 300.0
+_EXPONENT = re.compile(r"\s*(\()?\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:\s*/\s*\d+)?)\s*(\))?")
+
+
+def _guard_expression(text: str, raw: str) -> None:
+    """Refuse expressions that would stall or overflow the units parser (DesignError)."""
+    if len(raw) > MAX_EXPRESSION_LENGTH:
+        raise DesignError(f"cannot read '{raw[:40]}...' as a quantity: longer than "
+                          f"{MAX_EXPRESSION_LENGTH} characters; write e.g. '2.2 pF'")
+    depth = deepest = 0
+    for char in text:
+        depth += {"(": 1, ")": -1}.get(char, 0)
+        deepest = max(deepest, depth)
+    if deepest > MAX_PARENTHESES:
+        raise DesignError(f"cannot read '{raw}' as a quantity: parentheses nested deeper than "
+                          f"{MAX_PARENTHESES}; write e.g. '(100 um)^2'")
+    cleaned = _clean_unit(text)
+    for match in re.finditer(r"\*\*", cleaned):
+        power = _EXPONENT.match(cleaned, match.end())
+        rest = cleaned[power.end():].lstrip() if power else ""
+        ok = (power is not None and (power.group(1) is None) == (power.group(3) is None)
+              and not rest.startswith("**"))
+        if ok:
+            num, _, den = power.group(2).partition("/")
+            ok = abs(float(num) / (float(den) if den.strip() else 1.0)) <= MAX_EXPONENT
+        if not ok:
+            raise DesignError(f"cannot read '{raw}' as a quantity: an exponent must be a plain "
+                              f"number from -{MAX_EXPONENT} to {MAX_EXPONENT} (as in 'cm^-3' or "
+                              "'(100 um)^2')")
 
 
 def _exact_scale(number: str, factor: float) -> float:
@@ -211,15 +248,85 @@ def _exact_scale(number: str, factor: float) -> float:
     ``"2.2 pF"`` gives the float nearest to 2.2e-12 (as the literal ``2.2e-12`` does),
     not ``2.2 * 1e-12``; this makes written design files read back bit for bit.
     """
-    if factor > 0:
+    if factor > 0 and math.isfinite(float(number)):
         k = round(math.log10(factor))
         if abs(factor / 10.0 ** k - 1.0) < 1e-12:
-            return float(Decimal(number).scaleb(k))
+            try:
+                return float(Decimal(number).scaleb(k))
+            except ArithmeticError:  # beyond Decimal's exponent range: the float answer
+                pass
     return float(number) * factor
+
+
+def _counting_units(units) -> list[str]:
+    """Names in a unit that pint treats as dimensionless counts (bit, rad, cycle, percent)."""
+    ureg = _registry()
+    out = []
+    for name in units._units:
+        if ureg.Quantity(1.0, name).dimensionless and name != "dimensionless":
+            out.append(name)
+    return out
+
+
+def _same_kind(source, target, raw: str, unit: str) -> None:
+    """Refuse a bit rate given for a frequency and the other way round (pint equates them).
+
+    pint reads ``bit`` and ``radian`` as dimensionless, so ``"1.2 bit/s"`` would pass as
+    1.2 Hz and ``"1 kcycle/s"`` as 6.28 kHz; for photorx a bit rate is not a frequency.
+    """
+    ureg = _registry()
+    wants_bits = "bit" in ureg.Quantity(1.0, target).to_base_units().units._units
+    base = ureg.Quantity(1.0, source).to_base_units().units._units
+    if wants_bits:
+        if "bit" not in base:
+            raise DesignError(f"'{raw}' is not a bit rate; write it in bit/s, e.g. '10 Gbit/s'")
+        return
+    counts = _counting_units(source)
+    if counts and not _counting_units(target):
+        what = "a bit rate" if "bit" in base else f"a quantity in '{', '.join(counts)}'"
+        raise DesignError(f"'{raw}' is {what}, not {_dimension_name(target)} in {unit}")
 
 
 _BARE_PREFIXES = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "k": 1e3, "M": 1e6,
                   "G": 1e9, "T": 1e12}
+
+
+_PLAIN_PREFIXES = {"": 1.0, "m": 1e-3, "c": 1e-2, **_BARE_PREFIXES}
+
+
+def _parse_plain(raw: str, unit: str | None):
+    """``"<number> <prefix><unit>"`` in exactly the expected unit, without pint; else None.
+
+    Most design-file values look like this ("10 kohm", "0.3 pF", "4 nV/rtHz"); reading them
+    without the units library keeps the command line fast (pint takes about 0.4 s to load).
+    A power of one unit (``m^-3``) takes the prefix to that power (``cm^-3`` = 1e6 m^-3);
+    anything else - other units, offsets, dimension errors - goes the general way.
+    """
+    match = re.fullmatch(rf"({_NUMBER})\s*(\S*)", raw)
+    if not match:
+        return None
+    if not match.group(2):
+        return float(match.group(1))  # bare number: SI already
+    if not math.isfinite(float(match.group(1))):
+        return None  # overflowing numbers are named by the general path
+    if unit == "W" and match.group(2).lower() == "dbm":
+        if not abs(float(match.group(1))) <= MAX_DBM:
+            return None  # out of range: the general path names the limits
+        return float(dbm_to_watt(float(match.group(1))))
+    if unit is None or unit == "degC":
+        return None
+    written = _clean_unit(match.group(2))
+    if unit == "K":  # offset scales (degC) go the general way
+        return float(match.group(1)) if written == "K" else None
+    power = re.fullmatch(r"([A-Za-z]+)(?:\^|\*\*)(-?\d+)", unit)
+    base, exponent = (power.group(1), int(power.group(2))) if power else (unit, 1)
+    suffix = base if exponent == 1 else f"{base}**{exponent}"
+    if not power and ("^" in unit or "**" in unit):
+        return None
+    if not written.endswith(suffix):
+        return None
+    factor = _PLAIN_PREFIXES.get(written[: len(written) - len(suffix)])
+    return None if factor is None else _exact_scale(match.group(1), factor ** exponent)
 
 
 def parse_quantity(text, unit: str | None = None) -> float:
@@ -249,10 +356,18 @@ def parse_quantity(text, unit: str | None = None) -> float:
         Unparseable text or wrong dimension; the message names both.
     """
     if isinstance(text, (int, float, np.integer, np.floating)) and not isinstance(text, bool):
-        return float(text)
+        try:
+            return float(text)
+        except OverflowError:  # an integer beyond the float range
+            digits = int(int(text).bit_length() * math.log10(2)) + 1  # str() may refuse it
+            raise DesignError(f"cannot read an integer of about {digits} digits as a quantity: "
+                              "beyond the range of floating-point numbers") from None
     if not isinstance(text, str):
         raise DesignError(f"cannot read {text!r} as a quantity; write e.g. '2.2 pF'")
     raw = text.strip()
+    fast = _parse_plain(raw, unit)
+    if fast is not None:
+        return fast
     ureg = _registry()
     target = None if unit is None else _parse_units(unit, unit)
     match = re.fullmatch(rf"({_NUMBER})\s*(.*)", raw)
@@ -263,6 +378,9 @@ def parse_quantity(text, unit: str | None = None) -> float:
         # the unit is the expected one (pint alone would read "k" as Boltzmann's constant).
         return _exact_scale(match.group(1), _BARE_PREFIXES[match.group(2).strip()])
     if match and match.group(2).strip().lower() == "dbm":  # "dbm", "DBM" are slips for dBm
+        if not abs(float(match.group(1))) <= MAX_DBM:
+            raise DesignError(f"'{raw}' is beyond the range of a power in dBm "
+                              f"(-{MAX_DBM:g} to {MAX_DBM:g} dBm)")
         watts = float(dbm_to_watt(float(match.group(1))))
         if target is None:
             return watts
@@ -276,22 +394,39 @@ def parse_quantity(text, unit: str | None = None) -> float:
         if not raw.startswith("("):
             raise DesignError(f"cannot read '{raw}' as a quantity (no leading number); "
                               "write e.g. '2.2 pF'")
+        _guard_expression(raw, raw)
         try:
-            qty = ureg.Quantity(_clean_unit(raw))
+            with np.errstate(all="ignore"):
+                qty = ureg.Quantity(_clean_unit(raw))
+        except OverflowError:
+            raise DesignError(f"cannot read '{raw}' as a quantity: the value overflows; "
+                              "write e.g. '(100 um)^2'") from None
         except Exception as exc:
             raise DesignError(f"cannot read '{raw}' as a quantity ({exc}); write e.g. '2.2 pF'"
                               ) from None
         if not isinstance(qty, ureg.Quantity):
             return float(qty)
-        number, source = repr(float(qty.magnitude)), qty.units
+        try:
+            number, source = repr(float(qty.magnitude)), qty.units
+        except (TypeError, ValueError, OverflowError) as exc:
+            raise DesignError(f"cannot read '{raw}' as a quantity ({exc}); write e.g. '2.2 pF'"
+                              ) from None
     if target is None:
         target = ureg.Quantity(1.0, source).to_base_units().units
     if ureg.Quantity(1.0, source).dimensionality != ureg.Quantity(1.0, target).dimensionality:
         raise DesignError(f"'{raw}' is {_dimension_name(source)} but {_dimension_name(target)} "
                           f"in {unit} was expected")
+    if unit and not ureg.Quantity(1.0, target).dimensionless:
+        _same_kind(source, target, raw, unit)
     try:
-        if ureg.Quantity(0.0, source).to(target).magnitude != 0.0:  # offset unit (degC)
-            return float(ureg.Quantity(float(number), source).to(target).magnitude)
+        with np.errstate(all="ignore"):  # a logarithmic unit may overflow: "1e300 dB"
+            if ureg.Quantity(0.0, source).to(target).magnitude != 0.0:  # offset unit (degC)
+                value = float(ureg.Quantity(float(number), source).to(target).magnitude)
+                if math.isfinite(float(number)) and not math.isfinite(value):
+                    raise DesignError(f"cannot read '{raw}' as a quantity: the value overflows")
+                return value
         return _exact_scale(number, float(ureg.Quantity(1.0, source).to(target).magnitude))
+    except DesignError:
+        raise
     except Exception as exc:
         raise DesignError(f"cannot convert '{raw}' to {unit} ({exc})") from None

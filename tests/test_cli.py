@@ -357,3 +357,230 @@ def test_template_documents_other_junction_models(capsys, tmp_path):
     code, out, err = run(capsys, "budget", str(path))
     assert code == 0, err
     assert "depletion width" in out
+
+
+# -- limits and checks (issue 11) ----------------------------------------------------------------
+def _design_file(tmp_path, name, **changes):
+    """The embedded demo with fields changed, written as a design file."""
+    import dataclasses
+
+    from photorx.designfile import demo_receiver, dumps_design
+
+    rx = demo_receiver()
+    tia_changes = {k: changes.pop(k) for k in ("cf",) if k in changes}
+    if tia_changes:
+        changes["tia"] = dataclasses.replace(rx.tia, **tia_changes)
+    path = tmp_path / f"{name}.toml"
+    path.write_text(dumps_design(dataclasses.replace(rx, **changes)))
+    return path
+
+
+def test_optimize_honours_the_design_limits_as_python_does(capsys, tmp_path):
+    from photorx import demo_receiver, optimize
+    from photorx.designfile import load_design
+
+    saved = tmp_path / "opt.toml"
+    code, out, err = run(capsys, "optimize", "--vary", "reverse_bias=0:20", "--objective", "snr",
+                         "--constraint", "bandwidth>=900 MHz", "--grid-points", "200",
+                         "--save", str(saved))
+    assert code == 0, err
+    cli_bias = load_design(saved).reverse_bias
+    assert cli_bias <= 10.0  # the design's supply limit (max_bias = 10 V), not 20 V
+    assert "max_bias = 10 V" in out and "[design limit]" in out
+    # the same answer as the Python optimiser with the same design and limits
+    res = optimize(demo_receiver(), vary={"reverse_bias": (0.0, 20.0)}, objective="snr",
+                   constraints={"bandwidth": (">=", 900e6)}, grid_points=200)
+    assert cli_bias == pytest.approx(res.parameters["reverse_bias"], rel=1e-3)
+    # a flat objective is named, with the least bias for the same result
+    assert res.flat and "flat objective" in out
+    low = re.search(r"least bias.*\n\s+reverse_bias = ([\d.]+) (m?)V", out)
+    assert low, out
+    value = float(low.group(1)) * (1e-3 if low.group(2) == "m" else 1.0)
+    assert value == pytest.approx(res.low_bias_parameters["reverse_bias"], rel=1e-2)
+
+
+@pytest.mark.parametrize("changes, words", [
+    ({"cf": 6e-15}, ["phase margin", "peaking"]),        # phase margin about 10 deg
+    ({"optical_power": 1e-3}, ["average photocurrent", "largest photocurrent"]),  # 0 dBm: clipped
+])
+def test_budget_warns_once_for_every_failed_check(capsys, tmp_path, changes, words):
+    from photorx.designfile import load_design
+
+    path = _design_file(tmp_path, "failing", **changes)
+    failed = load_design(path).checks().query("not ok")
+    assert len(failed) == len(words)
+    code, out, err = run(capsys, "budget", str(path))
+    assert code == 0
+    warnings = [ln for ln in err.splitlines() if ln.startswith("photorx: warning:")]
+    assert len(warnings) == len(failed) == len(err.strip().splitlines())
+    for w in words:
+        assert any(w in ln for ln in warnings), err
+    assert "against a limit of" in warnings[0]
+    # the budget's checks table shows the same rows, with the failures
+    for check in failed["check"]:
+        assert check in out
+
+
+@pytest.mark.parametrize("fmt", ["text", "csv", "json", "md", "latex", "html"])
+def test_exports_read_none_for_missing_figures(capsys, tmp_path, fmt):
+    path = _design_file(tmp_path, "nofilter", post_filter=None, bit_rate=None)
+    code, out, err = run(capsys, "budget", str(path), "--format", fmt)
+    assert code == 0, err
+    # no post filter and no phase crossover: "none", never inf or nan (JSON keeps null)
+    assert not re.search(r"\b(inf|nan|n/a)\b", out, flags=re.IGNORECASE), out
+    assert "none" in out
+    if fmt == "json":
+        rows = {r["quantity"]: r for r in json.loads(out)["tables"]["stability"]}
+        assert rows["gain margin"]["value"] is None and rows["gain margin"]["display"] == "none"
+    # an analog design: no BER sensitivity
+    assert "bit-error" not in out and "BER" not in out
+
+
+def test_trade_curve_export_reads_none(capsys, tmp_path):
+    curve = tmp_path / "trade.csv"
+    code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=1:5", "--constraint",
+                       "gain_margin_db>=6", "--grid-points", "8", "--trade-curve", str(curve))
+    assert code == 0, err
+    text = curve.read_text()
+    # the demo's loop has no phase crossover: its gain margin does not exist
+    assert "none" in text and not re.search(r"\b(inf|nan)\b", text, flags=re.IGNORECASE)
+    df = pd.read_csv(curve, na_values=["none"])
+    assert df["gain_margin_db"].isna().all()
+
+
+# -- sweeps and optimisation refuse what would mislead (issue 11) --------------------------------
+def test_sweep_refuses_more_than_max_points(capsys):
+    # 1001 x 1000 points: refused before the design is even evaluated
+    code, out, err = run(capsys, "sweep", "--reverse-bias", "0:20:1001", "--rf", "1e3:1e4:1000")
+    assert code == 2 and out == ""
+    assert_one_line_error(err)
+    assert "1001000 points" in err and "--max-points" in err
+    # one axis alone beyond the cap: refused before its values are allocated
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:20:1000000000000")
+    assert code == 2 and "--max-points" in err
+    assert_one_line_error(err)
+
+
+def test_sweep_max_points_raises_or_lowers_the_cap(capsys):
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--max-points", "5")
+    assert code == 2 and "more than --max-points 5" in err
+    code, out, _ = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--max-points", "6",
+                       "--columns", "bandwidth", "-q")
+    assert code == 0 and len(pd.read_csv(__import__("io").StringIO(out))) == 6
+
+
+def test_sweep_progress_bar_is_tqdm(capsys, monkeypatch):
+    import tqdm
+
+    made = []
+    real = tqdm.tqdm
+
+    def spy(*args, **kwargs):
+        made.append(kwargs)
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(tqdm, "tqdm", spy)
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:600", "--columns", "bandwidth")
+    assert code == 0
+    # shown only once the sweep has run for a second (tqdm's delay)
+    assert made and made[0]["delay"] == 1.0 and made[0]["total"] == 600
+    code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:600", "--columns", "bandwidth",
+                       "--progress-threshold", "1")
+    assert code == 0 and "600/600 points" in err
+
+
+def test_sweep_in_python_honours_max_points():
+    import photorx as prx
+
+    with pytest.raises(DesignError, match="max_points"):
+        prx.sweep(prx.demo_receiver(), reverse_bias=np.linspace(0, 5, 11), rf=[1e3, 2e3],
+                  max_points=21)
+
+
+def test_grid_points_must_be_at_least_two(capsys):
+    for n in ("1", "0", "-5", "x"):
+        code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=0:5", "--grid-points", n)
+        assert code == 2 and "--grid-points" in err
+        assert_one_line_error(err)
+
+
+@pytest.mark.parametrize("argv", [
+    ["--objective", "stable"], ["--objective", "max:stable"],
+    ["--constraint", "stable>=1"], ["--constraint", "bias_within_limit>=1"],
+])
+def test_yes_no_figures_are_not_objectives_or_constraints(capsys, argv):
+    code, _, err = run(capsys, "optimize", "--vary", "reverse_bias=0:5", "--grid-points", "3",
+                       *argv)
+    assert code == 2 and "yes/no" in err
+    assert_one_line_error(err)
+
+
+def test_yes_no_figure_list_matches_the_engine():
+    # every boolean figure of an evaluation is in the CLI's list, so none slips through
+    import photorx as prx
+    from photorx.cli import _is_yes_no
+
+    values = prx.demo_receiver().evaluate().values
+    booleans = {k for k, v in values.items() if np.asarray(v).dtype == bool}
+    assert booleans and all(_is_yes_no(k) for k in booleans)
+    assert not any(_is_yes_no(k) for k in values if k not in booleans)
+
+
+@pytest.mark.parametrize("argv", [
+    ["budget", "-o", "{d}"], ["sweep", "--reverse-bias", "0:1:2", "-o", "{d}"],
+    ["template", "-o", "{d}", "--force"], ["report", "-o", "{d}"],
+    ["optimize", "--vary", "reverse_bias=0:5", "--save", "{d}"],
+])
+def test_output_path_that_is_a_directory_is_named(capsys, tmp_path, argv):
+    folder = tmp_path / "results"
+    folder.mkdir()
+    code, _, err = run(capsys, *[a.format(d=folder) for a in argv])
+    assert code == 2 and f"{folder}: is a directory" in err
+    assert ".tmp" not in err  # the user's path, not the temporary file
+    assert_one_line_error(err)
+    assert list(folder.iterdir()) == []
+
+
+def test_no_runtime_warning_reaches_the_terminal(capsys, monkeypatch):
+    # numpy's floating-point warnings inside a command never reach the user's terminal
+    import warnings
+
+    from photorx import cli
+
+    def noisy(args):
+        np.float64(1.0) / np.float64(0.0)  # numpy: "divide by zero encountered"
+        warnings.warn("overflow encountered", RuntimeWarning)
+        return 0
+
+    original = cli.build_parser
+    monkeypatch.setattr(cli, "build_parser", lambda: _with_func(original(), noisy))
+    with warnings.catch_warnings():
+        warnings.simplefilter("default")  # show what would reach a terminal
+        code, _, err = run(capsys, "demos")
+    assert code == 0 and "Warning" not in err and "encountered" not in err
+
+
+def _with_func(parser, func):
+    for action in parser._subparsers._group_actions:
+        for sub in action.choices.values():
+            sub.set_defaults(func=func)
+    return parser
+
+
+def test_photorx_warnings_get_one_line(capsys, monkeypatch):
+    import warnings
+
+    from photorx import cli
+    from photorx.errors import ModelRangeWarning
+
+    def warns(args):
+        warnings.warn("noise integral not converged\n to rtol", ModelRangeWarning)
+        return 0
+
+    original = cli.build_parser
+    monkeypatch.setattr(cli, "build_parser", lambda: _with_func(original(), warns))
+    with warnings.catch_warnings():
+        warnings.simplefilter("default")
+        code, _, err = run(capsys, "demos")
+    assert code == 0
+    assert err.strip() == "photorx: warning: noise integral not converged to rtol"

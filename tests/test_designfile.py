@@ -453,3 +453,108 @@ gradient = "1e20 cm^-4"''').replace('wavelength = "1310 nm"', 'wavelength = "850
     assert rx.photodiode.junction.gradient == 1e28      # 1e20 cm^-4 = 1e28 m^-4
     assert rx.photodiode.junction.area == 0.25e-6
     assert dfile.load_design(dfile.save_design(rx, tmp_path / "g.toml")) == rx
+
+
+# -- implausible values refused at the key, with the key's valid range (issue 11) ----------------
+@pytest.mark.parametrize("old, new, words", [
+    # a bare number is SI: each of these is a unit slip, refused with the range and a hint
+    ('voltage_noise = "3 nV/rtHz"', "voltage_noise = 3.5",
+     ["[amplifier] voltage_noise", "3.5 V/rtHz", "<= 1 uV/rtHz", "plain number"]),
+    ('current_noise = "2 pA/rtHz"', "current_noise = 2",
+     ["[amplifier] current_noise", "<= 1 nA/rtHz", "plain number"]),
+    ('gbw = "10 GHz"', "gbw = 10", ["[amplifier] gbw", ">= 1 kHz", "plain number"]),
+    ('gbw = "10 GHz"', 'gbw = "10"', ["[amplifier] gbw", ">= 1 kHz", "plain number"]),
+    ('cutoff = "940 MHz"', "cutoff = 9.4e15", ["[post_filter] cutoff", "<= 1 THz"]),
+    ('optical_power = "-20 dBm"', "optical_power = 10",
+     ["[operating_point] optical_power", "<= 1 W", "plain number"]),
+    ('bit_rate = "1.25 Gbit/s"', "bit_rate = 0.5", ["[signal] bit_rate", ">= 1 bit/s"]),
+    ('max_bias = "20 V"', "max_bias = 1e6", ["[limits] max_bias", "<= 10 kV"]),
+    # values that overflow later stages: refused here, never as an internal figure
+    ('optical_power = "-20 dBm"', 'optical_power = "1e30 W"',
+     ["[operating_point] optical_power", "1e+30 W", "<= 1 W"]),
+    ('optical_power = "-20 dBm"', 'optical_power = "1e300 dBm"',
+     ["[operating_point] optical_power", "dBm"]),
+    ('area = "1250 um^2"', 'area = "1e-300 mm^2"',
+     ["[photodiode.junction] area", ">= 1 um^2 and <= 100 cm^2"]),
+    ("[photodiode]\n", '[photodiode]\nlifetime = "1e300 s"\n',
+     ["[photodiode] lifetime", ">= 1 fs and <= 1 s"]),
+    ("[photodiode]\n", '[photodiode]\ngeneration_lifetime = "1e-30 s"\n',
+     ["[photodiode] generation_lifetime", ">= 1 fs"]),
+    ('i_doping = "5e14 cm^-3"', 'i_doping = "1e40 cm^-3"',
+     ["[photodiode.junction] i_doping", "<= 1e+22 cm^-3"]),
+    ('rf = "5 kohm"', 'rf = "inf ohm"', ["[feedback] rf", "inf ohm", "<= 1 Pohm"]),
+    ('rf = "5 kohm"', 'rf = "1e400 ohm"', ["[feedback] rf", "inf"]),
+    ('reverse_bias = "3.3 V"', 'reverse_bias = "-inf V"', ["[operating_point] reverse_bias"]),
+    ('extinction_ratio = "10 dB"', 'extinction_ratio = "1e300 dB"',
+     ["[signal] extinction_ratio", "decibels", "300 dB"]),
+    # a bit rate is not a frequency, and the other way round
+    ('cutoff = "940 MHz"', 'cutoff = "1.2 bit/s"', ["[post_filter] cutoff", "bit rate"]),
+    ('bit_rate = "1.25 Gbit/s"', 'bit_rate = "1.25 GHz"', ["[signal] bit_rate", "bit/s"]),
+    # expressions that would hang or overflow the units parser
+    ('area = "1250 um^2"', 'area = "(9**9**9 um)^2"', ["[photodiode.junction] area",
+                                                       "exponent"]),
+    ('area = "1250 um^2"', 'area = "(10**1000 um)^2"', ["[photodiode.junction] area",
+                                                        "exponent"]),
+])
+def test_implausible_values_are_refused_at_the_key(old, new, words):
+    assert old in BASE
+    message = error(BASE.replace(old, new, 1))
+    assert message.startswith("t.toml: ")
+    assert "\n" not in message
+    for w in words:
+        assert w in message, (w, message)
+
+
+def test_infinity_only_where_the_range_admits_it():
+    # an open leakage path and a thick substrate are infinite by nature (Key rows "[..inf]")
+    s = spec(BASE.replace("[photodiode]\n", '[photodiode]\nleakage_resistance = "inf ohm"\n'
+                          'absorber_thickness = "inf um"\n'))
+    assert s["photodiode"]["leakage_resistance"] == math.inf
+    assert s["photodiode"]["absorber_thickness"] == math.inf
+    assert s["signal"]["extinction_ratio"] == 10.0  # 10 dB, exactly
+
+
+def test_every_dimensioned_key_has_a_range():
+    # the ranges live in the Key rows, so the template and the errors show them
+    for key in SCHEMA:
+        if key.kind in ("quantity", "list", "table") and key.unit and \
+                key.name != "temperature":  # temperatures: the constructors' [50, 600] K
+            assert key.check, key
+    template = " ".join(dfile.design_template().replace("#", " ").split())  # unwrapped
+    assert "(>= 1 kHz and <= 1 THz)" in template          # gbw
+    assert "(>= 0 V/rtHz and <= 1 uV/rtHz)" in template   # voltage_noise
+
+
+@pytest.mark.parametrize("depth", [17, 1000, 100_000])
+def test_deep_nesting_names_the_key_quickly(depth):
+    import time
+
+    text = BASE.replace("dc_gain = 3000", "dc_gain = " + "[" * depth + "1" + "]" * depth)
+    t0 = time.perf_counter()
+    with pytest.raises(DesignError) as err:
+        dfile.loads_design(text, "t.toml")
+    assert time.perf_counter() - t0 < 1.0
+    assert "[amplifier] dc_gain" in str(err.value) and "nested deeper" in str(err.value)
+
+
+def test_nesting_scan_ignores_strings_and_comments():
+    text = BASE.replace('name = "test receiver"',
+                        'name = "[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[["  # [[[[[[[[[[[[[[[[[[[[[[[[')
+    assert dfile.loads_design(text, "t.toml").wavelength == 1310e-9
+
+
+def test_deep_value_in_message_is_shortened():
+    text = BASE.replace("dc_gain = 3000", "dc_gain = " + "[" * 16 + "1" + "]" * 16)
+    with pytest.raises(DesignError) as err:
+        dfile.loads_design(text, "t.toml")
+    assert len(str(err.value)) < 300 and "[amplifier] dc_gain" in str(err.value)
+
+
+def test_integer_of_thousands_of_digits_names_the_key():
+    text = BASE.replace("dc_gain = 3000", "dc_gain = " + "1" * 5000)
+    with pytest.raises(DesignError, match="dc_gain: an integer of more than 1,000 digits"):
+        dfile.loads_design(text, "t.toml")
+    # within TOML's reach but beyond a float
+    text = BASE.replace("dc_gain = 3000", "dc_gain = " + "1" * 400)
+    with pytest.raises(DesignError, match=r"\[amplifier\] dc_gain.*beyond the range"):
+        dfile.loads_design(text, "t.toml")

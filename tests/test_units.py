@@ -8,6 +8,7 @@ result is a correctly rounded decimal; otherwise rtol is stated.
 from __future__ import annotations
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -197,3 +198,71 @@ def test_dbm_conversions():
     np.testing.assert_allclose(u.watt_to_dbm(np.array([1e-3, 1e-6])), [0.0, -30.0], atol=1e-12)
     with pytest.raises(DesignError, match="power"):
         u.watt_to_dbm(0.0)
+
+
+# -- expressions that cannot hang or overflow the parser (issue 11) ------------------------------
+@pytest.mark.parametrize("text, unit, words", [
+    ("(9**9**9 um)^2", "m^2", ["exponent", "-6 to 6"]),     # would run for hours in pint
+    ("(10**1000 um)^2", "m^2", ["exponent"]),
+    ("(1 um)**(2**64)", "m^2", ["exponent"]),
+    ("(1 um)^7", "m^7", ["exponent"]),
+    ("((((((1 um)))))) ", "m", ["parentheses"]),
+    ("1 um * " * 20 + "1 um", None, ["longer than 80 characters"]),
+    ("(1e200 um)^2", "m^2", ["overflows"]),
+    ("1e300 dB", "", ["overflows"]),
+    ("1e300 dBm", "W", ["dBm", "300"]),
+    ("-1e300 dBm", "W", ["dBm", "300"]),
+])
+def test_hostile_expressions_are_refused_quickly(text, unit, words):
+    import time
+
+    t0 = time.perf_counter()
+    with pytest.raises(DesignError) as err:
+        u.parse_quantity(text, unit)
+    # within a second even on a loaded machine (the parse of '9**9**9' alone never ends)
+    assert time.perf_counter() - t0 < 1.0
+    for w in words:
+        assert w in str(err.value), (w, str(err.value))
+
+
+@pytest.mark.parametrize("text, unit, expected", [
+    # the exponents the trade writes still read (definition of the SI prefixes, BIPM 2019)
+    ("1e15 cm^-3", "m^-3", 1e21), ("1e20 cm^-4", "m^-4", 1e28), ("(100 um)^2", "m^2", 1e-8),
+    ("5 nV/rtHz", "V/rtHz", 5e-9), ("5 nV/Hz^0.5", "V/rtHz", 5e-9),
+    ("(2 um)**(1/2)", "m^0.5", math.sqrt(2e-6)),
+])
+def test_ordinary_exponents_still_read(text, unit, expected):
+    assert u.parse_quantity(text, unit) == pytest.approx(expected, rel=1e-12)
+
+
+def test_huge_numbers_do_not_crash():
+    # beyond Decimal's and float's exponent range: the float answer (inf, 0), never an
+    # ArithmeticError or OverflowError
+    assert u.parse_quantity("1e9999999 pF", "F") == math.inf
+    assert u.parse_quantity("1e-9999999 pF", "F") == 0.0
+    with pytest.raises(DesignError, match="beyond the range"):
+        u.parse_quantity(10**400, "F")
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # no numpy/pint overflow warning either
+        assert u.parse_quantity("-1e300 dB", "") == 0.0
+
+
+# -- a bit rate is not a frequency (pint equates bit/s with Hz; photorx does not) ----------------
+@pytest.mark.parametrize("text, unit, words", [
+    ("1.2 bit/s", "Hz", ["bit rate", "frequency"]),
+    ("10 Gbit/s", "Hz", ["bit rate"]),
+    ("1 kcycle/s", "Hz", ["not a frequency"]),     # pint: 1 cycle = 2 pi rad, 6.28 kHz
+    ("5 %/s", "Hz", ["not a frequency"]),
+    ("10 GHz", "bit/s", ["not a bit rate", "bit/s"]),
+])
+def test_bit_rates_and_frequencies_do_not_mix(text, unit, words):
+    with pytest.raises(DesignError) as err:
+        u.parse_quantity(text, unit)
+    for w in words:
+        assert w in str(err.value)
+
+
+def test_bit_rates_still_read():
+    assert u.parse_quantity("1.25 Gbit/s", "bit/s") == 1.25e9
+    assert u.parse_quantity("10 kbaud", "bit/s") == 1e4  # pint: 1 baud = 1 bit/s
+    assert u.parse_quantity("2 GHz", "Hz") == 2e9

@@ -2,13 +2,32 @@
 
 from __future__ import annotations
 
-import pandas as pd
+import numpy as np
 
 from ..errors import DesignError
+from .checks import receiver_checks
 from .noise import SOURCE_LABELS
-from .receiver import _TABLE_ORDER, FIGURES
+from .result import _TABLE_ORDER, BER_FIGURES, FIGURES
 
-__all__ = ["receiver_budget"]
+__all__ = ["receiver_budget", "checks_table"]
+
+
+def checks_table(checks):
+    """The checks of :meth:`Receiver.checks` as a budget table: the same rows, and a check
+    without its limit says so instead of passing.
+
+    Parameters
+    ----------
+    checks : pandas.DataFrame
+        The table of :func:`photorx.analysis.checks.receiver_checks`.
+    """
+    table = checks.copy()
+    unset = [not isinstance(value, (bool, np.bool_)) and (limit is None or limit != limit)
+             for limit, value in zip(checks["limit"], checks["value"])]  # limit != limit: NaN
+    table["ok"] = ["no limit set" if u else bool(ok) for u, ok in zip(unset, checks["ok"])]
+    table["limit"] = [None if u or limit != limit else limit
+                      for u, limit in zip(unset, checks["limit"].tolist())]
+    return table
 
 
 def receiver_budget(rx, title: str | None = None):
@@ -25,6 +44,8 @@ def receiver_budget(rx, title: str | None = None):
     -------
     photorx.views.tables.Budget
     """
+    import pandas as pd
+
     from ..views.tables import Budget
 
     result = rx.evaluate()
@@ -34,19 +55,19 @@ def receiver_budget(rx, title: str | None = None):
     values = result.to_dict()
     values["dominant_noise_source"] = SOURCE_LABELS.get(values["dominant_noise_source"],
                                                         values["dominant_noise_source"])
-    # A check without its limit is not a pass: say so instead of "yes".
-    for name, given in (("bias_within_limit", rx.max_bias), ("dark_current_within_limit", rx.max_dark_current),
-                        ("bias_power_within_limit", rx.max_bias_power),
-                        ("bandwidth_for_bit_rate", rx.bit_rate)):
-        if given is None:
-            values[name] = "no limit set" if name != "bandwidth_for_bit_rate" else "no bit rate set"
+    digital = rx.bit_rate is not None  # an analog design shows analog figures only
     tables = {}
     for table in _TABLE_ORDER:
+        if table == "checks":
+            tables[table] = checks_table(receiver_checks(rx, result))
+            continue
         rows = [dict(quantity=desc, value=values[name], unit=unit)
-                for name, (unit, tab, desc) in FIGURES.items() if tab == table and name in values]
+                for name, (unit, tab, desc) in FIGURES.items() if tab == table and name in values
+                and (digital or name not in BER_FIGURES)]
         tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
         if table == "noise":
-            tables["noise by source"] = rx.noise().budget()
+            # read from the same evaluation: the noise is integrated once
+            tables["noise by source"] = result.noise_table(rx.noise_band_low)
     notes = list(result.warnings)
     notes.append("Noise integrated over the closed-loop response (times the post filter) from "
                  f"{rx.noise_band_low:g} Hz to where the integral converges; input-referred values "

@@ -19,9 +19,11 @@ from ..errors import DesignError
 from ..circuit.metrics import tia_figures
 from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
-from .noise import chain_enbw, integrated_output_noise, with_frequency_axis
+from .noise import input_noise_psd, with_frequency_axis
+from .noise_integrals import chain_noise
 from .parameters import with_trailing_axis
-from .sensitivity import (analog_snr, dynamic_range, minimum_detectable_power,
+from .result import ReceiverResult
+from .sensitivity import (_levels, analog_snr, dynamic_range, minimum_detectable_power,
                           noise_equivalent_power, q_from_ber, required_average_power)
 
 __all__ = ["evaluate_receiver", "minus_3db_frequency"]
@@ -104,6 +106,73 @@ def minus_3db_frequency(response, ref, scale, shape=None):
     return np.broadcast_to(bw, shape)
 
 
+_PER_DECADE = 5  # shared search grid: 5 points per decade on the lattice 10^(k/5)
+_WINDOW = (1e-4, 30.0)  # each part's window relative to its scale, as in minus_3db_frequency
+
+
+def _lattice(lo, hi):
+    """Log grid per design on the lattice 10^(k/_PER_DECADE) covering [lo, hi] [Hz]: (..., n).
+
+    Every design gets the same number of points (the widest span), so one array holds all.
+    """
+    k_lo = np.floor(np.log10(lo) * _PER_DECADE)
+    k_hi = np.ceil(np.log10(hi) * _PER_DECADE)
+    n = int(np.max(k_hi - k_lo)) + 1 if np.size(k_lo) else 2
+    return 10.0 ** ((k_lo[..., None] + np.arange(max(n, 2))) / _PER_DECADE)
+
+
+class _Bracket:
+    """First -3 dB crossing of many designs, bracketed on a grid and refined step by step.
+
+    ``g = log|H| - log(level)`` sampled on the grid ``f`` (..., n) brackets the first sign
+    change; each :meth:`update` with ``g`` at the proposed ``x = ln f`` (..., 1) is one step
+    of the Illinois variant of false position on log|H| against log f (superlinear; from a
+    bracket of 10^0.2, 8 steps reach about 1e-10 relative). ``found`` is False where the grid's
+    bottom is already below the level or no crossing lies on the grid (the caller then falls
+    back to the moving-window search of :func:`minus_3db_frequency`).
+
+    References
+    ----------
+    .. [1] M. Dowell and P. Jarratt, A modified regula falsi method for computing the root
+       of an equation, BIT 11 (1971) 168-174 (the Illinois algorithm).
+    """
+
+    def __init__(self, f, g, usable):
+        below = g < 0
+        self.found = below.any(axis=-1) & (g[..., 0] >= 0) & usable
+        k = np.clip(np.argmax(below, axis=-1), 1, f.shape[-1] - 1)[..., None]
+        self.x_lo = np.log(np.take_along_axis(f, k - 1, -1))
+        self.x_hi = np.log(np.take_along_axis(f, k, -1))
+        self.g_lo, self.g_hi = np.take_along_axis(g, k - 1, -1), np.take_along_axis(g, k, -1)
+        self.x = self.x_lo
+        self.last = np.zeros(self.x.shape, dtype=np.int8)
+
+    def propose(self):
+        denom = np.where(self.g_lo != self.g_hi, self.g_lo - self.g_hi, 1.0)
+        self.x = np.clip(self.x_lo + self.g_lo * (self.x_hi - self.x_lo) / denom, self.x_lo, self.x_hi)
+        return self.x
+
+    def update(self, gx):
+        above = gx >= 0
+        last = self.last
+        g_hi = np.where(above & (last == 1), 0.5 * self.g_hi, self.g_hi)
+        g_lo = np.where(~above & (last == -1), 0.5 * self.g_lo, self.g_lo)
+        self.x_lo, self.g_lo = np.where(above, self.x, self.x_lo), np.where(above, gx, g_lo)
+        self.x_hi, self.g_hi = np.where(above, self.x_hi, self.x), np.where(above, g_hi, gx)
+        self.last = np.where(above, 1, -1).astype(np.int8)
+
+    def result(self):
+        return np.where(self.found, np.exp(self.x[..., 0]), np.nan)
+
+
+_REFINE_STEPS = 8
+
+
+def _log_ratio(h, log_level):
+    with np.errstate(divide="ignore"):
+        return np.log(np.abs(h)) - log_level
+
+
 def _filter_kwargs(pf):
     return {} if pf is None else dict(filter_kind=pf.kind, filter_order=pf.order, filter_cutoff=pf.cutoff)
 
@@ -181,7 +250,12 @@ def _operating_point(p: _Point) -> dict:
 
 
 def _speed(p: _Point) -> dict:
-    """Bandwidth of the whole chain H_pd * Zt * H_filter, of its parts, and which one limits it."""
+    """Bandwidth of the whole chain H_pd * Zt * H_filter, of its parts, and which one limits it.
+
+    The photodiode response, the transimpedance and the filter are evaluated once per design
+    on one shared log grid (both -3 dB searches read it); only the few refinement steps
+    evaluate them again, at one frequency per design.
+    """
     rx, pd_, loop, pf = p.rx, p.pd, p.loop, p.rx.post_filter
     pd_e = with_trailing_axis(pd_, p.shape)  # swept diode fields broadcast against f grids
     v_e = np.asarray(p.v, dtype=float)[..., None]
@@ -191,24 +265,64 @@ def _speed(p: _Point) -> dict:
     def photodiode(f):
         return pd_e.intrinsic_response(f, v_e, wl_e)
 
-    def chain(f):
-        h = photodiode(f) * transimpedance(f, **circuit_e)
+    def circuit(f):
+        h = transimpedance(f, **circuit_e)
         return h if pf is None else h * filter_response(f, pf.kind, pf.order, pf.cutoff)
 
+    def chain(f):
+        return photodiode(f) * circuit(f) if p.has_speed else circuit(f)
+
     loop_bw = p.b(loop["bandwidth"])
+    zt0 = p.b(loop["dc_transimpedance"])
     if p.has_speed:
         transit_bw = p.b(pd_.transit_bandwidth(p.v, rx.wavelength))
         transit_time = p.b(pd_.transit_time(p.v))
-        pd_bw = minus_3db_frequency(photodiode, p.b(1.0), transit_bw, p.shape)
     else:  # a datasheet diode without a speed figure: the circuit sets the speed
-        transit_bw = pd_bw = p.b(np.inf)
+        transit_bw = p.b(np.inf)
         transit_time = p.b(np.nan)
     filter_bw = p.b(pf.cutoff if pf is not None else np.inf)
     # search the chain's -3 dB point near its slowest part (a 10 kHz post filter behind a
     # 1 GHz loop), not near the loop alone; an unstable loop (NaN) keeps NaN
-    slowest = np.fmin(np.fmin(loop_bw, np.where(np.isnan(pd_bw), np.inf, pd_bw)), filter_bw)
-    scale = np.where(np.isfinite(loop_bw), slowest, np.nan)
-    bandwidth = minus_3db_frequency(chain, p.b(loop["dc_transimpedance"]), scale, p.shape)
+    pd_scale = np.where(np.isfinite(transit_bw) & (transit_bw > 0), transit_bw, np.nan)
+    slowest0 = np.fmin(np.fmin(loop_bw, pd_scale), filter_bw)
+    chain_scale = np.where(np.isfinite(loop_bw), slowest0, np.nan)
+    chain_ok = np.isfinite(chain_scale) & (chain_scale > 0)
+    pd_ok = np.isfinite(pd_scale) & p.has_speed
+    cs = np.where(chain_ok, chain_scale, 1.0)
+    ps = np.where(pd_ok, pd_scale, cs)
+    lo = _WINDOW[0] * np.fmin(cs, ps)
+    hi = _WINDOW[1] * np.fmax(cs, ps)
+    f = _lattice(lo, hi)
+    h_circuit = circuit(f)
+    log_ref = np.log(np.abs(zt0) / np.sqrt(2.0))[..., None]
+    log_half = np.log(1.0 / np.sqrt(2.0))
+    if p.has_speed:
+        h_pd = photodiode(f)
+        pd_b = _Bracket(f, _log_ratio(h_pd, log_half), pd_ok)
+        ch_b = _Bracket(f, _log_ratio(h_pd * h_circuit, log_ref), chain_ok)
+        for _ in range(_REFINE_STEPS):  # both searches share each call of the photodiode model
+            x = np.concatenate([pd_b.propose(), ch_b.propose()], axis=-1)
+            hp = photodiode(np.exp(x))
+            pd_b.update(_log_ratio(hp[..., :1], log_half))
+            ch_b.update(_log_ratio(hp[..., 1:] * circuit(np.exp(x[..., 1:])), log_ref))
+        pd_bw = pd_b.result()
+        miss = pd_ok & ~pd_b.found
+        if miss.any():  # the crossing lies outside the shared grid: the moving-window search
+            slow = minus_3db_frequency(photodiode, p.b(1.0), transit_bw, p.shape)
+            pd_bw = np.where(miss, slow, pd_bw)
+    else:
+        pd_bw = p.b(np.inf)
+        ch_b = _Bracket(f, _log_ratio(h_circuit, log_ref), chain_ok)
+        for _ in range(_REFINE_STEPS):
+            x = ch_b.propose()
+            ch_b.update(_log_ratio(circuit(np.exp(x)), log_ref))
+    bandwidth = ch_b.result()
+    miss = chain_ok & ~ch_b.found
+    if miss.any():
+        slowest = np.fmin(np.fmin(loop_bw, np.where(np.isnan(pd_bw), np.inf, pd_bw)), filter_bw)
+        scale = np.where(np.isfinite(loop_bw), slowest, np.nan)
+        slow = minus_3db_frequency(chain, zt0, scale, p.shape)
+        bandwidth = np.where(miss, slow, bandwidth)
     parts = np.stack([loop_bw, np.where(np.isnan(pd_bw), np.inf, pd_bw), filter_bw])
     names = np.array(["amplifier loop", "photodiode", "post filter"])
     limited_by = names[np.argmin(np.where(np.isnan(parts), np.inf, parts), axis=0)]
@@ -234,16 +348,25 @@ def _stability(p: _Point) -> dict:
 
 
 def _noise(p: _Point):
-    """Every source integrated over the real response; returns figures and per-source rms."""
+    """Every source integrated over the real response.
+
+    Returns the figures, the input-referred rms [A], the mean-square output noise [V^2] and
+    the input-referred spot density at ENBW/10 [A/rtHz] of every source.
+    """
     rx, amp = p.rx, p.amp
     circuit = {k: (tuple(p.b(x) for x in val) if k == "poles" else p.b(val)) for k, val in p.circuit.items()}
     filt = _filter_kwargs(rx.post_filter)
-    mean_square = integrated_output_noise(
-        rx.noise_band_low, np.inf, **circuit, **filt,
+    sources = dict(
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),
         in_corner=p.b(amp.current_noise_corner), temperature=p.b(rx.temperature),
         i_shot={"dark": p.b(p.dark_shot), "signal": p.b(p.i_signal), "background": p.b(p.i_background)})
-    enbw = p.b(chain_enbw(**circuit, **filt))
+    # one grid for both integrals: the loop's transfer functions are built once
+    mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources)
+    enbw = p.b(enbw)
+    # input-referred spot density of every source at ENBW/10 (in the flat part of the
+    # response), the column of the budget's by-source table
+    spot_psd = input_noise_psd((enbw / 10.0)[..., None], **with_frequency_axis({**circuit, **sources}))
+    spot = {name: p.b(np.sqrt(v[..., 0])) for name, v in spot_psd.items()}
     zt0 = np.abs(p.b(p.loop["dc_transimpedance"]))
     total = sum(mean_square.values())
     # circuit noise = all but the signal and dark shot noise, which the sensitivity formulas add
@@ -264,7 +387,8 @@ def _noise(p: _Point):
         "noise_floor_rms": floor_rms, "noise_floor_density": floor_rms / np.sqrt(enbw),
         "dominant_noise_source": dominant,
     }
-    return figures, {name: p.b(np.sqrt(ms) / zt0) for name, ms in mean_square.items()}
+    by_source = {name: p.b(np.sqrt(ms) / zt0) for name, ms in mean_square.items()}
+    return figures, by_source, {name: p.b(ms) for name, ms in mean_square.items()}, spot
 
 
 def _sensitivity(p: _Point, noise: dict) -> dict:
@@ -294,7 +418,20 @@ def _checks(p: _Point, op: dict, speed: dict) -> dict:
     ok = np.ones(p.shape, bool)
     v = op["reverse_bias"]
     bias_power = np.abs(v * p.b(p.net.current))  # net.current = dark + signal + background
+    # the largest signal power: the one level of NRZ (average and extinction ratio, as the
+    # sensitivity stage splits them) or the crest P (1 + m) of the analog signal
+    power = p.b(rx.optical_power)
+    peak = (_levels(power, None, float(rx.extinction_ratio))[0] if rx.bit_rate is not None
+            else power * (1.0 + rx.modulation_depth))
+    # a DC-coupled stage carries background and dark current at its output too
+    i_peak = p.b(p.responsivity) * peak + p.b(p.i_background) + p.b(p.dark_shot)
     return {
+        "peak_photocurrent": i_peak,
+        "peak_output": i_peak * speed["dc_transimpedance"],
+        # the DC level a DC-coupled stage sits at: average signal + background + dark current
+        "average_output": np.abs(p.b(p.net.current)) * speed["dc_transimpedance"],
+        "output_swing": p.b(p.amp.output_swing),
+        "bit_rate": p.b(np.nan if rx.bit_rate is None else rx.bit_rate),
         "bias_power": bias_power,
         "bias_below_breakdown": v < op["breakdown_voltage"],
         "bias_within_limit": v <= rx.max_bias if rx.max_bias is not None else ok,
@@ -327,12 +464,11 @@ def evaluate_receiver(rx):
     -------
     ReceiverResult
     """
-    from .receiver import ReceiverResult
-
     p = _Point(rx)
     op = _operating_point(p)
     speed = _speed(p)
-    noise, by_source = _noise(p)
+    noise, by_source, mean_square, spot = _noise(p)
     values = {**op, **speed, **_stability(p), **noise, **_sensitivity(p, noise), **_checks(p, op, speed)}
     warnings = tuple(text for name, text in _WARNINGS if not np.all(values[name]))
-    return ReceiverResult(values=values, noise_by_source=by_source, warnings=warnings)
+    return ReceiverResult(values=values, noise_by_source=by_source, warnings=warnings,
+                          noise_mean_square=mean_square, noise_spot_density=spot)

@@ -253,3 +253,40 @@ def _extend_band(total, lo, hi, a, b, need_top, need_bottom, rtol, f_min, f_max)
             f_new = f[0] * step ** np.arange(-_SCAN_PER_DECADE, 0)
             s_new = np.broadcast_to(total(f_new), s.shape[:-1] + f_new.shape)
             f, s = np.concatenate([f_new, f]), np.concatenate([s_new, s], axis=-1)
+
+
+def romberg_weights(n):
+    """Weights of the last two Romberg extrapolations on a uniform grid of n+1 points on [0, 1].
+
+    Parameters
+    ----------
+    n : int
+        Number of intervals; a multiple of 8 (trapezoid sums with steps h, 2h, 4h, 8h).
+
+    Returns
+    -------
+    best, check : numpy.ndarray
+        Weights w with integral ~ sum(w * g) for samples g on ``linspace(0, 1, n + 1)``:
+        ``best`` is Romberg R(3,3) (order h^8), ``check`` is R(3,2) (order h^6, Boole's
+        rule). ``|best . g - check . g|`` estimates the error of R(3,2) and bounds that of
+        R(3,3) for smooth integrands (Richardson extrapolation).
+
+    References
+    ----------
+    .. [1] W. H. Press et al., *Numerical Recipes*, 3rd ed., Cambridge University Press,
+       2007, sec. 4.3 (Romberg integration).
+    """
+    if n % 8 or n <= 0:
+        raise DesignError.out_of_range("n", n, "", "a positive multiple of 8")
+    trap = []
+    for stride in (8, 4, 2, 1):  # level 0 (coarsest) to 3 (finest)
+        w = np.zeros(n + 1)
+        w[::stride] = stride / n
+        w[0] = w[-1] = 0.5 * stride / n
+        trap.append(w)
+    table = [trap]
+    for j in (1, 2, 3):
+        prev = table[-1]
+        table.append([prev[k] + (prev[k] - prev[k - 1]) / (4.0 ** j - 1.0)
+                      for k in range(1, len(prev))])
+    return table[3][-1], table[2][-1]

@@ -9,8 +9,9 @@ Functional core (pure, vectorised; parameters broadcast, pass ``p[..., None]`` a
 * :func:`integrated_output_noise` and :func:`chain_enbw` - integrals for many designs at once
   (parameters shaped like the designs, no frequency axis)
 
-Shell: :func:`tia_noise` (called by :meth:`photorx.Tia.noise`) returns a
-:class:`NoiseSpectrum` (defined in :mod:`photorx.analysis.noise_spectrum`, re-exported here).
+Shell: :func:`~photorx.analysis.noise_spectrum.tia_noise` (called by :meth:`photorx.Tia.noise`)
+returns a :class:`~photorx.analysis.noise_spectrum.NoiseSpectrum`; both live in
+:mod:`photorx.analysis.noise_spectrum`, which imports this core (never the reverse).
 
 Noise model (circuit of :mod:`photorx.circuit.tia`; T = loop gain, F = T/(1+T),
 Zf = 1/Yf, divider = Zd/(Zd + Rs), Zt = Zf divider F), every source uncorrelated:
@@ -33,8 +34,6 @@ divide the unfiltered output PSD by |Zt|^2.
 
 from __future__ import annotations
 
-import warnings
-
 import numpy as np
 
 from .._validate import require_nonnegative, require_positive
@@ -42,12 +41,11 @@ from ..circuit.amplifier import flicker_factor, open_loop_gain
 from ..circuit.filters import filter_response
 from ..constants import k as _K
 from ..constants import q as _Q
-from ..errors import DesignError, ModelRangeWarning
+from ..errors import DesignError
 from .integration import DEFAULT_RTOL, integrate_psd
 
 __all__ = [
     "SOURCE_LABELS",
-    "NoiseSpectrum",
     "chain_enbw",
     "with_frequency_axis",
     "input_noise_psd",
@@ -57,7 +55,6 @@ __all__ = [
     "noise_transfer_functions",
     "output_noise_psd",
     "shot_current_density",
-    "tia_noise",
 ]
 
 #: Display label of every noise source key.
@@ -489,104 +486,12 @@ def chain_enbw(
     return integrate_psd(psd, 0.0, f_hi, rtol=rtol, f_scale=float(np.max(gbw))) / zt0**2
 
 
-def tia_noise(
-    tia,
-    net,
-    temperature=300.0,
-    *,
-    post_filter=None,
-    dark_current=None,
-    signal_current=None,
-    background_current=None,
-    stage2_noise=0.0,
-    stage2_noise_corner=0.0,
-    f_lo=1.0,
-    f_hi=np.inf,
-    rtol=DEFAULT_RTOL,
-):
-    """Noise spectrum of a transimpedance stage loaded by a photodiode.
+def __getattr__(name):
+    """``NoiseSpectrum`` and ``tia_noise`` live in :mod:`photorx.analysis.noise_spectrum`, the
+    shell above this core; this keeps ``photorx.analysis.noise.NoiseSpectrum`` working without
+    a module-level import cycle."""
+    if name in ("NoiseSpectrum", "tia_noise"):
+        from . import noise_spectrum
 
-    Parameters
-    ----------
-    tia : photorx.Tia
-        The stage (amplifier, Rf, Cf).
-    net : photorx.EquivalentCircuit
-        Photodiode equivalent circuit at the operating point.
-    temperature : float
-        Temperature of the resistors [K], > 0.
-    post_filter : photorx.PostFilter, optional
-        Filter after the stage; multiplies every output density.
-    dark_current, signal_current, background_current : float, optional
-        Split of the diode's DC current [A], >= 0, shown as separate shot-noise sources
-        ``shot_dark``, ``shot_signal``, ``shot_background``; when given they replace
-        ``net.current`` (a ModelRangeWarning if their sum differs from it by more than 1 %).
-        When none is given, ``net.current`` is one source ``shot``.
-    stage2_noise, stage2_noise_corner : float
-        Input voltage noise of a following stage [V/rtHz] and its 1/f corner [Hz].
-    f_lo, f_hi : float
-        Default band of the integrals [Hz]: 1 Hz to infinity.
-    rtol : float
-        Relative tolerance of the integrals, default 1e-4.
-
-    Returns
-    -------
-    NoiseSpectrum
-    """
-    from ..circuit.filters import PostFilter
-    from ..circuit.tia import Tia
-
-    if not isinstance(tia, Tia):
-        raise DesignError(f"tia must be a Tia, got {type(tia).__name__}", parameter="tia")
-    if post_filter is not None and not isinstance(post_filter, PostFilter):
-        raise DesignError(
-            f"post_filter must be a PostFilter or None, got {type(post_filter).__name__}",
-            parameter="post_filter",
-        )
-    split = {
-        name: value
-        for name, value in (
-            ("dark", dark_current),
-            ("signal", signal_current),
-            ("background", background_current),
-        )
-        if value is not None
-    }
-    for name, value in split.items():
-        require_nonnegative(f"{name}_current", value, "A")
-    if split and np.any(np.asarray(net.current) > 0):
-        total = sum(np.asarray(v, dtype=float) for v in split.values())
-        if np.any(np.abs(total - net.current) > 0.01 * np.asarray(net.current)):
-            warnings.warn(
-                f"dark + signal + background current ({np.max(total):.4g} A) differs from "
-                f"net.current ({np.max(net.current):.4g} A); the split is used for the shot "
-                "noise",
-                ModelRangeWarning,
-                stacklevel=3,
-            )
-    amp = tia.amp
-    params = {
-        "gbw": amp.gbw,
-        "dc_gain": amp.dc_gain,
-        "poles": tuple(amp.poles),
-        "rf": tia.rf,
-        "cf": tia.cf,
-        "cd": net.capacitance,
-        "rsh": net.shunt_resistance,
-        "rs": net.series_resistance,
-        "cin": amp.input_capacitance,
-        "en": amp.voltage_noise,
-        "en_corner": amp.voltage_noise_corner,
-        "in_": amp.current_noise,
-        "in_corner": amp.current_noise_corner,
-        "temperature": float(require_positive("temperature", temperature, "K")),
-        "i_shot": split if split else net.current,
-        "stage2_noise": float(require_nonnegative("stage2_noise", stage2_noise, "V/rtHz")),
-        "stage2_corner": float(
-            require_nonnegative("stage2_noise_corner", stage2_noise_corner, "Hz")
-        ),
-    }
-    return NoiseSpectrum(params=params, post_filter=post_filter, f_lo=f_lo, f_hi=f_hi, rtol=rtol)
-
-
-# The shell lives in its own module (it imports the core above); re-exported here.
-from .noise_spectrum import NoiseSpectrum
+        return getattr(noise_spectrum, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

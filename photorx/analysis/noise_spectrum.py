@@ -8,12 +8,13 @@ from __future__ import annotations
 
 import itertools
 import math
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from .._validate import require_nonnegative, require_positive
-from ..errors import DesignError
+from ..errors import DesignError, ModelRangeWarning
 from ..units import format_eng
 from .integration import DEFAULT_RTOL
 from .noise import (
@@ -25,9 +26,63 @@ from .noise import (
     output_noise_psd,
 )
 
-__all__ = ["NoiseSpectrum"]
+__all__ = ["NoiseSpectrum", "source_table", "tia_noise"]
 
 _CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin")
+
+
+def source_table(mean_square, density, *, zt0, enbw, f_spot, f_lo, f_hi, drop_zero=True):
+    """Noise budget table of one design from its integrated noise: one row per source.
+
+    Parameters
+    ----------
+    mean_square : dict of float
+        Source key -> mean-square output noise [V^2].
+    density : dict of float
+        Source key -> input-referred density at ``f_spot`` [A/rtHz].
+    zt0 : float
+        Mid-band (DC) transimpedance [ohm], refers rms values to the input.
+    enbw, f_spot, f_lo, f_hi : float
+        Noise bandwidth, spot frequency and integration band [Hz] (kept in ``attrs``).
+    drop_zero : bool
+        Leave out sources that contribute nothing.
+
+    Returns
+    -------
+    pandas.DataFrame
+        See :meth:`NoiseSpectrum.budget`; :meth:`photorx.ReceiverResult.noise_table` builds
+        the same table from a receiver evaluation.
+    """
+    import pandas as pd
+
+    total = sum(mean_square.values())
+    rows = {}
+    for name, value in mean_square.items():
+        if drop_zero and value == 0.0:
+            continue
+        rows[name] = {
+            "source": SOURCE_LABELS.get(name, name),
+            "input density [A/rtHz]": float(density[name]),
+            "output rms [V]": math.sqrt(value),
+            "input rms [A]": math.sqrt(value) / zt0,
+            "share [%]": 100.0 * value / total if total > 0 else 0.0,
+        }
+    df = pd.DataFrame.from_dict(rows, orient="index")
+    df.index.name = "key"
+    df["dominant"] = df["share [%]"] == df["share [%]"].max()
+    df.attrs.update(
+        {
+            "f [Hz]": f_spot,
+            "f_lo [Hz]": f_lo,
+            "f_hi [Hz]": f_hi,
+            "output rms [V]": math.sqrt(total),
+            "input rms [A]": math.sqrt(total) / zt0,
+            "input density [A/rtHz]": float(np.sqrt(sum(v**2 for v in density.values()))),
+            "enbw [Hz]": enbw,
+            "transimpedance [ohm]": zt0,
+        }
+    )
+    return df
 
 
 @dataclass(frozen=True, eq=False)
@@ -205,41 +260,12 @@ class NoiseSpectrum:
             the total noise power, ``dominant`` (True for the largest). ``attrs`` holds the
             totals, ``f``, the band and the ENBW.
         """
-        import pandas as pd
-
         f_lo, f_hi = self._band(f_lo, f_hi)
         f_spot = self.enbw() / 10.0 if f is None else float(require_positive("f", f, "Hz"))
-        ms = self.mean_square(f_lo, f_hi)
-        dens = self.by_source(f_spot, "input")
-        total = sum(ms.values())
-        zt0 = self.midband_transimpedance
-        rows = {}
-        for name, value in ms.items():
-            if drop_zero and value == 0.0:
-                continue
-            rows[name] = {
-                "source": SOURCE_LABELS.get(name, name),
-                "input density [A/rtHz]": float(dens[name]),
-                "output rms [V]": math.sqrt(value),
-                "input rms [A]": math.sqrt(value) / zt0,
-                "share [%]": 100.0 * value / total if total > 0 else 0.0,
-            }
-        df = pd.DataFrame.from_dict(rows, orient="index")
-        df.index.name = "key"
-        df["dominant"] = df["share [%]"] == df["share [%]"].max()
-        df.attrs.update(
-            {
-                "f [Hz]": f_spot,
-                "f_lo [Hz]": f_lo,
-                "f_hi [Hz]": f_hi,
-                "output rms [V]": math.sqrt(total),
-                "input rms [A]": math.sqrt(total) / zt0,
-                "input density [A/rtHz]": float(np.sqrt(sum(v**2 for v in dens.values()))),
-                "enbw [Hz]": self.enbw(),
-                "transimpedance [ohm]": zt0,
-            }
-        )
-        return df
+        dens = {name: float(v) for name, v in self.by_source(f_spot, "input").items()}
+        return source_table(self.mean_square(f_lo, f_hi), dens, zt0=self.midband_transimpedance,
+                            enbw=self.enbw(), f_spot=f_spot, f_lo=f_lo, f_hi=f_hi,
+                            drop_zero=drop_zero)
 
     def by_decade(self, f_lo=None, f_hi=None, quantity="share", drop_zero=True):
         """Split of the noise by source and frequency decade.
@@ -352,3 +378,102 @@ class NoiseSpectrum:
             f"|Zt(0)| {format_eng(a['transimpedance [ohm]'], 'ohm')}</p>"
         )
         return head + df.to_html(float_format=lambda v: f"{v:.4g}")
+
+
+def tia_noise(
+    tia,
+    net,
+    temperature=300.0,
+    *,
+    post_filter=None,
+    dark_current=None,
+    signal_current=None,
+    background_current=None,
+    stage2_noise=0.0,
+    stage2_noise_corner=0.0,
+    f_lo=1.0,
+    f_hi=np.inf,
+    rtol=DEFAULT_RTOL,
+):
+    """Noise spectrum of a transimpedance stage loaded by a photodiode.
+
+    Parameters
+    ----------
+    tia : photorx.Tia
+        The stage (amplifier, Rf, Cf).
+    net : photorx.EquivalentCircuit
+        Photodiode equivalent circuit at the operating point.
+    temperature : float
+        Temperature of the resistors [K], > 0.
+    post_filter : photorx.PostFilter, optional
+        Filter after the stage; multiplies every output density.
+    dark_current, signal_current, background_current : float, optional
+        Split of the diode's DC current [A], >= 0, shown as separate shot-noise sources
+        ``shot_dark``, ``shot_signal``, ``shot_background``; when given they replace
+        ``net.current`` (a ModelRangeWarning if their sum differs from it by more than 1 %).
+        When none is given, ``net.current`` is one source ``shot``.
+    stage2_noise, stage2_noise_corner : float
+        Input voltage noise of a following stage [V/rtHz] and its 1/f corner [Hz].
+    f_lo, f_hi : float
+        Default band of the integrals [Hz]: 1 Hz to infinity.
+    rtol : float
+        Relative tolerance of the integrals, default 1e-4.
+
+    Returns
+    -------
+    NoiseSpectrum
+    """
+    from ..circuit.filters import PostFilter
+    from ..circuit.tia import Tia
+
+    if not isinstance(tia, Tia):
+        raise DesignError(f"tia must be a Tia, got {type(tia).__name__}", parameter="tia")
+    if post_filter is not None and not isinstance(post_filter, PostFilter):
+        raise DesignError(
+            f"post_filter must be a PostFilter or None, got {type(post_filter).__name__}",
+            parameter="post_filter",
+        )
+    split = {
+        name: value
+        for name, value in (
+            ("dark", dark_current),
+            ("signal", signal_current),
+            ("background", background_current),
+        )
+        if value is not None
+    }
+    for name, value in split.items():
+        require_nonnegative(f"{name}_current", value, "A")
+    if split and np.any(np.asarray(net.current) > 0):
+        total = sum(np.asarray(v, dtype=float) for v in split.values())
+        if np.any(np.abs(total - net.current) > 0.01 * np.asarray(net.current)):
+            warnings.warn(
+                f"dark + signal + background current ({np.max(total):.4g} A) differs from "
+                f"net.current ({np.max(net.current):.4g} A); the split is used for the shot "
+                "noise",
+                ModelRangeWarning,
+                stacklevel=3,
+            )
+    amp = tia.amp
+    params = {
+        "gbw": amp.gbw,
+        "dc_gain": amp.dc_gain,
+        "poles": tuple(amp.poles),
+        "rf": tia.rf,
+        "cf": tia.cf,
+        "cd": net.capacitance,
+        "rsh": net.shunt_resistance,
+        "rs": net.series_resistance,
+        "cin": amp.input_capacitance,
+        "en": amp.voltage_noise,
+        "en_corner": amp.voltage_noise_corner,
+        "in_": amp.current_noise,
+        "in_corner": amp.current_noise_corner,
+        "temperature": float(require_positive("temperature", temperature, "K")),
+        "i_shot": split if split else net.current,
+        "stage2_noise": float(require_nonnegative("stage2_noise", stage2_noise, "V/rtHz")),
+        "stage2_corner": float(
+            require_nonnegative("stage2_noise_corner", stage2_noise_corner, "Hz")
+        ),
+    }
+    return NoiseSpectrum(params=params, post_filter=post_filter, f_lo=f_lo, f_hi=f_hi, rtol=rtol)

@@ -59,6 +59,20 @@ class OptimizationResult:
         True when a design satisfying every constraint was found.
     message : str
         What the optimiser reported.
+    evaluations : int
+        Designs evaluated.
+    flat : bool
+        True when the objective is flat: a feasible design with at least 10 % less reverse
+        bias comes within ``flat_tolerance`` of the optimum.
+    flat_tolerance : float
+        Relative objective tolerance of the flatness test (0.01: within 1 %).
+    low_bias_parameters : dict or None
+        When ``flat``: the varied parameters of the lowest-bias feasible design within the
+        tolerance (the others held at the optimum) [SI]; otherwise None.
+    low_bias_value : float or None
+        When ``flat``: the objective at that design.
+    notes : tuple of str
+        How the design's limits narrowed ``vary`` (e.g. the bias bounded by ``max_bias``).
     """
 
     receiver: object
@@ -71,12 +85,29 @@ class OptimizationResult:
     success: bool
     message: str = ""
     evaluations: int = 0
+    flat: bool = False
+    flat_tolerance: float = 0.01
+    low_bias_parameters: dict | None = None
+    low_bias_value: float | None = None
+    notes: tuple = ()
 
     def to_frame(self) -> pd.DataFrame:
-        """The optimum parameters and objective as a one-row table."""
-        row = dict(self.parameters)
-        row[self.objective] = self.value
-        return pd.DataFrame([row])
+        """The optimum's parameters and objective; a flat objective adds a second row, the
+        lowest-bias design within the tolerance (column ``point`` says which)."""
+        row = {"point": "optimum", **self.parameters, self.objective: self.value}
+        rows = [row]
+        if self.flat:
+            rows.append({"point": f"least bias within {100 * self.flat_tolerance:g} %",
+                         **self.low_bias_parameters, self.objective: self.low_bias_value})
+        return pd.DataFrame(rows)
+
+    def summary(self) -> str:
+        """A few lines of text: objective, feasibility, and what a flat objective means."""
+        lines = [f"{self.objective} = {self.value:.6g} "
+                 f"({'feasible' if self.success else 'infeasible'})"]
+        if self.flat:
+            lines.append(_flat_text(self))
+        return "\n".join(lines)
 
     def plot(self, ax=None):
         """The trade curve: objective and constraint figures against reverse bias, the
@@ -94,11 +125,27 @@ class OptimizationResult:
                                   title=f"Trade curve ({self.objective})")
 
     def _repr_html_(self) -> str:
+        import html
+
         head = f"<p><b>{self.objective}</b> = {self.value:.6g} ({'feasible' if self.success else 'infeasible'})</p>"
+        if self.flat:
+            head += f"<p>{html.escape(_flat_text(self))}</p>"
         return head + self.to_frame().to_html(index=False) + self.constraints.to_html(index=False)
 
 
-def _parse_constraints(constraints) -> list[tuple[str, str, float]]:
+def _flat_text(res) -> str:
+    v_best = res.parameters["reverse_bias"]
+    v_low = res.low_bias_parameters["reverse_bias"]
+    return (f"the objective is flat: {v_low:.4g} V gives {res.objective.split(' ', 1)[-1]} = "
+            f"{res.low_bias_value:.6g}, within {100 * res.flat_tolerance:g} % of the optimum at "
+            f"{v_best:.4g} V; the least bias for the same result is {v_low:.4g} V")
+
+
+def _constraint(name, op, limit, source="given", absolute=False) -> dict:
+    return dict(figure=name, relation=op, limit=limit, source=source, absolute=absolute)
+
+
+def _parse_constraints(constraints) -> list[dict]:
     out = []
     for name, spec in (constraints or {}).items():
         if isinstance(spec, (tuple, list)) and len(spec) == 2 and spec[0] in _OPS:
@@ -106,14 +153,47 @@ def _parse_constraints(constraints) -> list[tuple[str, str, float]]:
         elif isinstance(spec, dict) and set(spec) <= {"min", "max"}:
             for key, op in (("min", ">="), ("max", "<=")):
                 if key in spec:
-                    out.append((name, op, float(spec[key])))
+                    out.append(_constraint(name, op, float(spec[key])))
             continue
         else:
             raise DesignError(
                 f"constraint {name!r} = {spec!r} is invalid; write (\">=\", value), (\"<=\", value) "
                 "or {'min': value, 'max': value}", parameter=name)
-        out.append((name, op, float(limit)))
+        out.append(_constraint(name, op, float(limit)))
     return out
+
+
+def _design_limits(receiver, vary: dict) -> tuple[dict, list[dict], list[str]]:
+    """The limits a design sets: bias bounds on ``vary`` and constraints for the rest.
+
+    The reverse bias stays within the supply limit (``max_bias``) and below 99 % of the
+    breakdown estimate (the device models end there), as the trade-off notebook's span
+    does; every limit of :func:`photorx.analysis.checks.design_constraints` is a
+    constraint. Returns the narrowed ``vary``, the constraints and notes on what changed.
+    """
+    from .checks import design_constraints
+
+    vary = dict(vary)
+    notes = []
+    if "reverse_bias" in vary:
+        lo, hi = (float(b) for b in vary["reverse_bias"])
+        top, why = hi, ""
+        if receiver.max_bias is not None and float(receiver.max_bias) < top:
+            top, why = float(receiver.max_bias), f"the supply limit max_bias = {float(receiver.max_bias):g} V"
+        junction = getattr(receiver.photodiode_at_temperature(), "junction", None)
+        if callable(getattr(junction, "breakdown_voltage", None)):
+            vbr = float(np.min(junction.breakdown_voltage()))
+            if 0.99 * vbr < top:
+                top, why = 0.99 * vbr, f"99 % of the breakdown estimate {vbr:.4g} V"
+        if top < hi:
+            if top <= lo:
+                raise DesignError(f"vary['reverse_bias'] = ({lo:g}, {hi:g}) V lies beyond {why}; "
+                                  f"valid range: below {top:.4g} V", parameter="reverse_bias")
+            vary["reverse_bias"] = (lo, top)
+            notes.append(f"reverse bias bounded to {lo:g} .. {top:.4g} V by {why}")
+    cons = [_constraint(c["figure"], c["relation"], c["limit"], "design limit", c["absolute"])
+            for c in design_constraints(receiver)]
+    return vary, cons, notes
 
 
 def _objective_direction(objective) -> tuple[str, float]:
@@ -170,7 +250,8 @@ class _Space:
 
 
 def optimize(receiver, vary: dict, objective="snr", constraints: dict | None = None,
-             grid_points: int = 2000, trade_points: int = 41) -> OptimizationResult:
+             grid_points: int = 2000, trade_points: int = 41, design_limits: bool = True,
+             flat_tolerance: float = 0.01) -> OptimizationResult:
     """Find the design that optimises ``objective`` subject to ``constraints``.
 
     Parameters
@@ -195,6 +276,16 @@ def optimize(receiver, vary: dict, objective="snr", constraints: dict | None = N
         Approximate size of the coarse vectorised grid.
     trade_points : int
         Points of the trade curve against reverse bias.
+    design_limits : bool
+        Honour every limit the design sets (default): ``max_bias`` and the breakdown
+        estimate bound the reverse bias; the other limits of ``receiver.checks()`` (phase
+        margin, peaking, overshoot, output swing, dark current, bias power, bandwidth for
+        the bit rate) are constraints, listed with source ``"design limit"``.
+    flat_tolerance : float
+        Relative tolerance of the flatness test: when a feasible design with at least 10 %
+        less reverse bias comes within it of the optimum, the result is ``flat`` and
+        names the lowest-bias such design (a designer prefers the least bias for the same
+        result). 0 disables the test.
 
     Returns
     -------
@@ -205,9 +296,13 @@ def optimize(receiver, vary: dict, objective="snr", constraints: dict | None = N
                           parameter="vary")
     for name in vary:
         resolve_parameter(receiver, name)
-    space = _Space(vary)
     obj_name, sign = _objective_direction(objective)
     cons = _parse_constraints(constraints)
+    notes = []
+    if design_limits:
+        vary, design_cons, notes = _design_limits(receiver, vary)
+        cons += design_cons
+    space = _Space(vary)
 
     def table(values: dict) -> pd.DataFrame:
         return with_parameters(receiver, **values).evaluate().to_frame()
@@ -216,11 +311,16 @@ def optimize(receiver, vary: dict, objective="snr", constraints: dict | None = N
         obj = np.asarray(objective(frame) if callable(objective) else frame[_column(frame, obj_name)],
                          dtype=float) * (1.0 if callable(objective) else sign)
         viol = np.zeros(len(frame))
-        for name, op, limit in cons:
-            value = frame[_column(frame, name)].to_numpy(dtype=float)
-            scale = abs(limit) if limit != 0 else 1.0
-            slack = (value - limit) / scale if op == ">=" else (limit - value) / scale
-            viol += np.where(np.isfinite(slack), np.clip(-slack, 0, None), 1e3)
+        for c in cons:
+            value, limit = _constraint_values(frame, c)
+            scale = np.where(limit != 0, np.abs(limit), 1.0)
+            with np.errstate(invalid="ignore"):
+                slack = (value - limit) / scale if c["relation"] == ">=" else (limit - value) / scale
+            # a limit at infinity (no breakdown estimate) holds, and so does an infinite
+            # value on the right side (no phase crossover: gain margin >= 6 dB); a missing
+            # value (NaN) does not
+            slack = np.where(np.isinf(limit) & ~np.isnan(value), 1.0, slack)
+            viol += np.where(np.isnan(slack), 1e3, np.minimum(np.clip(-slack, 0, None), 1e3))
         viol += np.where(frame["stable"].to_numpy(dtype=bool), 0.0, 1e3)
         obj = np.where(np.isfinite(obj), obj, np.inf)
         return obj, viol
@@ -272,24 +372,69 @@ def optimize(receiver, vary: dict, objective="snr", constraints: dict | None = N
     best_frame = best_result.to_frame()
 
     rows = []
-    for name, op, limit in cons:
-        value = float(best_frame[_column(best_frame, name)].iloc[0])
-        slack = value - limit if op == ">=" else limit - value
-        tol = 0.01 * (abs(limit) if limit else 1.0)
-        rows.append(dict(figure=name, relation=op, limit=limit, value=value, slack=slack,
-                         satisfied=bool(slack >= -tol), active=bool(abs(slack) <= tol)))
+    for c in cons:
+        value, limit = (float(x[0]) for x in _constraint_values(best_frame, c))
+        with np.errstate(invalid="ignore"):
+            slack = value - limit if c["relation"] == ">=" else limit - value
+        tol = 0.01 * (abs(limit) if limit and np.isfinite(limit) else 1.0)
+        rows.append(dict(figure=c["figure"], relation=c["relation"], limit=limit, value=value,
+                         slack=slack, satisfied=bool(slack >= -tol) or bool(np.isinf(limit)),
+                         active=bool(abs(slack) <= tol), source=c["source"]))
     cons_frame = pd.DataFrame(rows, columns=["figure", "relation", "limit", "value", "slack",
-                                             "satisfied", "active"])
+                                             "satisfied", "active", "source"])
 
+    value = (float(best_frame[_column(best_frame, obj_name)].iloc[0]) if not callable(objective)
+             else o_best)
+    flat = None
+    if (flat_tolerance > 0 and not callable(objective) and "reverse_bias" in space.names
+            and v_best <= 0):
+        flat = _least_bias(best_rx, best_values, vary["reverse_bias"][0], value, sign,
+                           flat_tolerance, scores)
+        evaluations += _FLAT_POINTS
     trade = _trade_curve(best_rx, vary, trade_points, obj_name if not callable(objective) else None,
-                         [c[0] for c in cons])
+                         [c["figure"] for c in cons])
     return OptimizationResult(
         receiver=best_rx, result=best_result,
         objective=f"{'max' if sign < 0 else 'min'} {obj_name}",
-        value=float(best_frame[_column(best_frame, obj_name)].iloc[0]) if not callable(objective) else o_best,
-        parameters=best_values, constraints=cons_frame, trade_curve=trade,
+        value=value, parameters=best_values, constraints=cons_frame, trade_curve=trade,
         success=bool(v_best <= 0), message=str(res.message), evaluations=evaluations,
+        flat=flat is not None, flat_tolerance=float(flat_tolerance),
+        low_bias_parameters=None if flat is None else flat[0],
+        low_bias_value=None if flat is None else flat[1], notes=tuple(notes),
     )
+
+
+_FLAT_POINTS = 201  # bias points of the flatness test (a 0.5 % step of the bias span)
+
+
+def _least_bias(best_rx, best_values, low, value, sign, tolerance, scores):
+    """The lowest feasible bias, other parameters at the optimum, whose objective comes
+    within ``tolerance`` of ``value``; None unless it is at least 10 % below the optimum."""
+    v_best = best_values["reverse_bias"]
+    if not v_best > low:
+        return None
+    bias = np.linspace(low, v_best, _FLAT_POINTS)
+    frame = with_parameters(best_rx, reverse_bias=bias).evaluate().to_frame()
+    obj, viol = scores(frame)  # obj is signed: smaller is better
+    good = (viol <= 0) & (obj <= sign * value + tolerance * abs(value))
+    if not good.any():
+        return None
+    i = int(np.argmax(good))
+    if bias[i] > 0.9 * v_best:
+        return None  # nothing much cheaper: the objective is not flat
+    params = dict(best_values, reverse_bias=float(bias[i]))
+    return params, float(sign * obj[i])
+
+
+def _constraint_values(frame: pd.DataFrame, c: dict):
+    """Value and limit arrays of constraint ``c`` over the rows of ``frame``."""
+    value = frame[_column(frame, c["figure"])].to_numpy(dtype=float)
+    if c["absolute"]:
+        value = np.abs(value)
+    limit = c["limit"]
+    limit = (frame[_column(frame, limit)].to_numpy(dtype=float) if isinstance(limit, str)
+             else np.full(len(frame), float(limit)))
+    return value, limit
 
 
 def _trade_curve(rx, vary, n, obj_name, cons_names) -> pd.DataFrame:

@@ -14,81 +14,16 @@ import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
-import pandas as pd
 
 from .._validate import require_in_range, require_nonnegative, require_positive
 from ..circuit.filters import PostFilter
 from ..circuit.tia import Tia
 from ..errors import DesignError
+from .budget import receiver_budget
+from .evaluation import evaluate_receiver
+from .result import _TABLE_ORDER, BER_FIGURES, FIGURES, ReceiverResult  # noqa: F401  (re-exported)
 
 __all__ = ["Receiver", "ReceiverResult", "FIGURES"]
-
-#: Every scalar figure of a :class:`ReceiverResult`: name -> (unit, budget table, description).
-FIGURES = {
-    # operating point
-    "reverse_bias": ("V", "operating point", "reverse bias"),
-    "wavelength": ("m", "operating point", "wavelength"),
-    "optical_power": ("W", "operating point", "average optical power"),
-    "temperature": ("K", "operating point", "temperature"),
-    "depletion_width": ("m", "operating point", "depletion width"),
-    "capacitance": ("F", "operating point", "photodiode capacitance"),
-    "input_capacitance": ("F", "operating point", "total capacitance at the summing node"),
-    "responsivity": ("A/W", "operating point", "responsivity"),
-    "quantum_efficiency": ("", "operating point", "external quantum efficiency"),
-    "photocurrent": ("A", "operating point", "signal photocurrent"),
-    "background_current": ("A", "operating point", "background photocurrent"),
-    "dark_current": ("A", "operating point", "dark current"),
-    "shunt_resistance": ("ohm", "operating point", "shunt resistance"),
-    "series_resistance": ("ohm", "operating point", "series resistance"),
-    "breakdown_voltage": ("V", "operating point", "breakdown voltage (estimate)"),
-    # speed
-    "bandwidth": ("Hz", "speed", "-3 dB bandwidth of the whole chain"),
-    "loop_bandwidth": ("Hz", "speed", "-3 dB bandwidth of the transimpedance stage"),
-    "photodiode_bandwidth": ("Hz", "speed", "intrinsic bandwidth of the photodiode (transit and diffusion)"),
-    "transit_bandwidth": ("Hz", "speed", "transit-limited bandwidth of the photodiode"),
-    "transit_time": ("s", "speed", "carrier transit time across the depletion layer"),
-    "filter_bandwidth": ("Hz", "speed", "post-filter cutoff"),
-    "limited_by": ("", "speed", "the part that sets the bandwidth"),
-    "rise_time": ("s", "speed", "10-90 % rise time of the stage"),
-    "dc_transimpedance": ("ohm", "speed", "DC transimpedance"),
-    # stability
-    "stable": ("", "stability", "closed loop stable"),
-    "phase_margin": ("deg", "stability", "phase margin"),
-    "gain_margin_db": ("dB", "stability", "gain margin"),
-    "crossover": ("Hz", "stability", "loop-gain crossover frequency"),
-    "peaking_db": ("dB", "stability", "closed-loop peaking"),
-    "overshoot": ("", "stability", "step overshoot (fraction)"),
-    "q": ("", "stability", "closed-loop Q of the dominant pole pair"),
-    "settling_time": ("s", "stability", "1 % settling time"),
-    # noise
-    "noise_bandwidth": ("Hz", "noise", "equivalent noise bandwidth of the chain"),
-    "output_noise_rms": ("V", "noise", "integrated output noise"),
-    "input_noise_rms": ("A", "noise", "input-referred noise current"),
-    "input_noise_density": ("A/rtHz", "noise", "average input-referred density, rms/sqrt(ENBW)"),
-    "circuit_noise_rms": ("A", "noise", "input-referred noise without signal and dark shot noise"),
-    "noise_floor_rms": ("A", "noise", "input-referred noise without the signal's shot noise (the floor)"),
-    "noise_floor_density": ("A/rtHz", "noise", "noise floor, rms/sqrt(ENBW)"),
-    "dominant_noise_source": ("", "noise", "largest noise source"),
-    # sensitivity
-    "nep": ("W/rtHz", "sensitivity", "noise-equivalent power (noise floor / responsivity)"),
-    "min_detectable_power": ("W", "sensitivity", "optical power for SNR = 1 in the noise bandwidth (noise floor)"),
-    "snr": ("", "sensitivity", "analog SNR (power ratio) at the optical power"),
-    "snr_db": ("dB", "sensitivity", "analog SNR"),
-    "max_photocurrent": ("A", "sensitivity", "photocurrent at the output-swing limit"),
-    "dynamic_range_db": ("dB", "sensitivity", "output-swing limit over the noise floor (20 log10 of the current ratio)"),
-    "target_ber": ("", "sensitivity", "target bit-error ratio"),
-    "sensitivity": ("W", "sensitivity", "average optical power for the target BER"),
-    "sensitivity_dbm": ("dBm", "sensitivity", "sensitivity for the target BER"),
-    # checks
-    "bias_power": ("W", "checks", "power from the bias supply, bias x diode current"),
-    "bias_below_breakdown": ("", "checks", "reverse bias below the breakdown estimate"),
-    "bias_within_limit": ("", "checks", "reverse bias within the supply limit"),
-    "dark_current_within_limit": ("", "checks", "dark current within its limit"),
-    "bias_power_within_limit": ("", "checks", "bias-supply power within its limit"),
-    "bandwidth_for_bit_rate": ("", "checks", "bandwidth >= 0.7 x bit rate (NRZ rule of thumb)"),
-}
-
-_TABLE_ORDER = ("operating point", "speed", "stability", "noise", "sensitivity", "checks")
 
 
 @dataclass(frozen=True)
@@ -128,6 +63,12 @@ class Receiver:
     max_bias_power : float, optional
         Limit [W] on the power the bias supply delivers to the diode, reverse bias times
         (dark + signal + background) current, for the checks.
+    min_phase_margin : float
+        Smallest acceptable phase margin [deg], 0 to 90; default 45 (common practice).
+    max_peaking : float
+        Largest acceptable closed-loop peaking [dB], >= 0; default 3 (common practice).
+    max_overshoot : float, optional
+        Largest acceptable step overshoot (fraction of the final value), > 0.
     noise_band_low : float
         Lower edge of the noise integration [Hz], > 0 (1/f noise diverges at 0 Hz);
         the upper edge is infinite (the integral is extended until it converges).
@@ -149,6 +90,10 @@ class Receiver:
     max_bias: float | None = None
     max_bias_power: float | None = None
     noise_band_low: float = 1.0
+    # common practice for a feedback loop: >= 45 deg phase margin, <= 3 dB peaking
+    min_phase_margin: float = 45.0
+    max_peaking: float = 3.0
+    max_overshoot: float | None = None
 
     def __post_init__(self):
         set_ = object.__setattr__
@@ -182,6 +127,11 @@ class Receiver:
         if self.max_bias_power is not None:
             set_(self, "max_bias_power", require_positive("max_bias_power", self.max_bias_power, "W"))
         set_(self, "noise_band_low", require_positive("noise_band_low", self.noise_band_low, "Hz"))
+        set_(self, "min_phase_margin", float(require_in_range("min_phase_margin", self.min_phase_margin,
+                                                              "deg", 0.0, 90.0)))
+        set_(self, "max_peaking", float(require_nonnegative("max_peaking", self.max_peaking, "dB")))
+        if self.max_overshoot is not None:
+            set_(self, "max_overshoot", float(require_positive("max_overshoot", self.max_overshoot, "")))
 
     # -- composition -------------------------------------------------------------------
     def photodiode_at_temperature(self):
@@ -221,8 +171,6 @@ class Receiver:
 
         See :func:`photorx.analysis.evaluation.evaluate_receiver`.
         """
-        from .evaluation import evaluate_receiver
-
         try:
             return evaluate_receiver(self)
         except DesignError as exc:
@@ -235,64 +183,14 @@ class Receiver:
 
     def budget(self, title: str | None = None):
         """Budget tables of this (scalar) design: a :class:`~photorx.views.tables.Budget`."""
-        from .budget import receiver_budget
-
         return receiver_budget(self, title=title)
 
+    def checks(self):
+        """Every check of this (scalar) design against its limits, one row per check.
 
-@dataclass(frozen=True)
-class ReceiverResult:
-    """Every figure of a :class:`Receiver` evaluation; see :data:`FIGURES` for names and units.
+        Columns ``check`` (words), ``value``, ``limit``, ``unit`` (SI), ``ok`` (bool);
+        see :func:`photorx.analysis.checks.receiver_checks`.
+        """
+        from .checks import receiver_checks
 
-    ``values`` maps each figure name to a scalar or an array (one element per design
-    point); figures are also attributes (``result.bandwidth``). ``noise_by_source`` maps
-    each noise source to its input-referred rms current [A]. ``warnings`` lists model
-    warnings of the evaluation.
-    """
-
-    values: dict
-    noise_by_source: dict
-    warnings: tuple = ()
-
-    def __getattr__(self, name):
-        values = object.__getattribute__(self, "values")
-        if name in values:
-            value = values[name]
-            return np.asarray(value).item() if np.ndim(value) == 0 else value
-        raise AttributeError(f"ReceiverResult has no figure {name!r}; figures: {', '.join(values)}")
-
-    def __dir__(self):
-        return sorted(set(super().__dir__()) | set(self.values))
-
-    @property
-    def size(self) -> int:
-        """Number of design points."""
-        return int(np.size(self.values["bandwidth"]))
-
-    def to_dict(self) -> dict:
-        """Figures as a dict of Python scalars (single design) or numpy arrays."""
-        out = {}
-        for name, value in self.values.items():
-            arr = np.asarray(value)
-            out[name] = arr.item() if arr.ndim == 0 else arr
-        for name, value in self.noise_by_source.items():
-            arr = np.asarray(value)
-            out[f"noise_{name}"] = arr.item() if arr.ndim == 0 else arr
-        return out
-
-    def to_frame(self) -> pd.DataFrame:
-        """One row per design point, one column per figure (noise sources as ``noise_<source>`` [A])."""
-        data = {k: np.ravel(np.broadcast_to(np.asarray(v), np.shape(self.values["bandwidth"])))
-                for k, v in self.to_dict().items()}
-        return pd.DataFrame(data)
-
-    def _repr_html_(self) -> str:
-        from ..views.tables import display_value
-
-        frame = self.to_frame()
-        if len(frame) != 1:
-            return frame._repr_html_()
-        rows = "".join(
-            f"<tr><td>{FIGURES[k][2]}</td><td>{display_value(frame[k].iloc[0], FIGURES[k][0])}</td></tr>"
-            for k in FIGURES if k in frame)
-        return f"<table><tr><th>figure</th><th>value</th></tr>{rows}</table>"
+        return receiver_checks(self)

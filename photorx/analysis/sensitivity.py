@@ -8,7 +8,6 @@ referred to that input (see :class:`photorx.analysis.noise_spectrum.NoiseSpectru
 from __future__ import annotations
 
 import numpy as np
-from scipy import special
 
 from .._validate import require_finite, require_nonnegative, require_positive
 from ..constants import q as _Q
@@ -199,6 +198,8 @@ def ber_from_q(q_value):
     .. [2] G. P. Agrawal, *Fiber-Optic Communication Systems*, 4th ed., Wiley, 2010, sec. 4.5.
     """
     q_v = require_finite("q_value", q_value, "")
+    from scipy import special  # lazy: scipy.special costs ~0.15 s to import
+
     return 0.5 * special.erfc(np.asarray(q_v) / np.sqrt(2.0))
 
 
@@ -216,6 +217,8 @@ def q_from_ber(ber):
         raise DesignError.out_of_range(
             "ber", np.asarray(b)[bad].ravel()[0] if np.ndim(b) else b, "", "(0, 0.5)"
         )
+    from scipy import special
+
     return np.sqrt(2.0) * special.erfcinv(2.0 * np.asarray(b))
 
 

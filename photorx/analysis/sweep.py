@@ -21,27 +21,40 @@ __all__ = ["sweep", "grid"]
 
 #: Grids larger than this are evaluated in chunks (memory: each point carries a frequency grid).
 CHUNK = 4096
+#: Smallest chunk when a progress callback is given.
+PROGRESS_CHUNK = 256
 
 
-def grid(**axes) -> dict[str, np.ndarray]:
+def grid(max_points=None, **axes) -> dict[str, np.ndarray]:
     """Cartesian grid of the given axes, flattened: ``{name: array of length prod(len(axis))}``.
 
-    The first axis varies slowest (row-major order, as ``itertools.product``).
+    The first axis varies slowest (row-major order, as ``itertools.product``). A grid of
+    more than ``max_points`` points (None: no limit) is a :class:`DesignError`, raised
+    before the grid is built.
     """
     if not axes:
         raise DesignError("a sweep needs at least one axis, e.g. reverse_bias=np.linspace(0, 20, 81)")
     arrays = {}
     for name, values in axes.items():
-        arr = np.atleast_1d(np.asarray(values, dtype=float))
+        try:
+            arr = np.atleast_1d(np.asarray(values, dtype=float))
+        except (TypeError, ValueError):
+            raise DesignError(f"sweep axis {name!r} must be a 1-D sequence of numbers",
+                              parameter=name) from None
         if arr.ndim != 1 or arr.size == 0:
             raise DesignError(f"sweep axis {name!r} must be a non-empty 1-D sequence of numbers",
                               parameter=name)
         arrays[name] = arr
+    total = math.prod(a.size for a in arrays.values())
+    if max_points is not None and total > max_points:
+        raise DesignError(f"the sweep grid has {total} points, more than max_points = "
+                          f"{max_points}; use fewer points or raise max_points",
+                          parameter="max_points")
     mesh = np.meshgrid(*arrays.values(), indexing="ij")
     return {name: m.ravel() for name, m in zip(arrays, mesh)}
 
 
-def sweep(receiver, progress=None, **axes) -> pd.DataFrame:
+def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     """Evaluate ``receiver`` over the cartesian grid of ``axes``.
 
     Parameters
@@ -49,7 +62,11 @@ def sweep(receiver, progress=None, **axes) -> pd.DataFrame:
     receiver : Receiver
         The base design; parameters not swept keep its values.
     progress : callable, optional
-        Called as ``progress(done, total)`` after each chunk (the command line shows a bar).
+        Called as ``progress(done, total)`` after each chunk (the command line shows a bar);
+        with it, grids are evaluated in at least about 20 chunks so that the bar moves.
+    max_points : int, optional
+        Largest grid to evaluate; a larger one is a :class:`DesignError` raised before any
+        work (None: no limit; the command line sets 10^6).
     **axes : array_like
         Parameter name (a field name anywhere in the receiver tree such as
         ``reverse_bias``, ``rf``, ``cf``, ``area``, ``i_thickness``, ``wavelength``,
@@ -72,11 +89,13 @@ def sweep(receiver, progress=None, **axes) -> pd.DataFrame:
     """
     for name in axes:
         resolve_parameter(receiver, name.replace("__", "."))  # fail early, naming the axis
-    points = grid(**axes)
+    points = grid(max_points=max_points, **axes)
     total = len(next(iter(points.values())))
+    # a progress bar needs steps; each chunk stays large enough to stay vectorised
+    size = CHUNK if progress is None else min(CHUNK, max(PROGRESS_CHUNK, -(-total // 20)))
     frames = []
-    for start in range(0, total, CHUNK):
-        chunk = {k: v[start:start + CHUNK] for k, v in points.items()}
+    for start in range(0, total, size):
+        chunk = {k: v[start:start + size] for k, v in points.items()}
         rx = with_parameters(receiver, **chunk)
         frame = rx.evaluate().to_frame()
         frame.insert(0, "point", np.arange(start, start + len(frame)))
@@ -88,7 +107,7 @@ def sweep(receiver, progress=None, **axes) -> pd.DataFrame:
                 frame.insert(1 + i, column, values)
         frames.append(frame)
         if progress is not None:
-            progress(min(start + CHUNK, total), total)
+            progress(min(start + size, total), total)
     out = pd.concat(frames, ignore_index=True)
     return out.drop(columns="point")
 

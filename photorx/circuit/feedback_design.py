@@ -40,7 +40,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from .._validate import require_in_range, require_positive
 from ..errors import DesignError
@@ -216,6 +215,8 @@ def design_feedback_capacitor(amp, rf, net, target="butterworth", phase_margin=N
                 f"target = {target} ({what} {target_value:.4g}) is not reached for cf from 0 "
                 f"to cf_max = {cf_max:.4g} F (closest {what}: {best:.4g}); an extra amplifier "
                 "pole or too little gain-bandwidth may limit it", parameter="target")
+        from scipy.optimize import brentq  # lazy: scipy.optimize costs ~0.3 s to import
+
         k = done[0]
         if k == 0:
             lo, hi = 0.0, grid[0]

@@ -17,7 +17,6 @@ from functools import cache
 from math import factorial
 
 import numpy as np
-from scipy import integrate, optimize
 
 from .._validate import require_positive
 from ..errors import DesignError
@@ -91,10 +90,20 @@ def normalized_poles(kind, order):
         ]  # highest power first
         poles = np.roots(coeffs)
 
-        def excess(w):  # |H(jw)|^2 - 1/2 with H = prod(-p) / prod(jw - p)
-            return float(np.abs(np.prod(-poles) / np.prod(1j * w - poles)) ** 2 - 0.5)
-
-        w3 = optimize.brentq(excess, 1e-3, 1e3, xtol=1e-15, rtol=1e-15)
+        # |H(jw)|^2 = 1/2 with H = D(0)/D(s): |D(jw)|^2 = D(s) D(-s) at s^2 = -w^2 is a
+        # polynomial in x = w^2 that rises monotonically from D(0)^2; its one positive root
+        # x = w3^2 is polished by Newton steps (numpy only: no solver import on this path)
+        d = np.asarray(coeffs[::-1], dtype=float)  # lowest power first
+        d_minus = d * (-1.0) ** np.arange(d.size)
+        prod = np.polynomial.polynomial.polymul(d, d_minus)  # even powers of s only
+        px = prod[::2] * (-1.0) ** np.arange(prod[::2].size)  # s^2 -> -x
+        px[0] -= 2.0 * d[0] ** 2
+        roots = np.polynomial.polynomial.polyroots(px)
+        x = float(np.max(roots[(np.abs(roots.imag) < 1e-9 * np.abs(roots)) & (roots.real > 0)].real))
+        dpx = np.polynomial.polynomial.polyder(px)
+        for _ in range(3):
+            x -= np.polynomial.polynomial.polyval(x, px) / np.polynomial.polynomial.polyval(x, dpx)
+        w3 = np.sqrt(x)
         return tuple(poles / w3)
     raise DesignError(f"kind = {kind!r} has no poles (brick-wall filter)", parameter="kind")
 
@@ -171,6 +180,8 @@ def filter_enbw_factor(kind, order):
 
     def power(x):
         return float(np.abs(filter_response(x, kind, order, 1.0)) ** 2)
+
+    from scipy import integrate  # lazy, as above
 
     low, _ = integrate.quad(power, 0.0, 1.0, epsabs=0, epsrel=1e-12)
     high, _ = integrate.quad(power, 1.0, np.inf, epsabs=0, epsrel=1e-12, limit=200)

@@ -210,6 +210,6 @@ class Tia:
 
     def noise(self, net, temperature=300.0, **options):
         """Noise spectrum of every source at the output; see :mod:`photorx.analysis.noise`."""
-        from ..analysis.noise import tia_noise
+        from ..analysis.noise_spectrum import tia_noise
 
         return tia_noise(self, net, temperature=temperature, **options)

@@ -29,6 +29,7 @@ from .optics import require_thickness_or_inf
 __all__ = [
     "DEFAULT_LIFETIMES",
     "default_lifetimes",
+    "lifetime_at_temperature",
     "diffusivity",
     "diffusion_length",
     "diffusion_saturation_current",
@@ -60,6 +61,37 @@ def _out(x):
 def default_lifetimes(name: str):
     """(lifetime, generation_lifetime) [s] for a material name; (1 us, 1 us) if unknown."""
     return DEFAULT_LIFETIMES.get(name, _FALLBACK_LIFETIMES)
+
+
+def lifetime_at_temperature(lifetime_300, temperature):
+    """Shockley-Read-Hall lifetime at temperature from its 300 K value [s].
+
+    Parameters
+    ----------
+    lifetime_300 : float or array_like
+        Lifetime at 300 K [s], > 0.
+    temperature : float or array_like
+        Temperature [K].
+
+    Notes
+    -----
+    tau = 1 / (sigma v_th N_t) with the thermal velocity v_th = sqrt(3 k T / m*), so at a
+    fixed capture cross-section sigma and trap density N_t, tau(T) = tau(300 K)
+    (T / 300 K)^-1/2. This is the first-order law; capture cross-sections of real
+    defects also vary with temperature, so treat it as a 200-400 K estimate. The same law
+    applies to the generation lifetime of a mid-gap centre (tau_g = 2 tau_0 cosh((E_t -
+    E_i)/kT) with E_t = E_i).
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 1 (recombination: tau = 1/(sigma v_th N_t), v_th = sqrt(3kT/m*)).
+    .. [2] W. Shockley and W. T. Read, Statistics of the recombinations of holes and
+       electrons, Physical Review 87, 835 (1952).
+    """
+    tau = require_positive("lifetime", lifetime_300, "s")
+    t = require_positive("temperature", temperature, "K")
+    return _out(np.asarray(tau) * (np.asarray(t) / 300.0) ** -0.5)
 
 
 def diffusivity(mobility, temperature=300.0):

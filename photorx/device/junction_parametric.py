@@ -10,7 +10,6 @@ from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
-from scipy.optimize import least_squares
 
 from .._validate import require_finite, require_in_range, require_positive
 from ..errors import DesignError
@@ -298,6 +297,8 @@ def fit_parametric_junction(junction=None, bias=None, capacitance=None, bias_ran
     m0 = -(log_c[np.argmax(v)] - log_c[np.argmin(v)]) / span if span > 0 else 0.4
     m0 = float(np.clip(m0, m_lo + 1e-6, m_hi - 1e-6))
     x0 = [log_c[i0] + m0 * np.log(max(1 + v[i0] / vj0, 1e-3)), np.log(vj0), m0]
+    from scipy.optimize import least_squares  # lazy: only fits need it
+
     sol = least_squares(resid, x0, bounds=([-np.inf, np.log(_VJ_RANGE[0]), m_lo],
                                            [np.inf, np.log(_VJ_RANGE[1]), m_hi]),
                         x_scale=[1.0, 1.0, 0.1], xtol=1e-14, ftol=1e-14, gtol=1e-14)

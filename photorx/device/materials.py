@@ -11,7 +11,7 @@ Examples
 >>> import photorx as prx
 >>> si = prx.material("Si")
 >>> round(si.band_gap(300.0), 3)
-1.124
+1.123
 """
 
 from __future__ import annotations
@@ -37,6 +37,7 @@ __all__ = [
     "check_temperature",
     "band_gap_varshni",
     "universal_breakdown_voltage",
+    "intrinsic_density_from_states",
 ]
 
 #: Temperatures [K] over which the device models are offered (DesignError outside).
@@ -56,8 +57,9 @@ _UNIT_FACTORS = {
     "V/cm": 1e2,
 }
 
-_FIELDS = ("eps_r", "eg_0k", "varshni_alpha", "varshni_beta", "nc_300", "nv_300", "ni_300",
-           "mu_n", "mu_p", "v_sat_n", "v_sat_p", "e_crit")
+_FIELDS = ("eps_r", "eg_0k", "varshni_alpha", "varshni_beta", "nc_300", "nv_300",
+           "mu_n", "mu_p", "v_sat_n", "v_sat_p", "e_crit", "mu_n_exponent", "mu_p_exponent",
+           "v_sat_n_coefficient", "v_sat_p_coefficient")
 
 
 def check_temperature(temperature, name: str = "temperature"):
@@ -97,6 +99,30 @@ def band_gap_varshni(temperature, eg_0k, alpha, beta):
     """
     t = np.asarray(temperature, dtype=float)
     out = eg_0k - alpha * t**2 / (t + beta)
+    return out if np.ndim(out) else float(out)
+
+
+def intrinsic_density_from_states(nc, nv, band_gap, temperature):
+    """Intrinsic carrier density ni = sqrt(Nc Nv) exp(-Eg / 2kT) [m^-3].
+
+    Parameters
+    ----------
+    nc, nv : float or array_like
+        Effective densities of states of conduction and valence band at ``temperature``
+        [m^-3].
+    band_gap : float or array_like
+        Band gap at ``temperature`` [eV].
+    temperature : float or array_like
+        Temperature [K], > 0.
+
+    References
+    ----------
+    .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
+       2007, ch. 1, Eq. (25).
+    """
+    t = np.asarray(temperature, dtype=float)
+    out = np.sqrt(np.asarray(nc) * np.asarray(nv)) * np.exp(-np.asarray(band_gap) * q
+                                                           / (2.0 * k * t))
     return out if np.ndim(out) else float(out)
 
 
@@ -159,6 +185,12 @@ class Material:
     e_crit : float
         Nominal critical (breakdown) field as tabulated [V/m]; the junction models use the
         doping-dependent :meth:`critical_field`.
+    mu_n_exponent, mu_p_exponent : float, optional
+        Temperature exponents gamma of the lattice mobility, mu(T) = mu(300 K)
+        (T / 300 K)^-gamma [-] (default 0: no temperature dependence).
+    v_sat_n_coefficient, v_sat_p_coefficient : float, optional
+        Coefficient A of the saturation velocity law v_sat(T) = v_sat(300 K) /
+        ((1 - A) + A T / 300 K) [-], 0 to 1 (default 0: constant).
     sources : Mapping[str, str]
         Field name -> citation of the published value (read-only).
 
@@ -181,12 +213,22 @@ class Material:
     v_sat_n: float
     v_sat_p: float
     e_crit: float
+    mu_n_exponent: float = 0.0
+    mu_p_exponent: float = 0.0
+    v_sat_n_coefficient: float = 0.0
+    v_sat_p_coefficient: float = 0.0
     sources: Mapping[str, str] = field(default_factory=dict, compare=False, hash=False, repr=False)
 
     def __post_init__(self):
         units = {"eps_r": "", "eg_0k": "eV", "varshni_alpha": "eV/K", "varshni_beta": "K",
                  "nc_300": "m^-3", "nv_300": "m^-3", "ni_300": "m^-3", "mu_n": "m^2/(V s)",
                  "mu_p": "m^2/(V s)", "v_sat_n": "m/s", "v_sat_p": "m/s", "e_crit": "V/m"}
+        for name in ("mu_n_exponent", "mu_p_exponent"):
+            object.__setattr__(self, name, float(require_in_range(name, getattr(self, name),
+                                                                  "", 0.0, 4.0)))
+        for name in ("v_sat_n_coefficient", "v_sat_p_coefficient"):
+            object.__setattr__(self, name, float(require_in_range(name, getattr(self, name),
+                                                                  "", 0.0, 1.0)))
         for name, unit in units.items():
             if name == "varshni_alpha":
                 value = require_in_range(name, getattr(self, name), unit, 0.0)
@@ -194,6 +236,17 @@ class Material:
                 value = require_positive(name, getattr(self, name), unit)
             object.__setattr__(self, name, float(value))
         object.__setattr__(self, "sources", MappingProxyType(dict(self.sources)))
+
+    @property
+    def optical_source(self) -> str:
+        """The published data sets behind this material's n, k table (author, year, page).
+
+        Text of the header of ``photorx/data/optical_<name>.csv``; see
+        :mod:`~photorx.device.optical_data`. DesignError for a material without a table.
+        """
+        from .optical_data import optical_source
+
+        return optical_source(self.name)
 
     @property
     def permittivity(self) -> float:
@@ -221,10 +274,11 @@ class Material:
         Notes
         -----
         ni(T) = ni(300 K) (T / 300 K)^(3/2) exp(Eg(300 K) / (2 k 300 K) - Eg(T) / (2 k T)),
-        the ratio of ni = sqrt(Nc Nv) exp(-Eg / 2kT) at T and at 300 K. Anchoring at the
-        tabulated ni(300 K) keeps 300 K exact (the tabulated ni of Si is not
-        sqrt(Nc Nv) exp(-Eg/2kT) with the tabulated Nc, Nv, Eg). Valid 50-600 K; for Si
-        it agrees with Misiakos and Tsamakis (1993) within about 10 % over 200-450 K.
+        the ratio of ni = sqrt(Nc Nv) exp(-Eg / 2kT) at T and at 300 K. The shipped
+        materials have ni(300 K) computed from their Nc, Nv and Eg, so this is
+        sqrt(Nc(T) Nv(T)) exp(-Eg(T)/2kT) itself; a user-set ``ni_300`` (e.g. a textbook
+        example's) anchors the same law. Valid 50-600 K; for Si it agrees with Misiakos
+        and Tsamakis (1993) within about 10 % over 250-400 K.
 
         References
         ----------
@@ -238,6 +292,54 @@ class Material:
         out = self.ni_300 * (t / _T_REF) ** 1.5 * np.exp(eg_r / (2 * kq * _T_REF)
                                                          - eg_t / (2 * kq * t))
         return out if np.ndim(out) else float(out)
+
+    def mobility(self, carrier, temperature=_T_REF):
+        """Low-field (lattice) mobility of ``carrier`` ("n" or "p") at temperature [m^2/(V s)].
+
+        Notes
+        -----
+        mu(T) = mu(300 K) (T / 300 K)^-gamma, the lattice-scattering law of lightly doped
+        material (gamma: ``mu_n_exponent`` / ``mu_p_exponent``; Si 2.33 / 2.23 after Arora
+        et al. 1982, III-V after Sotoodeh et al. 2000). Valid roughly 200-400 K for doping
+        below ~1e16 cm^-3, where lattice scattering dominates (Si: within 8 % of Arora's
+        full model there; it omits that model's weak T^-0.57 term, so it falls faster
+        above 400 K); ionised-impurity scattering of heavily doped layers is not modelled.
+
+        References
+        ----------
+        .. [1] N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices
+           29, 292 (1982).
+        .. [2] M. Sotoodeh, A. H. Khalid and A. A. Rezazadeh, J. Appl. Phys. 87, 2890
+           (2000).
+        """
+        return self._transport(carrier, "mu", check_temperature(temperature))
+
+    def saturation_velocity(self, carrier, temperature=_T_REF):
+        """Saturation velocity of ``carrier`` ("n" or "p") at temperature [m/s].
+
+        Notes
+        -----
+        v_sat(T) = v_sat(300 K) / ((1 - A) + A T / 300 K) (A: ``v_sat_n_coefficient`` /
+        ``v_sat_p_coefficient``), falling with temperature as phonon emission grows.
+
+        References
+        ----------
+        .. [1] R. Quay, C. Moglestue, V. Palankovski and S. Selberherr, Materials Science
+           in Semiconductor Processing 3, 149 (2000).
+        """
+        return self._transport(carrier, "v_sat", check_temperature(temperature))
+
+    def _transport(self, carrier, what, temperature):
+        """mobility ("mu") or saturation velocity ("v_sat") at an already checked T."""
+        if carrier not in ("n", "p"):
+            raise DesignError(f"carrier = {carrier!r} is invalid; valid: 'n' or 'p'",
+                              parameter="carrier")
+        t = np.asarray(temperature, dtype=float) / _T_REF
+        if what == "mu":
+            mu, g = getattr(self, f"mu_{carrier}"), getattr(self, f"mu_{carrier}_exponent")
+            return _scalar_or_array(mu * t**-g) if g else mu + 0.0 * t
+        v, a = getattr(self, f"v_sat_{carrier}"), getattr(self, f"v_sat_{carrier}_coefficient")
+        return _scalar_or_array(v / ((1.0 - a) + a * t))
 
     def cutoff_wavelength(self, temperature=_T_REF):
         """Long-wavelength absorption edge lambda_c = h c / Eg(T) [m]."""
@@ -296,6 +398,14 @@ def _table() -> dict:
     for name, rec in data.items():
         values = {key: _convert(rec[key], name, key) for key in _FIELDS}
         sources = {key: cites[rec[key]["source"]] for key in _FIELDS}
+        values["ni_300"] = intrinsic_density_from_states(
+            values["nc_300"], values["nv_300"],
+            band_gap_varshni(_T_REF, values["eg_0k"], values["varshni_alpha"],
+                             values["varshni_beta"]), _T_REF)
+        sources["ni_300"] = ("computed: sqrt(Nc Nv) exp(-Eg/2kT) at 300 K (Sze and Ng 2007, "
+                             "ch. 1, Eq. (25)) from Nc, Nv and the Varshni gap; tabulated "
+                             f"value {_convert(rec['ni_300_published'], name, 'ni'):.3g} m^-3 "
+                             f"({cites[rec['ni_300_published']['source']]})")
         out[name.lower()] = Material(name=name, sources=sources, **values)
     return out
 

@@ -1,8 +1,10 @@
 """Optics of a photodiode: absorption data, quantum efficiency and responsivity.
 
-Functional core (pure, vectorised, SI): :func:`interpolate_absorption` reads the shipped
-absorption tables (``photorx/data/absorption_<material>.csv``, each naming its published
-source in its header), :func:`internal_quantum_efficiency` collects the carriers of a
+Functional core (pure, vectorised, SI): :func:`absorption_coefficient` interpolates the
+shipped n, k tables (:mod:`~photorx.device.optical_data`, extracted from the
+refractiveindex.info database, each naming its data sets), :func:`fresnel_reflectance`
+and :func:`coated_reflectance` give the front reflectance from the complex index,
+:func:`internal_quantum_efficiency` collects the carriers of a
 front-illuminated layer stack (undepleted top layer | depletion layer | undepleted bottom
 layer), and :func:`responsivity_from_qe` turns quantum efficiency into A/W.
 
@@ -21,14 +23,12 @@ reflectance [-]; ``qe`` external quantum efficiency [-] (electrons per incident 
 
 from __future__ import annotations
 
-import functools
-from importlib import resources
-
 import numpy as np
 
 from .._validate import as_float_array, require_in_range, require_nonnegative, require_positive
 from ..constants import c, h, q
 from ..errors import DesignError
+from . import optical_data as _od
 
 __all__ = [
     "ABSORPTION_MATERIALS",
@@ -38,6 +38,7 @@ __all__ = [
     "absorption_coefficient",
     "photon_energy",
     "fresnel_reflectance",
+    "coated_reflectance",
     "responsivity_from_qe",
     "qe_from_responsivity",
     "top_layer_collection",
@@ -50,7 +51,7 @@ __all__ = [
 ]
 
 #: Materials with a shipped absorption table (names as :func:`photorx.material` spells them).
-ABSORPTION_MATERIALS = ("Si", "Ge", "GaAs", "InP", "InGaAs")
+ABSORPTION_MATERIALS = _od.OPTICAL_MATERIALS
 
 _T_REF = 300.0  # temperature of the tables [K]
 _HC_EV_M = h * c / q  # photon energy times wavelength [eV m]; 1.23984e-6
@@ -61,38 +62,10 @@ def _out(x):
 
 
 # ---------------------------------------------------------------------------------------
-# absorption data
+# absorption data (photorx.device.optical_data holds the tables)
 # ---------------------------------------------------------------------------------------
-def _table_key(name: str) -> str:
-    key = str(name).strip().lower()
-    if key in ("in0.53ga0.47as", "ga0.47in0.53as"):
-        key = "ingaas"
-    for known in ABSORPTION_MATERIALS:
-        if known.lower() == key:
-            return known
-    raise DesignError(f"material = {name!r} has no absorption table; tables exist for "
-                      f"{', '.join(ABSORPTION_MATERIALS)} (or give the responsivity directly)",
-                      parameter="material")
-
-
-@functools.lru_cache(maxsize=None)
-def _load(name: str):
-    text = resources.files("photorx").joinpath(f"data/absorption_{name.lower()}.csv").read_text(
-        encoding="utf-8")
-    header = [ln[1:].strip() for ln in text.splitlines() if ln.startswith("#")]
-    rows = [ln for ln in text.splitlines() if ln and not ln.startswith("#")]
-    data = np.array([[float(v) for v in ln.split(",")] for ln in rows[1:]])
-    wl = data[:, 0] * 1e-9  # nm -> m
-    alpha = data[:, 1] * 1e2  # cm^-1 -> m^-1
-    if np.any(np.diff(wl) <= 0) or np.any(alpha <= 0):  # package bug, not user error
-        raise RuntimeError(f"absorption_{name.lower()}.csv: wavelengths must increase, alpha > 0")
-    wl.flags.writeable = False
-    alpha.flags.writeable = False
-    return wl, alpha, "\n".join(header)
-
-
 def absorption_table(name: str):
-    """Shipped absorption table of a material at 300 K.
+    """Shipped absorption data of a material at 300 K.
 
     Parameters
     ----------
@@ -104,15 +77,15 @@ def absorption_table(name: str):
     wavelength : numpy.ndarray
         Vacuum wavelengths [m], increasing (read-only).
     alpha : numpy.ndarray
-        Absorption coefficient [m^-1] (read-only).
+        Absorption coefficient 4 pi k / lambda [m^-1] (read-only).
     """
-    wl, alpha, _ = _load(_table_key(name))
-    return wl, alpha
+    t = _od._load(_od.table_key(name))
+    return t.wavelength, t.alpha
 
 
 def absorption_source(name: str) -> str:
-    """Header of a material's absorption file: the published source and its caveats."""
-    return _load(_table_key(name))[2]
+    """Header of a material's n, k file: the data sets (author, year, database page)."""
+    return _od.optical_source(name)
 
 
 def photon_energy(wavelength):
@@ -147,57 +120,37 @@ def interpolate_absorption(wavelength, table_wavelength, table_alpha, band_gap, 
     Returns
     -------
     float or numpy.ndarray
-        alpha [m^-1]; 0 for photon energies below ``band_gap``.
+        alpha [m^-1]. Below the band gap the table's own sub-gap tail applies; beyond the
+        table's long end (where the data reach negligible absorption) alpha is 0.
 
     Raises
     ------
     DesignError
-        A wavelength above the band gap energy but outside the table; the message names
-        the table range.
+        A wavelength shorter than the (shifted) table; the message names the range.
 
     Notes
     -----
     E = h c / lambda; E_ref = E - (Eg(T) - Eg(T_ref)); alpha(E, T) = alpha_ref(E_ref),
-    ln(alpha) interpolated linearly in photon energy between table points; alpha = 0 for
-    E < Eg(T). The rigid shift of the absorption edge with the band gap is the usual
-    first-order temperature model (it reproduces the sign and rough size of the red-edge
-    temperature coefficient); the weak phonon-assisted absorption just below the gap of
-    indirect semiconductors is neglected.
+    ln(alpha) interpolated linearly in photon energy between table points. The rigid
+    shift of the absorption edge with the band gap is the usual first-order temperature
+    model: it reproduces the sign and size of the red-edge temperature coefficient (for Si
+    about +1 %/K at 1064 nm, Green 2008), not the broadening of the edge.
 
     References
     ----------
     .. [1] M. A. Green, Self-consistent optical parameters of intrinsic silicon at 300 K
        including temperature coefficients, Solar Energy Materials & Solar Cells 92, 1305
-       (2008) (temperature coefficients of alpha follow the gap shift near the edge).
+       (2008).
     """
-    wl = require_positive("wavelength", wavelength, "m")
     t_wl = np.asarray(table_wavelength, dtype=float)
     t_a = np.asarray(table_alpha, dtype=float)
-    e = _HC_EV_M / np.asarray(wl, dtype=float)
     shift = np.asarray(band_gap, dtype=float) - np.asarray(band_gap_ref, dtype=float)
-    e_ref = e - shift
-    above = e >= np.asarray(band_gap, dtype=float)
-    e_lo, e_hi = _HC_EV_M / t_wl[-1], _HC_EV_M / t_wl[0]
-    outside = above & ((e_ref < e_lo * (1 - 1e-12)) | (e_ref > e_hi * (1 + 1e-12)))
-    if np.any(outside):
-        bad = np.broadcast_to(np.asarray(wl), outside.shape)[outside]
-        sh = float(np.broadcast_to(shift, outside.shape)[outside][0])
-        # the valid range at this temperature: the table's energies moved with the gap
-        lo_wl, hi_wl = _HC_EV_M / (e_hi + sh), _HC_EV_M / max(e_lo + sh, 1e-30)
-        note = "" if sh == 0 else (f", {t_wl[0] * 1e9:.0f} to {t_wl[-1] * 1e9:.0f} nm at "
-                                   "300 K shifted with the band gap")
-        raise DesignError.out_of_range(
-            "wavelength", bad[0] if bad.size else wl, "m",
-            f"{lo_wl:.4g} to {hi_wl:.4g} m ({lo_wl * 1e9:.0f} to {hi_wl * 1e9:.0f} nm,"
-            f" range of the {table_name} table{note})")
-    # np.interp needs increasing abscissae: energies of the reversed table
-    log_a = np.interp(e_ref, (_HC_EV_M / t_wl)[::-1], np.log(t_a)[::-1])
-    out = np.where(above, np.exp(log_a), 0.0)
-    return _out(out)
+    return _od.shifted_absorption(wavelength, (_HC_EV_M / t_wl)[::-1], np.log(t_a)[::-1],
+                                  shift, table_name)
 
 
 def absorption_coefficient(wavelength, material, temperature=_T_REF):
-    """Absorption coefficient of a semiconductor from the shipped tables [m^-1].
+    """Absorption coefficient of a semiconductor from the shipped n, k tables [m^-1].
 
     Parameters
     ----------
@@ -205,34 +158,43 @@ def absorption_coefficient(wavelength, material, temperature=_T_REF):
         Vacuum wavelength [m].
     material : Material or str
         A :class:`~photorx.device.materials.Material` or its name; its band gap sets the
-        cutoff and the temperature shift.
+        temperature shift.
     temperature : float or array_like, optional
         Temperature [K] (default 300).
 
     Returns
     -------
     float or numpy.ndarray
-        alpha [m^-1]; zero beyond the cutoff wavelength h c / Eg(T).
+        alpha = 4 pi k / lambda [m^-1], with the data's sub-gap tail (no cut at Eg).
 
     Notes
     -----
-    See :func:`interpolate_absorption`; the sources of each table are in
-    :func:`absorption_source` and reference/SOURCES.md.
+    See :func:`interpolate_absorption`; the data sets of each table are in
+    :func:`absorption_source` and reference/SOURCES.md. The tables are read once and
+    cached; the lookup is one ``numpy.interp`` on ln(alpha).
 
     References
     ----------
     .. [1] M. A. Green, Solar Energy Materials & Solar Cells 92, 1305 (2008) (Si).
-    .. [2] W. C. Dash and R. Newman, Physical Review 99, 1151 (1955) (Ge).
-    .. [3] D. E. Aspnes and A. A. Studna, Physical Review B 27, 985 (1983) (GaAs, InP).
-    .. [4] D. A. Humphreys et al., Electronics Letters 21, 1187 (1985) (In0.53Ga0.47As).
+    .. [2] T. N. Nunley et al., J. Vac. Sci. Technol. B 34, 061205 (2016) (Ge).
+    .. [3] D. E. Aspnes et al., J. Appl. Phys. 60, 754 (1986) (GaAs); D. E. Aspnes and
+       A. A. Studna, Phys. Rev. B 27, 985 (1983) (InP).
+    .. [4] S. Adachi, J. Appl. Phys. 66, 6030 (1989) (edges of GaAs and InP, and
+       In0.53Ga0.47As).
+    .. [5] M. N. Polyanskiy, Refractiveindex.info database of optical constants,
+       Scientific Data 11, 94 (2024).
     """
     from .materials import material as _material
 
     mat = _material(material) if isinstance(material, str) else material
-    key = _table_key(mat.name)
-    wl_t, a_t, _ = _load(key)
-    return interpolate_absorption(wavelength, wl_t, a_t, mat.band_gap(temperature),
-                                  mat.band_gap(_T_REF), table_name=f"{key} absorption")
+    key = _od.table_key(mat.name)
+    t = _od._load(key)
+    if np.ndim(temperature) == 0 and temperature == _T_REF:
+        shift = 0.0  # the tables' own temperature: no band-gap lookups
+    else:
+        shift = np.asarray(mat.band_gap(temperature)) - mat.band_gap(_T_REF)
+    return _od.shifted_absorption(wavelength, t.energy, t.log_alpha, shift,
+                                  f"{key} absorption")
 
 
 def fresnel_reflectance(refractive_index, ambient_index=1.0):
@@ -240,23 +202,73 @@ def fresnel_reflectance(refractive_index, ambient_index=1.0):
 
     Parameters
     ----------
-    refractive_index : float or array_like
-        Refractive index of the semiconductor [-], >= 1.
+    refractive_index : float, complex or array_like
+        Refractive index of the semiconductor [-]: real n >= 1, or complex n - i k
+        (k >= 0; the sign of the imaginary part does not matter for R).
     ambient_index : float or array_like, optional
         Refractive index of the medium the light comes from [-] (1 = air).
 
     Notes
     -----
-    R = ((n - n0) / (n + n0))^2 (absorption neglected, k << n).
+    R = |(N - n0) / (N + n0)|^2 = ((n - n0)^2 + k^2) / ((n + n0)^2 + k^2).
 
     References
     ----------
-    .. [1] B. E. A. Saleh and M. C. Teich, *Fundamentals of Photonics*, 2nd ed., Wiley,
+    .. [1] M. Born and E. Wolf, *Principles of Optics*, 7th ed., Cambridge University
+       Press, 1999, sec. 14.2 (reflection at an absorbing medium).
+    .. [2] B. E. A. Saleh and M. C. Teich, *Fundamentals of Photonics*, 2nd ed., Wiley,
        2007, sec. 6.2 (Fresnel equations).
     """
-    n = require_in_range("refractive_index", refractive_index, "", 1.0)
+    n_c = np.asarray(refractive_index)
+    n = require_in_range("refractive_index", np.real(n_c), "", 1.0)
+    kk = np.abs(np.imag(n_c))
     n0 = require_in_range("ambient_index", ambient_index, "", 1.0)
-    return _out(((np.asarray(n) - n0) / (np.asarray(n) + n0)) ** 2)
+    n, n0 = np.asarray(n), np.asarray(n0)
+    return _out(((n - n0) ** 2 + kk**2) / ((n + n0) ** 2 + kk**2))
+
+
+def coated_reflectance(wavelength, substrate_index, coating_index, coating_thickness,
+                       ambient_index=1.0):
+    """Power reflectance of a surface with one thin-film coating, normal incidence [-].
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0.
+    substrate_index : complex or array_like
+        Index of the semiconductor, n - i k [-] (k >= 0, either sign accepted).
+    coating_index : float or array_like
+        Real index of the (non-absorbing) coating n1 [-], >= 1.
+    coating_thickness : float or array_like
+        Physical thickness of the coating d [m], >= 0 (0: bare surface).
+    ambient_index : float, optional
+        Index of the incidence medium n0 [-] (1 = air).
+
+    Notes
+    -----
+    r = (r01 + r12 e^{-2 i delta}) / (1 + r01 r12 e^{-2 i delta}), delta = 2 pi n1 d /
+    lambda, r01 = (n0 - n1)/(n0 + n1), r12 = (n1 - N2)/(n1 + N2), R = |r|^2. A
+    quarter-wave layer (n1 d = lambda/4) with n1 = sqrt(n0 n2) gives R = 0 at lambda for
+    a non-absorbing substrate.
+
+    References
+    ----------
+    .. [1] M. Born and E. Wolf, *Principles of Optics*, 7th ed., Cambridge University
+       Press, 1999, sec. 1.6.4 (a single homogeneous film).
+    .. [2] E. Hecht, *Optics*, 4th ed., Addison-Wesley, 2002, sec. 9.7.1 (single-layer
+       antireflection coatings).
+    """
+    wl = np.asarray(require_positive("wavelength", wavelength, "m"), dtype=float)
+    n1 = np.asarray(require_in_range("coating_index", coating_index, "", 1.0), dtype=float)
+    d = np.asarray(require_nonnegative("coating_thickness", coating_thickness, "m"), dtype=float)
+    n0 = float(require_in_range("ambient_index", ambient_index, "", 1.0))
+    sub = np.asarray(substrate_index)
+    n2 = np.real(sub) - 1j * np.abs(np.imag(sub))
+    r01 = (n0 - n1) / (n0 + n1)
+    r12 = (n1 - n2) / (n1 + n2)
+    ph = np.exp(-2j * (2.0 * np.pi * n1 * d / wl))
+    r = (r01 + r12 * ph) / (1.0 + r01 * r12 * ph)
+    return _out(np.abs(r) ** 2)
 
 
 def responsivity_from_qe(qe, wavelength):
@@ -308,11 +320,26 @@ def require_thickness_or_inf(name, value):
 
 
 def _g(z):
-    """(1 - exp(-z)) / z with g(0) = 1; complex-safe. Callers keep Re(z) >= 0."""
+    """(1 - exp(-z)) / z with g(0) = 1; complex-safe. Callers keep Re(z) >= 0.
+
+    Each element takes only the branch it needs: 1 - exp(-z) where |z| >= 0.01 (cancellation
+    costs under 2 digits there, and complex exp is about 3 times cheaper than complex
+    expm1), expm1 below, the series 1 - z/2 below 1e-8.
+    """
     z = np.asarray(z)
-    small = np.abs(z) < 1e-8
-    zs = np.where(small, 1.0, z)
-    return np.where(small, 1.0 - z / 2.0, -np.expm1(-zs) / zs)
+    az = np.abs(z)
+    big = az >= 1e-2
+    if big.all():
+        return (1.0 - np.exp(-z)) / z
+    out = np.empty(z.shape, dtype=np.result_type(z, 1.0))
+    zb = z[big]
+    out[big] = (1.0 - np.exp(-zb)) / zb
+    rest = ~big
+    zr = z[rest]
+    small = az[rest] < 1e-8
+    zs = np.where(small, 1.0, zr)
+    out[rest] = np.where(small, 1.0 - zr / 2.0, -np.expm1(-zs) / zs)
+    return out if out.ndim else out[()]
 
 
 def _divdiff(p, s, d):

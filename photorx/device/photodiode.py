@@ -36,17 +36,22 @@ from .._validate import (
 from ..constants import thermal_voltage
 from ..errors import DesignError
 from . import darkcurrent as dk
-from . import optics, speed
+from . import optics
 from .equivalent_circuit import EquivalentCircuit
-from .junction import FORWARD_LIMIT, ParametricJunction, diffusion_capacitance
+from .junction import ParametricJunction, diffusion_capacitance
+from .photodiode_dark import (
+    DarkCurrentRoutes,
+    datasheet_temperature_factors,
+    junction_potential_at_temperature,
+)
+from .photodiode_optics import OpticsRoutes
+from .photodiode_speed import SpeedRoutes
 
 __all__ = ["Photodiode"]
 
 _DEFAULT_TOP_THICKNESS = 0.3e-6  # [m] shallow diffused/implanted contact layer
 _DEFAULT_TOP_DIFFUSION_LENGTH = 1e-6  # [m] heavily doped (~1e19 cm^-3) contact layer
 _DEFAULT_SERIES_RESISTANCE = 10.0  # [ohm]
-_MIN_REFERENCE_BIAS = 0.1  # [V] a dark current quoted nearer 0 V does not separate the terms
-_SLOPE_STEP = 1e-4  # [V] step for dW/dV
 
 
 def _out(x):
@@ -58,15 +63,6 @@ def _optional_positive(name, value, unit):
     return None if value is None else require_positive(name, value, unit)
 
 
-def _optional_scalar_positive(name, value, unit):
-    """None, or a single ``value`` > 0 (the datasheet fit is solved for one diode at a time)."""
-    if value is None:
-        return None
-    out = require_positive(name, value, unit)
-    if np.ndim(out):
-        raise DesignError(f"{name} must be a single number [{unit}], not an array of shape "
-                          f"{np.shape(out)}; build one Photodiode per datasheet", parameter=name)
-    return float(out)
 
 
 def _responsivity_table(value):
@@ -93,7 +89,7 @@ def _responsivity_table(value):
 
 
 @dataclass(frozen=True)
-class Photodiode:
+class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
     """A biased photodiode: capacitance, responsivity, dark current, speed, equivalent circuit.
 
     Parameters
@@ -110,9 +106,19 @@ class Photodiode:
         [wavelength, responsivity] for N > 2, or a dict wavelength -> responsivity),
         interpolated linearly; outside it is a DesignError.
     reflectance : float, optional
-        Front power reflectance [-], 0 to <1. Default: bare surface,
-        ((n - 1)/(n + 1))^2 with n = sqrt(eps_r) of the material (about 0.3 for Si, InGaAs;
-        give a few percent for an anti-reflection coating).
+        Front power reflectance [-], 0 to <1, the same at every wavelength (overrides the
+        surface model). Default None: from the complex index n - i k of the material at
+        each wavelength (:mod:`~photorx.device.optical_data`), bare (normal-incidence
+        Fresnel, about 0.3 for Si and InGaAs) or with the coating below.
+    coating_index : float, optional
+        Refractive index of a single-layer anti-reflection coating [-], >= 1 (e.g. 1.45
+        SiO2, 1.9-2.0 Si3N4). Default None: bare surface.
+    coating_thickness : float, optional
+        Physical thickness of that coating [m], >= 0. Default: quarter-wave at
+        ``coating_wavelength``, d = lambda_0 / (4 n_1).
+    coating_wavelength : float, optional
+        Design (vacuum) wavelength of the quarter-wave coating [m], > 0; required with
+        ``coating_index`` unless ``coating_thickness`` is given.
     top_thickness : float, optional
         Undepleted absorbing layer above the depletion layer [m], >= 0 (default 0.3 um, a
         shallow contact diffusion). 0 for a transparent window layer (InP on InGaAs).
@@ -124,10 +130,13 @@ class Photodiode:
         Minority-carrier diffusion length in the top layer [m], > 0 (default 1 um, typical
         of a ~1e19 cm^-3 contact layer).
     lifetime : float, optional
-        Minority-carrier lifetime in the undepleted bottom layer [s], > 0 (default by
-        material, :data:`~photorx.device.darkcurrent.DEFAULT_LIFETIMES`; 1 us otherwise).
+        Minority-carrier lifetime in the undepleted bottom layer at 300 K [s], > 0
+        (default by material, :data:`~photorx.device.darkcurrent.DEFAULT_LIFETIMES`; 1 us
+        otherwise); at other junction temperatures it follows tau ~ T^-1/2
+        (:func:`~photorx.device.darkcurrent.lifetime_at_temperature`).
     generation_lifetime : float, optional
-        Generation lifetime of the depletion layer [s], > 0 (default by material).
+        Generation lifetime of the depletion layer at 300 K [s], > 0 (default by
+        material; same temperature law).
     leakage_resistance : float, optional
         Ohmic (surface) leakage resistance [ohm], > 0 (default inf). Not combined with a
         datasheet dark current, whose fit determines the leakage.
@@ -149,6 +158,13 @@ class Photodiode:
     zero_bias_resistance : float, optional
         Measured zero-bias shunt resistance R0 [ohm], > 0 (with or without
         ``reference_dark_current``).
+    reference_temperature : float, optional
+        Temperature [K] at which the datasheet values (capacitance of a parametric
+        junction, reference dark current, R0) hold, and the temperature of a diode on a
+        parametric junction; default 300 K. :meth:`at_temperature` rescales them.
+    band_gap : float, optional
+        Band gap [eV] of the diode material for that rescaling (default: the junction
+        material's Eg(300 K); required to rescale a diode on a parametric junction).
 
     Notes
     -----
@@ -174,6 +190,9 @@ class Photodiode:
     junction: object
     given_responsivity: object = None
     reflectance: float | None = None
+    coating_index: float | None = None
+    coating_thickness: float | None = None
+    coating_wavelength: float | None = None
     top_thickness: float = _DEFAULT_TOP_THICKNESS
     absorber_thickness: float = np.inf
     top_diffusion_length: float = _DEFAULT_TOP_DIFFUSION_LENGTH
@@ -187,6 +206,8 @@ class Photodiode:
     reference_dark_current: float | None = None
     reference_bias: float | None = None
     zero_bias_resistance: float | None = None
+    reference_temperature: float | None = None
+    band_gap: float | None = None
     _fit: tuple = field(init=False, repr=False, compare=False, default=None)
 
     # ----------------------------------------------------------------------- validation
@@ -214,6 +235,7 @@ class Photodiode:
         if self.reflectance is not None:
             setf(self, "reflectance", require_in_range(
                 "reflectance", self.reflectance, "", 0.0, 1.0, high_inclusive=False))
+        self._setup_coating()
         # Geometry and parasitics may be arrays (one value per design point of a sweep).
         setf(self, "top_thickness", require_nonnegative("top_thickness", self.top_thickness, "m"))
         at = _out(np.asarray(optics.require_thickness_or_inf("absorber_thickness",
@@ -241,54 +263,46 @@ class Photodiode:
                               "valid: 'p' (p-on-n) or 'n' (n-on-p)", parameter="illuminated_side")
         setf(self, "intrinsic_bandwidth", _optional_positive(
             "intrinsic_bandwidth", self.intrinsic_bandwidth, "Hz"))
+        if self.reference_temperature is not None:
+            from .materials import check_temperature
+
+            t_ref = check_temperature(self.reference_temperature, "reference_temperature")
+            if np.ndim(t_ref):
+                raise DesignError("reference_temperature must be a single number [K]",
+                                  parameter="reference_temperature")
+            if self._physical:
+                raise DesignError("reference_temperature is for a parametric junction; a "
+                                  "physical junction carries its own temperature",
+                                  parameter="reference_temperature")
+            setf(self, "reference_temperature", float(t_ref))
+        if self.band_gap is not None:
+            setf(self, "band_gap", float(require_in_range("band_gap", self.band_gap, "eV",
+                                                          0.1, 6.0)))
         self._setup_dark_fit()
 
-    def _setup_dark_fit(self):
+    def _setup_coating(self):
         setf = object.__setattr__
-        i_ref = _optional_scalar_positive("reference_dark_current", self.reference_dark_current,
-                                          "A")
-        r0 = _optional_scalar_positive("zero_bias_resistance", self.zero_bias_resistance, "ohm")
-        setf(self, "reference_dark_current", i_ref)
-        setf(self, "zero_bias_resistance", r0)
-        if i_ref is None:
-            if self.reference_bias is not None:
-                raise DesignError("reference_bias is given without reference_dark_current",
-                                  parameter="reference_bias")
-        else:
-            if self.reference_bias is None:
-                raise DesignError("reference_bias [V] is required with reference_dark_current",
-                                  parameter="reference_bias")
-            v_ref = require_in_range("reference_bias", self.reference_bias, "V",
-                                     _MIN_REFERENCE_BIAS)
-            if np.ndim(v_ref):
-                raise DesignError("reference_bias must be a single number [V]",
-                                  parameter="reference_bias")
-            setf(self, "reference_bias", float(v_ref))
-        if i_ref is None and r0 is None:
-            setf(self, "_fit", None)
+        n1, d, wl0 = self.coating_index, self.coating_thickness, self.coating_wavelength
+        if n1 is None:
+            for name in ("coating_thickness", "coating_wavelength"):
+                if getattr(self, name) is not None:
+                    raise DesignError(f"{name} is given without coating_index",
+                                      parameter=name)
             return
-        if np.any(np.isfinite(self.leakage_resistance)):
-            raise DesignError("leakage_resistance cannot be combined with "
-                              "reference_dark_current / zero_bias_resistance (the fit sets the "
-                              "leakage); leave it at inf", parameter="leakage_resistance")
-        if i_ref is None:  # only R0: ohmic
-            setf(self, "_fit", (0.0, 1.0 / r0))
-            return
-        nvt = 2.0 * thermal_voltage(self.temperature)
-        v = self.reference_bias
-        s0 = self._width_ratio(v) * -np.expm1(-v / nvt)
-        if r0 is None:
-            setf(self, "_fit", (float(i_ref / s0), 0.0))
-            return
-        lo, hi = nvt * s0 / i_ref, v / i_ref
-        if not lo <= r0 <= hi:
-            raise DesignError.out_of_range(
-                "zero_bias_resistance", r0, "ohm",
-                f"{lo:.4g} to {hi:.4g} ohm for reference_dark_current = {i_ref:.4g} A at "
-                f"{v:g} V (generation current plus ohmic leakage); leave one of them out")
-        i_g = (1.0 / r0 - i_ref / v) / (1.0 / nvt - s0 / v)
-        g = max(1.0 / r0 - i_g / nvt, 0.0)
-        setf(self, "_fit", (float(max(i_g, 0.0)), float(g)))
+        if self.reflectance is not None:
+            raise DesignError("give either reflectance (a fixed number) or coating_index "
+                              "(the coating model), not both", parameter="coating_index")
+        setf(self, "coating_index", require_in_range("coating_index", n1, "", 1.0, 5.0))
+        if wl0 is not None:
+            setf(self, "coating_wavelength", require_positive("coating_wavelength", wl0, "m"))
+        if d is None:
+            if wl0 is None:
+                raise DesignError("coating_wavelength [m] (quarter-wave design wavelength) or "
+                                  "coating_thickness [m] is required with coating_index",
+                                  parameter="coating_wavelength")
+            d = np.asarray(self.coating_wavelength) / (4.0 * np.asarray(self.coating_index))
+        setf(self, "coating_thickness", _out(np.asarray(require_nonnegative(
+            "coating_thickness", d, "m"), dtype=float)))
 
     # ----------------------------------------------------------------------- helpers
     @property
@@ -298,8 +312,12 @@ class Photodiode:
 
     @property
     def temperature(self):
-        """Temperature of the junction [K] (300 K for a parametric junction); may be an array."""
-        return _out(np.asarray(getattr(self.junction, "temperature", 300.0), dtype=float))
+        """Temperature of the junction [K]; may be an array.
+
+        A parametric junction has none: ``reference_temperature`` (default 300 K).
+        """
+        default = 300.0 if self.reference_temperature is None else self.reference_temperature
+        return _out(np.asarray(getattr(self.junction, "temperature", default), dtype=float))
 
     @property
     def material(self):
@@ -307,177 +325,19 @@ class Photodiode:
         return getattr(self.junction, "material", None) if self._physical else None
 
     def _lifetimes(self):
+        """(lifetime, generation lifetime) [s] at the junction temperature.
+
+        The given (or default) values hold at 300 K and follow the SRH thermal-velocity
+        law (:func:`~photorx.device.darkcurrent.lifetime_at_temperature`).
+        """
         name = self.material.name if self._physical else ""
         tau0, taug0 = dk.default_lifetimes(name)
-        return (self.lifetime if self.lifetime is not None else tau0,
-                self.generation_lifetime if self.generation_lifetime is not None else taug0)
-
-    def _fit_bias(self, v_r):
-        """Check v_r [V]; the fitted dark current of a parametric junction needs v_r > -0.9 Vj.
-
-        Its recombination term grows as e^{V/2V_T} without bound (1e5 A at 2 V, inf at
-        40 V); like the physical junctions, forward bias near the junction potential is
-        refused rather than returned as nonsense.
-        """
-        v = require_finite("v_r", v_r, "V")
-        if self._fit is not None and not self._physical:
-            va, lim = np.broadcast_arrays(np.asarray(v),
-                                          -FORWARD_LIMIT * np.asarray(self.junction.vj))
-            bad = va <= lim
-            if np.any(bad):
-                raise DesignError.out_of_range(
-                    "v_r", va[bad][0], "V",
-                    f"> -{FORWARD_LIMIT}*vj = {lim[bad][0]:.4g} V (forward bias near "
-                    "the junction potential is outside the fitted dark-current model)")
-        return v
-
-    def _width_ratio(self, v_r):
-        """C_j(0)/C_j(v_r) [-]: depletion width relative to zero bias (W ~ 1/C_j)."""
-        return np.asarray(self.junction.capacitance(0.0)) / np.asarray(
-            self.junction.capacitance(v_r))
-
-    def _slope_points(self, v_r):
-        """Bias pair (v_lo, v_hi), v_hi - v_lo = step, for a one-sided difference at v_r.
-
-        Forward difference, turned backward near the breakdown estimate so that the
-        derivative exists at every bias the junction accepts (up to breakdown_voltage()).
-        """
-        v = np.asarray(v_r, dtype=float)
-        limits = getattr(self.junction, "_bias_limits", None)  # (Vbi, breakdown), cached
-        hi = v + _SLOPE_STEP if limits is None else np.minimum(v + _SLOPE_STEP, limits[1])
-        return hi - _SLOPE_STEP, hi
-
-    def _width_slope(self, v_r):
-        j = self.junction
-        lo, hi = self._slope_points(v_r)
-        return np.maximum((np.asarray(j.depletion_width(hi))
-                           - np.asarray(j.depletion_width(lo))) / _SLOPE_STEP, 0.0)
-
-    def _has_optics(self) -> bool:
-        if not self._physical:
-            return False
-        try:
-            optics.absorption_table(self.material.name)
-        except DesignError:
-            return False
-        return True
-
-    def _mobilities(self):
-        """(mu_top_minority, mu_bottom_minority, mu_far, v_sat_far, mu_near, v_sat_near)."""
-        m = self.material
-        if self.illuminated_side == "p":  # electrons minority on top and drift away
-            return m.mu_n, m.mu_p, m.mu_n, m.v_sat_n, m.mu_p, m.v_sat_p
-        return m.mu_p, m.mu_n, m.mu_p, m.v_sat_p, m.mu_n, m.v_sat_n
-
-    def _stack(self, v_r):
-        """Layer stack at bias: top d, depletion W, bottom H [m], and the diffusion data."""
-        w = np.asarray(self.junction.depletion_width(v_r), dtype=float)
-        bottom = np.maximum(self.absorber_thickness - w, 0.0)
+        tau = self.lifetime if self.lifetime is not None else tau0
+        tau_g = self.generation_lifetime if self.generation_lifetime is not None else taug0
         t = self.temperature
-        mu_top, mu_bot, *_ = self._mobilities()
-        tau, _ = self._lifetimes()
-        d_top, d_bot = dk.diffusivity(mu_top, t), dk.diffusivity(mu_bot, t)
-        l_top = self.top_diffusion_length
-        return dict(top_thickness=self.top_thickness, depletion_width=w, bottom_thickness=bottom,
-                    top_diffusion_length=l_top,
-                    bottom_diffusion_length=dk.diffusion_length(d_bot, tau),
-                    top_lifetime=l_top**2 / d_top, bottom_lifetime=tau)
-
-    def _velocities(self, v_r):
-        """Drift velocities (far, near) [m/s] at the mean depletion field (Vbi + v_r)/W."""
-        j = self.junction
-        w = np.asarray(j.depletion_width(v_r), dtype=float)
-        e_mean = (np.asarray(v_r, dtype=float) + j.built_in_potential()) / w
-        _, _, mu_f, vs_f, mu_n, vs_n = self._mobilities()
-        return (np.asarray(speed.drift_velocity(e_mean, mu_f, vs_f)),
-                np.asarray(speed.drift_velocity(e_mean, mu_n, vs_n)))
-
-    def _reflectance(self):
-        if self.reflectance is not None:
-            return self.reflectance
-        return optics.fresnel_reflectance(np.sqrt(self.material.eps_r))
-
-    def _alpha(self, wavelength):
-        return np.asarray(optics.absorption_coefficient(wavelength, self.material,
-                                                        self.temperature))
-
-    # ----------------------------------------------------------------------- optics
-    def collection_fractions(self, wavelength, v_r=0.0):
-        """Collected carriers per incident photon by region: (top, drift, bottom) [-].
-
-        Physics mode only (see :func:`~photorx.device.optics.collection_fractions`); the
-        front reflectance is included, so the sum is the quantum efficiency. The drift part
-        absorbs over min(W, absorber_thickness).
-        """
-        self._require_optics("collection_fractions")
-        st = self._stack(v_r)
-        for k in ("top_lifetime", "bottom_lifetime"):
-            st.pop(k)
-        # only the absorbing part of the depletion layer generates carriers: a depletion
-        # layer reaching through a thin absorber into a transparent layer (InGaAs on InP)
-        # must not absorb beyond absorber_thickness
-        st["depletion_width"] = np.minimum(st["depletion_width"], self.absorber_thickness)
-        parts = optics.collection_fractions(self._alpha(wavelength), **st)
-        r = self._reflectance()
-        return tuple(_out((1.0 - r) * np.asarray(p)) for p in parts)
-
-    def _require_optics(self, what):
-        if not self._has_optics():
-            raise DesignError(f"{what} needs a physical junction whose material has an "
-                              f"absorption table ({', '.join(optics.ABSORPTION_MATERIALS)})",
-                              parameter="junction")
-
-    def responsivity(self, wavelength, v_r=0.0):
-        """Responsivity [A/W] at vacuum wavelength [m] and reverse bias [V].
-
-        Notes
-        -----
-        Physics mode: R = eta q lambda / (h c) with eta from :meth:`quantum_efficiency`.
-        With ``given_responsivity``: that number, or the table interpolated linearly
-        (DesignError outside the table; ``wavelength`` may be None for a number).
-
-        References
-        ----------
-        .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed.,
-           Wiley, 2007, ch. 13.
-        """
-        r = self.given_responsivity
-        if r is None:
-            return optics.responsivity_from_qe(
-                np.clip(self.quantum_efficiency(wavelength, v_r), 0.0, 1.0), wavelength)
-        wl = require_positive("wavelength", wavelength, "m") if wavelength is not None else 0.0
-        v = require_finite("v_r", v_r, "V")
-        if isinstance(r, tuple):
-            if wavelength is None:
-                raise DesignError("wavelength [m] is required with a responsivity table",
-                                  parameter="wavelength")
-            out = np.asarray(optics.interpolate_responsivity(wl, r[0], r[1]))
-        else:
-            out = np.asarray(r)
-        return _out(out + 0.0 * np.asarray(wl) + 0.0 * np.asarray(v))
-
-    def quantum_efficiency(self, wavelength, v_r=0.0):
-        """External quantum efficiency [-] at vacuum wavelength [m] and reverse bias [V].
-
-        Physics mode: (1 - R)(C_t + e^{-alpha d}(1 - e^{-alpha W}) + e^{-alpha(d+W)} C_b),
-        see :func:`~photorx.device.optics.quantum_efficiency`; grows with reverse bias at
-        long wavelengths as W widens. Given responsivity: eta = R h c / (q lambda).
-        """
-        if self.given_responsivity is not None:
-            return optics.qe_from_responsivity(self.responsivity(wavelength, v_r), wavelength)
-        return _out(sum(np.asarray(p) for p in self.collection_fractions(wavelength, v_r)))
-
-    def diffusion_fraction(self, wavelength, v_r=0.0):
-        """Share of the DC photocurrent carried by slow diffusion from undepleted layers [-].
-
-        0 when the optics is not modelled (parametric junction).
-        """
-        if not self._has_optics():
-            return _out(0.0 * np.asarray(wavelength, dtype=float) + 0.0 * np.asarray(v_r))
-        top, drift, bottom = (np.asarray(p) for p in self.collection_fractions(wavelength, v_r))
-        total = top + drift + bottom
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return _out(np.where(total > 0, (top + bottom) / np.where(total > 0, total, 1.0), 0.0))
+        if np.ndim(t) == 0 and t == 300.0:
+            return tau, tau_g
+        return dk.lifetime_at_temperature(tau, t), dk.lifetime_at_temperature(tau_g, t)
 
     # ----------------------------------------------------------------------- electrical
     def capacitance(self, v_r=0.0):
@@ -494,236 +354,6 @@ class Photodiode:
         tau, _ = self._lifetimes()
         cd = diffusion_capacitance(i_f, tau / 2.0, n, self.temperature)
         return _out(cj + cd + self.package_capacitance)
-
-    def _forward_current(self, v_r):
-        """Forward current that stores charge [A] and its ideality, for C_diff."""
-        v = np.asarray(require_finite("v_r", v_r, "V"))
-        if np.all(v >= 0):
-            return np.zeros(v.shape) if v.ndim else 0.0, 1.0
-        if self._fit is not None:
-            return np.maximum(-np.asarray(self.dark_current(v)), 0.0), 2.0
-        if not self._physical:
-            return np.zeros(v.shape) if v.ndim else 0.0, 1.0
-        return np.maximum(-np.asarray(self._dark_parts(v)["diffusion"]), 0.0), 1.0
-
-    def _saturation_current(self, v_r):
-        j = self.junction
-        m = j.material
-        t = self.temperature
-        tau, _ = self._lifetimes()
-        na, nd = _contact_dopings(j)
-        d_n, d_p = dk.diffusivity(m.mu_n, t), dk.diffusivity(m.mu_p, t)
-        l_n, l_p = dk.diffusion_length(d_n, tau), dk.diffusion_length(d_p, tau)
-        w = np.asarray(j.depletion_width(v_r), dtype=float)
-        bottom = np.maximum(self.absorber_thickness - w, 0.0)
-        # the top layer is the p layer for p-on-n; its diffusion length is given directly
-        if self.illuminated_side == "p":
-            l_n, wp, wn = self.top_diffusion_length, self.top_thickness, bottom
-        else:
-            l_p, wp, wn = self.top_diffusion_length, bottom, self.top_thickness
-        return dk.diffusion_saturation_current(j.area, m.intrinsic_density(t), na, nd, d_n, d_p,
-                                               l_n, l_p, wp, wn)
-
-    def _dark_parts(self, v_r):
-        j = self.junction
-        t = self.temperature
-        _, tau_g = self._lifetimes()
-        ni = j.material.intrinsic_density(t)
-        i_s = self._saturation_current(v_r)
-        w = j.depletion_width(v_r)
-        return {"diffusion": np.asarray(dk.diffusion_current(v_r, i_s, t)),
-                "generation": np.asarray(dk.generation_current(v_r, j.area, ni, w, tau_g, t)),
-                "leakage": np.asarray(dk.leakage_current(v_r, self.leakage_resistance))}
-
-    def dark_current_components(self, v_r=0.0):
-        """Dark current by mechanism [A]: dict with "diffusion", "generation", "leakage".
-
-        Positive in the reverse direction. With a fitted (datasheet) dark current the
-        fitted generation-like and leakage parts are returned and "diffusion" is 0.
-        """
-        v = self._fit_bias(v_r)
-        if self._fit is not None:
-            i_g, g = self._fit
-            nvt = 2.0 * thermal_voltage(self.temperature)
-            gen = i_g * self._width_ratio(v) * -np.expm1(-np.asarray(v) / nvt)
-            parts = {"diffusion": 0.0 * np.asarray(v), "generation": gen,
-                     "leakage": g * np.asarray(v)}
-        elif self._physical:
-            parts = self._dark_parts(v)
-        else:
-            parts = {k: 0.0 * np.asarray(v) for k in ("diffusion", "generation", "leakage")}
-            parts["leakage"] = np.asarray(dk.leakage_current(v, self.leakage_resistance))
-        return {k: _out(np.asarray(p, dtype=float)) for k, p in parts.items()}
-
-    def dark_current(self, v_r=0.0):
-        """Dark current [A] at reverse bias ``v_r`` [V]; positive in the reverse direction.
-
-        Notes
-        -----
-        Sum of :meth:`dark_current_components`: diffusion I_s (1 - e^{-v_r/V_T}) ~ ni^2,
-        generation q A ni W / tau_g (1 - e^{-v_r/2V_T}) ~ ni W, leakage v_r / R_leak.
-        Temperature enters through the junction's temperature (ni, V_T, D); see
-        :meth:`at_temperature`. Zero at zero bias; negative (forward current) in forward bias.
-
-        References
-        ----------
-        .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed.,
-           Wiley, 2007, ch. 2 (diffusion and generation currents).
-        """
-        parts = self.dark_current_components(v_r)
-        return _out(sum(np.asarray(p) for p in parts.values()))
-
-    def shunt_resistance(self, v_r=0.0):
-        """Differential (shunt) resistance (dI_dark/dv_r)^-1 [ohm] at the bias; R0 at 0 V.
-
-        Notes
-        -----
-        R_sh = [I_s e^{-v_r/V_T}/V_T + dI_gen/dv_r + 1/R_leak]^-1 (physics); with a fitted
-        dark current the derivative of the fitted form. inf when nothing conducts.
-        """
-        v = np.asarray(self._fit_bias(v_r), dtype=float)
-        t = self.temperature
-        vt = thermal_voltage(t)
-        if self._fit is not None:
-            i_g, g = self._fit
-            nvt = 2.0 * vt
-            s = self._width_ratio(v)
-            lo, hi = self._slope_points(v)
-            ds = (self._width_ratio(hi) - self._width_ratio(lo)) / _SLOPE_STEP
-            cond = i_g * (s * np.exp(-v / nvt) / nvt - np.expm1(-v / nvt) * ds) + g
-        elif self._physical:
-            j = self.junction
-            _, tau_g = self._lifetimes()
-            i_s = np.asarray(self._saturation_current(v))
-            cond = (i_s * np.exp(-v / vt) / vt
-                    + np.asarray(dk.generation_conductance(
-                        v, j.area, j.material.intrinsic_density(t), j.depletion_width(v),
-                        self._width_slope(v), tau_g, t))
-                    + 1.0 / self.leakage_resistance)
-        else:
-            cond = 0.0 * v + 1.0 / self.leakage_resistance
-        with np.errstate(divide="ignore"):
-            return _out(1.0 / np.asarray(cond, dtype=float))
-
-    # ----------------------------------------------------------------------- speed
-    def transit_time(self, v_r=0.0):
-        """Time for the slower carrier to cross the whole depletion layer, W / v [s].
-
-        Drift velocity at the mean field (Vbi + v_r)/W with saturation
-        (:func:`~photorx.device.speed.drift_velocity`); so zero-bias (photovoltaic)
-        operation is slow. With ``intrinsic_bandwidth`` given: the equivalent
-        uniform-generation transit time 0.553 / f_3dB.
-        """
-        if self.intrinsic_bandwidth is not None:
-            return _out(speed.UNIFORM_TRANSIT_FACTOR / self.intrinsic_bandwidth
-                        + 0.0 * np.asarray(require_finite("v_r", v_r, "V")))
-        self._require_physical("transit_time")
-        vf, vn = self._velocities(v_r)
-        w = np.asarray(self.junction.depletion_width(v_r))
-        return _out(w / np.minimum(vf, vn))
-
-    def _require_physical(self, what):
-        if not self._physical:
-            raise DesignError(f"{what} needs a physical junction or intrinsic_bandwidth",
-                              parameter="intrinsic_bandwidth")
-
-    def transit_bandwidth(self, v_r=0.0, wavelength=None):
-        """Transit-limited 3-dB bandwidth of the drift photocurrent [Hz].
-
-        ``wavelength`` None: uniform generation across the depletion layer; otherwise the
-        absorption profile at that wavelength. See
-        :func:`~photorx.device.speed.transit_bandwidth`. inf for a parametric junction
-        without ``intrinsic_bandwidth``.
-        """
-        if self.intrinsic_bandwidth is not None:
-            return _out(self.intrinsic_bandwidth + 0.0 * np.asarray(
-                require_finite("v_r", v_r, "V")))
-        if not self._physical:
-            return _out(np.inf + 0.0 * np.asarray(require_finite("v_r", v_r, "V")))
-        vf, vn = self._velocities(v_r)
-        w = np.asarray(self.junction.depletion_width(v_r))
-        a = 0.0 if wavelength is None else self._alpha(wavelength)
-        return speed.transit_bandwidth(w, vf, vn, a)
-
-    def rc_bandwidth(self, v_r=0.0, load_resistance=50.0):
-        """RC limit 1 / (2 pi (R_s + R_L) C) [Hz] with a load resistance [ohm]."""
-        rl = require_nonnegative("load_resistance", load_resistance, "ohm")
-        return speed.rc_bandwidth(self.capacitance(v_r), self.series_resistance + np.asarray(rl))
-
-    def bandwidth(self, v_r=0.0, load_resistance=50.0, wavelength=None):
-        """Transit and RC limits combined, (f_t^-2 + f_RC^-2)^-1/2 [Hz] (no diffusion tail)."""
-        return speed.combined_bandwidth(self.transit_bandwidth(v_r, wavelength),
-                                        self.rc_bandwidth(v_r, load_resistance))
-
-    def intrinsic_response(self, f, v_r=0.0, wavelength=None):
-        """Intrinsic photocurrent response H(f) of the diode, complex, H(0) = 1.
-
-        Parameters
-        ----------
-        f : float or array_like
-            Frequency [Hz], >= 0.
-        v_r : float or array_like
-            Reverse bias [V].
-        wavelength : float or array_like, optional
-            Vacuum wavelength [m]; needed for the physics model (absorption profile and
-            diffusion tails). Without it the drift part for uniform generation is used.
-
-        Notes
-        -----
-        Physics: the drift (Ramo) and diffusion parts of
-        :func:`~photorx.device.speed.photocurrent_spectrum`, normalised by their DC sum.
-        The circuit response (C, R_s, amplifier) multiplies this. With
-        ``intrinsic_bandwidth``: the uniform-generation transit response with that f_3dB;
-        parametric junction without it: H = 1.
-        """
-        fr = np.asarray(require_nonnegative("f", f, "Hz"))
-        if self.intrinsic_bandwidth is not None or not self._physical:
-            v = np.asarray(require_finite("v_r", v_r, "V"))
-            if self.intrinsic_bandwidth is None:
-                return _out(np.ones(np.broadcast(fr, v).shape) + 0j)
-            tau = speed.UNIFORM_TRANSIT_FACTOR / self.intrinsic_bandwidth
-            h = speed._drift_spectrum(2 * np.pi * fr, 1e-6, tau, tau) / -np.expm1(-1e-6)
-            return _out(np.asarray(h) + 0.0 * v)
-        vf, vn = self._velocities(v_r)
-        if wavelength is None or not self._has_optics():
-            w = np.asarray(self.junction.depletion_width(v_r))
-            return speed.drift_response(fr, w, vf, vn)
-        st = self._stack(v_r)
-        parts = speed.photocurrent_spectrum(fr, self._alpha(wavelength), v_far=vf, v_near=vn,
-                                            **st)
-        dc = speed.photocurrent_spectrum(0.0, self._alpha(wavelength), v_far=vf, v_near=vn,
-                                         **st)
-        num = sum(np.asarray(p) for p in parts)
-        den = np.real(sum(np.asarray(p) for p in dc))
-        with np.errstate(invalid="ignore", divide="ignore"):
-            h = np.where(den > 0, num / np.where(den > 0, den, 1.0), 1.0 + 0j)
-        return _out(h)
-
-    def diffusion_time_constant(self, wavelength, v_r=0.0):
-        """Mean delay of the diffusion part of the photocurrent [s] (0 if there is none).
-
-        Notes
-        -----
-        tau = -Im H_d(w) / (w H_d(0)) for w -> 0, the first moment of the diffusion
-        impulse response of :func:`~photorx.device.speed.photocurrent_spectrum` (top and
-        bottom parts); for carriers generated a distance d from the edge it is close to
-        d^2 / (2 D) (:func:`~photorx.device.speed.diffusion_time`), and tends to the
-        lifetime for weakly absorbed light in a thick layer.
-        """
-        self._require_optics("diffusion_time_constant")
-        st = self._stack(v_r)
-        vf, vn = self._velocities(v_r)
-        scale = np.maximum(st["top_lifetime"], st["bottom_lifetime"])
-        omega = 1e-6 / scale
-        a = self._alpha(wavelength)
-        top0, _, bot0 = speed.photocurrent_spectrum(0.0, a, v_far=vf, v_near=vn, **st)
-        top1, _, bot1 = speed.photocurrent_spectrum(omega / (2 * np.pi), a, v_far=vf, v_near=vn,
-                                                    **st)
-        dc = np.real(np.asarray(top0) + bot0)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            tau = np.where(dc > 0, -np.imag(np.asarray(top1) + bot1)
-                           / (omega * np.where(dc > 0, dc, 1.0)), 0.0)
-        return _out(tau)
 
     # ----------------------------------------------------------------------- circuit
     def equivalent_circuit(self, v_r=0.0, optical_power=0.0, wavelength=None,
@@ -765,26 +395,76 @@ class Photodiode:
 
     # ----------------------------------------------------------------------- variants
     def at_temperature(self, temperature):
-        """The same diode with its junction at another temperature [K] (physics mode).
+        """The same diode at another temperature [K].
+
+        Physics mode: the junction at that temperature (every model follows). Datasheet
+        values (fitted dark current, R0, a parametric junction's capacitance) are
+        rescaled from ``reference_temperature`` as documented in Notes; a given
+        responsivity and intrinsic bandwidth are kept.
+
+        Notes
+        -----
+        Fitted dark current I = I_g s(v_r) + G v_r: I_g ~ ni(T) and G ~ ni(T)^2
+        (:func:`~photorx.device.photodiode_dark.datasheet_temperature_factors`, band gap
+        ``band_gap`` or the material's). Parametric junction: Vj(T) from
+        :func:`~photorx.device.photodiode_dark.junction_potential_at_temperature` and
+        Cj0(T) = Cj0(T0) (Vj0 / Vj(T))^m, i.e. C ~ (Vj + v_r)^-m of the depletion layer.
 
         Raises
         ------
         DesignError
-            Parametric junction or fitted dark current (datasheet values hold at their
-            measurement temperature only).
+            Temperature outside 50-600 K; a parametric junction without ``band_gap``.
         """
-        if not self._physical or self._fit is not None:
-            raise DesignError("at_temperature needs a physical junction and the physical "
-                              "dark-current model (datasheet values hold at their measurement "
-                              "temperature)", parameter="temperature")
-        j = dataclasses.replace(self.junction, temperature=temperature)
-        return dataclasses.replace(self, junction=j)
+        from .materials import check_temperature
+
+        t_new = check_temperature(temperature)
+        if self._physical and self._fit is None:
+            j = dataclasses.replace(self.junction, temperature=t_new)
+            return dataclasses.replace(self, junction=j)
+        if np.ndim(t_new):
+            raise DesignError("temperature must be a single number [K] for a diode with "
+                              "datasheet values", parameter="temperature")
+        t_new, t0 = float(t_new), float(self.temperature)
+        eg = self.band_gap
+        if eg is None and self._physical:
+            eg = float(self.material.band_gap(300.0))
+        if eg is None:
+            raise DesignError("band_gap [eV] of the diode material is required to move a "
+                              "datasheet photodiode to another temperature (e.g. 1.12 for Si, "
+                              "0.74 for InGaAs)", parameter="band_gap")
+        if self._physical:
+            junction = dataclasses.replace(self.junction, temperature=t_new)
+        else:
+            j = self.junction
+            vj = junction_potential_at_temperature(j.vj, t_new, t0, eg)
+            if not vj > 0.05:
+                raise DesignError.out_of_range("temperature", t_new, "K",
+                                               "a temperature where the junction potential "
+                                               f"stays > 0.05 V (Vj = {vj:.3g} V here)")
+            junction = dataclasses.replace(j, vj=float(vj),
+                                           cj0=float(j.cj0 * (j.vj / vj) ** j.m))
+        kw = dict(junction=junction, reference_temperature=t_new)
+        if self._fit is not None:
+            f_gen, f_diff = datasheet_temperature_factors(t_new, t0, eg)
+            i_g, g = self._fit[0] * f_gen, self._fit[1] * f_diff
+            probe = dataclasses.replace(self, junction=junction, reference_temperature=t_new,
+                                        reference_dark_current=None, reference_bias=None,
+                                        zero_bias_resistance=None)
+            nvt = 2.0 * thermal_voltage(t_new)
+            if self.reference_dark_current is not None:
+                v = self.reference_bias
+                s0 = probe._width_ratio(v) * -np.expm1(-v / nvt)
+                kw["reference_dark_current"] = float(i_g * s0 + g * v)
+            if self.zero_bias_resistance is not None:
+                kw["zero_bias_resistance"] = float(1.0 / (i_g / nvt + g))
+        return dataclasses.replace(self, **kw)
 
     @classmethod
     def from_datasheet(cls, responsivity, capacitance=None, capacitance_bias=None, cj0=None,
                        vj=0.7, m=None, dark_current=None, dark_current_bias=None,
                        shunt_resistance=None, series_resistance=_DEFAULT_SERIES_RESISTANCE,
-                       package_capacitance=0.0, bandwidth=None, fc=0.5):
+                       package_capacitance=0.0, bandwidth=None, fc=0.5, temperature=None,
+                       band_gap=None):
         """Photodiode from the few numbers of a datasheet-style description.
 
         Parameters
@@ -813,6 +493,11 @@ class Photodiode:
             Intrinsic (transit) 3-dB bandwidth [Hz]; default none (no intrinsic limit).
         fc : float, optional
             Forward-bias coefficient of the parametric junction [-].
+        temperature : float, optional
+            Temperature [K] at which the datasheet values hold (default 300 K).
+        band_gap : float, optional
+            Band gap of the diode material [eV] (e.g. 1.12 Si, 0.74 InGaAs), needed by
+            :meth:`at_temperature` to rescale dark current and capacitance.
 
         Returns
         -------
@@ -866,26 +551,17 @@ class Photodiode:
                        series_resistance=series_resistance,
                        package_capacitance=package_capacitance, intrinsic_bandwidth=bandwidth,
                        reference_dark_current=dark_current, reference_bias=dark_current_bias,
-                       zero_bias_resistance=shunt_resistance)
+                       zero_bias_resistance=shunt_resistance, reference_temperature=temperature,
+                       band_gap=band_gap)
         except DesignError as exc:  # speak the datasheet's names
             names = {"given_responsivity": "responsivity", "intrinsic_bandwidth": "bandwidth",
                      "reference_dark_current": "dark_current",
                      "reference_bias": "dark_current_bias",
-                     "zero_bias_resistance": "shunt_resistance"}
+                     "zero_bias_resistance": "shunt_resistance",
+                     "reference_temperature": "temperature"}
             msg = str(exc)
             for old, new in names.items():
                 msg = msg.replace(old, new)
             raise DesignError(msg, parameter=names.get(exc.parameter, exc.parameter)) from None
 
 
-def _contact_dopings(junction):
-    """(N_A of the p layer, N_D of the n layer) [m^-3] outside the depletion layer."""
-    if hasattr(junction, "na") and hasattr(junction, "nd"):
-        return junction.na, junction.nd
-    if hasattr(junction, "p_doping") and hasattr(junction, "n_doping"):
-        return junction.p_doping, junction.n_doping
-    if hasattr(junction, "gradient"):  # graded: doping at the zero-bias depletion edges
-        x_p, x_n = junction.depletion_edges(0.0)
-        return junction.gradient * x_p, junction.gradient * x_n
-    raise DesignError(f"cannot find the dopings of junction {type(junction).__name__}; give "
-                      "reference_dark_current", parameter="junction")

@@ -171,6 +171,13 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
         design_text = dumps_design(rx)
     except DesignError as exc:
         design_text = f"(design not expressible as a design file: {exc})"
+    from ..analysis.checks import check_warning, failed_checks
+
+    failed = failed_checks(rx.checks())
+    if len(failed):  # the checks that fail come first, in words (full table in the budget)
+        parts += ['<section class="failed-checks"><h2>Failed checks</h2><ul>']
+        parts += [f"<li>{html.escape(check_warning(row))}</li>" for _, row in failed.iterrows()]
+        parts += ["</ul></section>"]
     parts += ["<h2>Design</h2>", f"<pre>{html.escape(design_text)}</pre>"]
     parts += ["<h2>Budget</h2>", budget._html_tables(3)]
     parts.append("<h2>Plots</h2>")

@@ -41,7 +41,10 @@ from ..units import format_eng
 from ._files import atomic_write_text
 from .cautions import CAUTIONS, cautions_html, cautions_markdown, cautions_short, cautions_text
 
-__all__ = ["Budget", "EXPORT_FORMATS"]
+__all__ = ["Budget", "EXPORT_FORMATS", "NONE", "display_value", "figure_text"]
+
+#: Text of a figure that does not exist (NaN or infinite in SI) in every table and export.
+NONE = "none"
 
 #: export format -> file suffix
 EXPORT_FORMATS = {"csv": ".csv", "md": ".md", "latex": ".tex", "html": ".html", "json": ".json"}
@@ -68,7 +71,7 @@ def display_value(value, unit="", digits: int = 3) -> str:
     Parameters
     ----------
     value : float, bool, str or None
-        Value in SI units.
+        Value in SI units; NaN and infinities read :data:`NONE`.
     unit : str
         SI unit symbol, ``""`` for none.
     digits : int
@@ -81,8 +84,10 @@ def display_value(value, unit="", digits: int = 3) -> str:
         return "yes" if value else "no"
     if _is_number(value):
         v = float(value)
-        if math.isnan(v):
-            return "n/a"
+        if not math.isfinite(v):
+            # a figure that does not exist (no post filter, no phase crossover) or a
+            # bound at infinity reads "none", never "inf"/"nan"
+            return NONE
         if unit == "%" and 0 < abs(v) < 0.01:
             return "< 0.01 %"  # "5.51e-09 %" of a noise share reads as noise itself
         return format_eng(v, unit, digits)
@@ -203,10 +208,22 @@ class Budget:
     def to_csv(self, path=None):
         """All tables as one CSV (``table`` column first, SI floats, unit column).
 
+        Figures that do not exist (NaN, infinite) are written ``none``; read the file back
+        with ``pandas.read_csv(path, na_values=["none"])``.
+
         Returns the text when ``path`` is None, otherwise writes it atomically and returns
         the path.
         """
-        frame = self.to_frame()
+        # figures that do not exist read "none" here too (pandas: na_values=["none"]); a
+        # column that a table does not have stays empty
+        frames = []
+        for name, table in self._tables.items():
+            t = table.astype(object)
+            for col in t.columns:
+                t[col] = [NONE if _is_number(v) and not math.isfinite(float(v)) else v
+                          for v in t[col].tolist()]
+            frames.append(t.assign(table=name)[["table"] + list(t.columns)])
+        frame = pd.concat(frames, ignore_index=True, sort=False)
         text = frame.to_csv(index=False, lineterminator="\n")
         return _emit(text, path)
 
@@ -216,7 +233,7 @@ class Budget:
         Units of wide tables' columns (``attrs["units"]``) go under ``"column_units"``.
 
         NaN and infinities are written as ``null`` (strict JSON); every row also carries
-        its ``display`` text, where ``"inf ohm"`` stays visible.
+        its ``display`` text, where a figure that does not exist reads ``"none"``.
         """
         tables = {}
         for name, table in self._tables.items():
@@ -338,6 +355,28 @@ def _display_cells(table: pd.DataFrame) -> list:
     return cells
 
 
+def figure_text(name: str, value, unit: str = "") -> str:
+    """Text of one named figure: :func:`display_value`, with wavelengths in nm.
+
+    Parameters
+    ----------
+    name : str
+        Figure name (``"wavelength"`` is shown in nm).
+    value : float, bool, str or None
+        Value in SI units.
+    unit : str
+        SI unit symbol.
+    """
+    if unit == "m" and "wavelength" in str(name) and _is_number(value):
+        return _wavelength_text(value)
+    return display_value(value, unit)
+
+
+def _missing(value) -> bool:
+    """True for a limit that is not set (None or NaN)."""
+    return value is None or (_is_number(value) and math.isnan(float(value)))
+
+
 def _wavelength_text(value) -> str:
     """Optical wavelengths in nm, as the trade writes them ("1310 nm", not "1.31 um")."""
     v = float(value)
@@ -354,6 +393,9 @@ def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
             continue
         if col == "value":
             shown["value"] = _display_cells(table)
+        elif col == "limit" and "unit" in table.columns:  # a limit has the row's unit
+            shown["limit"] = [NONE if _missing(v) else display_value(v, u)
+                              for v, u in zip(table["limit"].tolist(), table["unit"].tolist())]
         else:
             name, unit = str(col), units.get(col)
             match = _HEADER_UNIT.fullmatch(name)

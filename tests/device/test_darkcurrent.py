@@ -160,3 +160,24 @@ def test_bad_inputs_name_parameter(call, name):
         call()
     assert err.value.parameter == name
     assert name in str(err.value)
+
+
+def test_lifetime_temperature_law_from_srh():
+    # Sze and Ng, 3rd ed., ch. 1: tau = 1 / (sigma v_th N_t), v_th = sqrt(3 k T / m*), with
+    # scipy.constants (m* = 0.26 m_e, sigma = 1e-15 cm^2, N_t = 1e13 cm^-3); rtol 1e-12.
+    def tau(t):
+        return 1.0 / (1e-19 * np.sqrt(3 * sc.k * t / (0.26 * sc.m_e)) * 1e19)
+
+    t = np.array([250.0, 300.0, 400.0])
+    np.testing.assert_allclose(dk.lifetime_at_temperature(tau(300.0), t), tau(t), rtol=1e-12)
+
+
+def test_photodiode_lifetimes_follow_the_law():
+    from photorx.units import mm, per_cm3
+
+    j = prx.AbruptJunction(prx.material("Si"), na=1e19 * per_cm3, nd=1e14 * per_cm3,
+                           area=(1 * mm) ** 2)
+    pd = prx.Photodiode(junction=j, lifetime=2e-6, generation_lifetime=1e-4)
+    assert pd._lifetimes() == (2e-6, 1e-4)
+    hot = pd.at_temperature(400.0)._lifetimes()
+    np.testing.assert_allclose(hot, np.array([2e-6, 1e-4]) * np.sqrt(300 / 400), rtol=1e-12)

@@ -86,16 +86,21 @@ def test_more_bias_more_red_response(v1, frac):
     assert pd.quantum_efficiency(1000e-9, v2) > pd.quantum_efficiency(1000e-9, v1)
 
 
-def test_cutoff_gives_zero_response(ingaas_pin, si_pin):
-    # Common practice: silicon stops responding beyond ~1.1 um, InGaAs beyond ~1.7 um.
-    assert si_pin.responsivity(1150e-9, 5.0) == 0.0
-    assert ingaas_pin.responsivity(1750e-9, 5.0) == 0.0
-    assert ingaas_pin.responsivity(1650e-9, 5.0) > 0.5
+def test_response_fades_beyond_the_cutoff(ingaas_pin, si_pin):
+    # Common practice: silicon stops responding beyond ~1.1 um, InGaAs beyond ~1.7 um; the
+    # response fades through the sub-gap tail instead of dropping to 0 at Eg (issue 13).
+    r_si = si_pin.responsivity(np.array([1100e-9, 1110e-9, 1150e-9, 1500e-9]), 5.0)
+    assert r_si[0] > r_si[1] > r_si[2] > 0 and r_si[3] == 0.0
+    assert r_si[1] > 0.5 * r_si[0]  # continuous through the gap (1.103 um)
+    assert ingaas_pin.responsivity(1800e-9, 5.0) < 0.01
+    assert ingaas_pin.responsivity(2000e-9, 5.0) == 0.0
+    # 1650 nm sits just above the 0.74 eV gap: alpha(Adachi 1989) = 2.3e3 cm^-1 there
+    assert ingaas_pin.responsivity(1650e-9, 5.0) > 0.4
 
 
 def test_wavelength_outside_table_names_range(si_pin):
-    with pytest.raises(DesignError, match="300 to 1200 nm") as err:
-        si_pin.responsivity(250e-9, 5.0)
+    with pytest.raises(DesignError, match="250 to 1450 nm") as err:
+        si_pin.responsivity(240e-9, 5.0)
     assert err.value.parameter == "wavelength"
 
 
@@ -390,3 +395,69 @@ def test_absorber_thinner_than_depletion_layer_limits_absorption(ingaas_pin):
         pd = dataclasses.replace(ingaas_pin, absorber_thickness=a)
         assert pd.quantum_efficiency(1550e-9, 5.0) == pytest.approx(
             0.98 * -np.expm1(-alpha * a), rel=1e-12)
+
+
+# --- datasheet diodes at temperature -----------------------------------------------------
+def _datasheet(**kw):
+    return Photodiode.from_datasheet(responsivity=0.6, capacitance=(12e-12, 5e-12),
+                                     capacitance_bias=(0.0, 10.0), dark_current=1e-9,
+                                     dark_current_bias=10.0, **kw)
+
+
+def test_datasheet_dark_current_scales_like_ni():
+    # Generation current ~ ni(T) ~ T^1.5 exp(-Eg/2kT) (Sze and Ng, ch. 1 Eq. 25, ch. 2),
+    # computed here with scipy.constants for Eg = 1.12 eV; rtol 1e-9. Common practice:
+    # silicon dark current doubles every 8-10 K.
+    pd = _datasheet(band_gap=1.12)
+    hot = pd.at_temperature(310.0)
+    kq = sc.k / sc.e
+    ref = (310 / 300) ** 1.5 * np.exp(-1.12 / (2 * kq) * (1 / 310 - 1 / 300))
+    vt = lambda t: sc.k * t / sc.e  # noqa: E731
+    # the bias factor 1 - exp(-v/2V_T) and the capacitance ratio move slightly as well
+    s = lambda p, t: p._width_ratio(10.0) * -np.expm1(-10.0 / (2 * vt(t)))  # noqa: E731
+    assert hot.dark_current(10.0) == pytest.approx(1e-9 * ref * s(hot, 310) / s(pd, 300),
+                                                   rel=1e-9)
+    assert 2 ** (10 / 10.5) <= hot.dark_current(10.0) / pd.dark_current(10.0) <= 2 ** (10 / 7.5)
+    assert hot.temperature == 310.0 and pd.temperature == 300.0
+
+
+def test_datasheet_capacitance_follows_the_junction_potential():
+    # Vbi falls with temperature (Sze and Ng ch. 2: Vbi = Eg - kT ln(Nc Nv/(Na Nd)) with
+    # Nc Nv ~ T^3), about -1.5 to -2.5 mV/K for silicon (common practice); C ~ (Vj + v)^-m
+    # of the depletion layer, so C at 0 V rises with temperature and C at high bias barely
+    # moves. Reference: the closed form typed in here, rtol 1e-9.
+    pd = _datasheet(band_gap=1.12)
+    j0 = pd.junction
+    hot = pd.at_temperature(350.0)
+    kq = sc.k / sc.e
+    vj = 1.12 + (j0.vj - 1.12) * 350 / 300 - 3 * kq * 350 * np.log(350 / 300)
+    assert hot.junction.vj == pytest.approx(vj, rel=1e-9)
+    assert -2.5e-3 < (hot.junction.vj - j0.vj) / 50.0 < -1.5e-3
+    for v in (0.0, 5.0, 20.0):
+        ref = j0.cj0 * j0.vj**j0.m / (vj + v) ** j0.m
+        assert hot.capacitance(v) == pytest.approx(ref, rel=1e-9)
+    assert hot.capacitance(0.0) > pd.capacitance(0.0)
+    assert hot.responsivity(850e-9) == pd.responsivity(850e-9)
+    assert hot.at_temperature(300.0).capacitance(5.0) == pytest.approx(pd.capacitance(5.0),
+                                                                       rel=1e-9)
+
+
+def test_datasheet_shunt_resistance_scales_like_ni_squared():
+    # R0 of a zero-bias-limited diode ~ 1/ni^2 (diffusion current, Sze and Ng ch. 2);
+    # common practice: silicon R0 halves roughly every 5-7 K.
+    pd = Photodiode.from_datasheet(responsivity=0.6, cj0=10e-12, m=0.5,
+                                   shunt_resistance=1e9)
+    pd = dataclasses.replace(pd, band_gap=1.12)
+    ratio = pd.shunt_resistance(0.0) / pd.at_temperature(306.0).shunt_resistance(0.0)
+    kq = sc.k / sc.e
+    assert ratio == pytest.approx((306 / 300) ** 3 * np.exp(1.12 / kq * (1 / 300 - 1 / 306)),
+                                  rel=1e-9)
+    assert 1.7 < ratio < 2.6
+
+
+def test_datasheet_at_temperature_needs_a_band_gap():
+    with pytest.raises(DesignError, match="band_gap") as err:
+        _datasheet().at_temperature(320.0)
+    assert err.value.parameter == "band_gap"
+    with pytest.raises(DesignError, match="temperature"):
+        _datasheet(band_gap=1.12).at_temperature(700.0)

@@ -106,3 +106,14 @@ def test_bias_limit_beyond_breakdown_still_reports(rx):
     # the trade-off axis stops below the breakdown estimate, where the junction models end
     bias = report._bias_grid(high, 7, vbr)
     assert bias.max() == pytest.approx(0.95 * vbr, rel=1e-12) and bias.max() < vbr
+
+
+def test_failed_checks_come_first(rx, page):
+    import dataclasses
+
+    assert "Failed checks" not in page  # the demo passes every check
+    weak = dataclasses.replace(rx, tia=dataclasses.replace(rx.tia, cf=6e-15))
+    text = report.build_report(weak, bias_points=5)
+    section = text[text.index("Failed checks"):text.index("<h2>Design</h2>")]
+    assert "phase margin" in section and "45 deg" in section
+    assert section.count("<li>") == len(weak.checks().query("not ok"))

@@ -9,6 +9,7 @@ from __future__ import annotations
 import json
 import math
 import os
+import re
 from html.parser import HTMLParser
 
 import numpy as np
@@ -40,7 +41,10 @@ def test_display_value():
     assert display_value(2.2e-12, "F") == "2.2 pF"
     assert display_value(True) == "yes"
     assert display_value(np.bool_(False)) == "no"
-    assert display_value(float("nan"), "Hz") == "n/a"
+    # a figure that does not exist reads "none", never "nan"/"inf" (issue 11)
+    assert display_value(float("nan"), "Hz") == "none"
+    assert display_value(float("inf"), "dB") == "none"
+    assert display_value(-float("inf"), "dB") == "none"
     assert display_value("transit") == "transit"
     assert display_value(None) == ""
     # a vanishing noise share is shown as such, not as "5.51e-09 %"
@@ -65,7 +69,7 @@ def test_wavelength_shown_in_nm_and_cautions_in_text_and_latex():
 def test_terminal_text_uses_engineering_units():
     text = str(make_budget())
     assert text.startswith("Test receiver\n=============")
-    for piece in ["1.23 GHz", "280 ps", "61.2 deg", "yes", "transit", "inf ohm", "150 uV",
+    for piece in ["1.23 GHz", "280 ps", "61.2 deg", "yes", "transit", "none", "150 uV",
                   "1e15 cm^-3", "2.2 pF", "Note: model estimate"]:
         assert piece in text
     assert "1234567000" not in text
@@ -89,7 +93,9 @@ def test_csv_parses_back_with_si_values(tmp_path):
     assert float(speed.loc["bandwidth", "value"]) == 1.234567e9
     assert float(speed.loc["rise time", "value"]) == 2.8e-10
     assert speed.loc["rise time", "unit"] == "s"
-    assert math.isinf(float(speed.loc["shunt R", "value"]))
+    assert speed.loc["shunt R", "value"] == "none"  # not "inf" (issue 11)
+    assert math.isnan(pd.read_csv(path, na_values=["none"]).set_index("quantity")
+                      .loc["shunt R", "value"])
     noise = df[df["table"] == "noise by source"]
     assert noise["output_rms"].astype(float).tolist() == [1.5e-4, 2.5e-4]
     assert b.to_csv() == path.read_text()
@@ -103,7 +109,7 @@ def test_json_parses_back(tmp_path):
     assert rows["bandwidth"]["value"] == 1.234567e9 and rows["bandwidth"]["unit"] == "Hz"
     assert rows["bandwidth"]["display"] == "1.23 GHz"
     assert rows["stable"]["value"] is True
-    assert rows["shunt R"]["value"] is None and rows["shunt R"]["display"] == "inf ohm"
+    assert rows["shunt R"]["value"] is None and rows["shunt R"]["display"] == "none"
     assert doc["column_units"] == {"noise by source": {"output_rms": "V"}}
     assert doc["tables"]["operating point"][0]["display"] == "1e15 cm^-3"
     assert any("IEC 60825-1" in c for c in doc["cautions"])
@@ -221,3 +227,24 @@ def test_units_in_column_headers():
     # the CSV keeps the header with its unit and the SI float
     df = pd.read_csv(__import__("io").StringIO(b.to_csv()))
     assert df["output rms [V]"].tolist() == [1.5e-4]
+
+
+def test_limit_column_takes_each_rows_unit_and_none():
+    # a checks table (value, limit, unit per row): the limit is shown in the row's unit
+    t = pd.DataFrame({"check": ["phase margin", "dark current", "overshoot"],
+                      "value": [62.0, 1e-9, 0.05], "limit": [45.0, 1e-8, None],
+                      "unit": ["deg", "A", ""], "ok": [True, True, "no limit set"]})
+    shown = Budget({"checks": t}).display_table("checks")
+    assert list(shown["limit"]) == ["45 deg", "10 nA", "none"]
+    assert list(shown["value"]) == ["62 deg", "1 nA", "0.05"]
+    doc = json.loads(Budget({"checks": t}).to_json())
+    assert doc["tables"]["checks"][2]["limit"] is None  # JSON keeps null
+
+
+def test_no_inf_or_nan_in_any_export():
+    t = pd.DataFrame({"quantity": ["gain margin", "transit time", "filter"],
+                      "value": [np.inf, np.nan, -np.inf], "unit": ["dB", "s", "Hz"]})
+    wide = pd.DataFrame({"source": ["a"], "output rms [V]": [np.nan]})
+    b = Budget({"stability": t, "wide": wide})
+    for text in (str(b), b.to_csv(), b.to_markdown(), b.to_latex(), b.to_html(), b.to_json()):
+        assert not re.search(r"\b(inf|nan|n/a)\b", text, flags=re.IGNORECASE), text
