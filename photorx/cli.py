@@ -211,7 +211,7 @@ def _write_or_print(text: str, output) -> None:
     if output in (None, "-"):
         sys.stdout.write(text)
     else:
-        from .views._files import atomic_write_text
+        from ._files import atomic_write_text
 
         atomic_write_text(output, text)
         print(f"wrote {output}", file=sys.stderr)

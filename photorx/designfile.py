@@ -439,7 +439,7 @@ def save_design(rx, path, name: str = "", description: str = "") -> Path:
     -------
     pathlib.Path
     """
-    from .views._files import atomic_write_text
+    from ._files import atomic_write_text
 
     return atomic_write_text(path, dumps_design(rx, name, description))
 
@@ -515,6 +515,6 @@ def _example(key: Key) -> str:
 
 def write_template(path) -> Path:
     """Write :func:`design_template` to ``path`` atomically."""
-    from .views._files import atomic_write_text
+    from ._files import atomic_write_text
 
     return atomic_write_text(path, design_template())

@@ -1,7 +1,7 @@
 """Step-response waveform of the closed-loop transimpedance stage.
 
 The closed loop is all-pole, Zt(s) = A0 / Den(s) (see
-:func:`photorx.circuit.metrics.closed_loop_polynomial`), so its response to a photocurrent
+:func:`photorx.circuit.loop_poles.closed_loop_polynomial`), so its response to a photocurrent
 step is a sum of exponentials with the residues of 1/(s Den(s)):
 
     y(t) / y(inf) = 1 + sum_k exp(p_k t) / (p_k Den'(p_k) / Den(0))
@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .metrics import _deriv, _horner, _normalised_poles, closed_loop_polynomial
+from .loop_poles import _deriv, _horner, _normalised_poles, closed_loop_polynomial
 
 __all__ = ["step_response"]
 

@@ -14,7 +14,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import DesignError
-from ._files import atomic_write_text
+from .._files import atomic_write_text
 from .cautions import cautions_html
 from .tables import html_page
 

@@ -38,7 +38,7 @@ import pandas as pd
 
 from ..errors import DesignError
 from ..units import format_eng
-from ._files import atomic_write_text
+from .._files import atomic_write_text
 from .cautions import CAUTIONS, cautions_html, cautions_markdown, cautions_short, cautions_text
 
 __all__ = ["Budget", "EXPORT_FORMATS", "NONE", "display_value", "figure_text"]

@@ -17,7 +17,7 @@ import pytest
 pytest.importorskip("matplotlib")
 
 from photorx.designfile import load_design  # noqa: E402
-from photorx.views import _files  # noqa: E402
+from photorx import _files  # noqa: E402
 from photorx.views import report  # noqa: E402
 
 

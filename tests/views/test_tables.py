@@ -17,7 +17,7 @@ import pandas as pd
 import pytest
 
 from photorx.errors import DesignError
-from photorx.views import _files
+from photorx import _files
 from photorx.views.cautions import CAUTIONS
 from photorx.views.tables import Budget, display_value, normalize_format
 

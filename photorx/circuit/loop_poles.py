@@ -1,0 +1,255 @@
+"""Closed-loop polynomial and poles of the transimpedance loop (vectorised over designs).
+
+The pieces the loop figures of :mod:`photorx.circuit.metrics` are built from: input
+validation and broadcasting, polynomial arithmetic on stacked coefficient arrays, the
+denominator Den(s) of Zt(s) = A0 / Den(s), and its roots from batched companion matrices.
+The formulas are derived in the notes of :mod:`photorx.circuit.metrics`.
+
+References
+----------
+.. [1] J. G. Graeme, *Photodiode Amplifiers: Op Amp Solutions*, McGraw-Hill, 1996, ch. 2-3.
+.. [2] G. H. Golub and C. F. Van Loan, *Matrix Computations*, 4th ed., 2013, sec. 7.4.6
+       (polynomial roots as companion-matrix eigenvalues).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .._validate import as_float_array, require_nonnegative, require_positive
+from ..errors import DesignError
+
+__all__ = ["closed_loop_polynomial", "closed_loop_poles"]
+
+_TWO_PI = 2.0 * np.pi
+
+
+# ---------------------------------------------------------------------------------------------
+# input handling
+# ---------------------------------------------------------------------------------------------
+def _positive_or_inf(name, value, unit):
+    """> 0, +inf allowed (an absent element), NaN rejected."""
+    arr = as_float_array(name, value, unit)
+    a = np.asarray(arr)
+    bad = np.isnan(a) | (a <= 0)
+    if np.any(bad):
+        raise DesignError.out_of_range(name, a[bad][0] if a.ndim else float(a), unit,
+                                       "> 0 (inf for none)")
+    return arr
+
+
+def _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.inf):
+    """Validate, broadcast and flatten. Returns (shape, dict of 1-D arrays, poles (N, K))."""
+    vals = dict(
+        gbw=require_positive("gbw", gbw, "Hz"),
+        dc_gain=require_positive("dc_gain", dc_gain, "V/V"),
+        rf=require_positive("rf", rf, "ohm"),
+        cf=require_nonnegative("cf", cf, "F"),
+        cd=require_positive("cd", cd, "F"),
+        rsh=_positive_or_inf("rsh", rsh, "ohm"),
+        rs=require_nonnegative("rs", rs, "ohm"),
+        cin=require_nonnegative("cin", cin, "F"),
+        output_swing=_positive_or_inf("output_swing", output_swing, "V"),
+    )
+    if poles is None:
+        poles = ()
+    elif not isinstance(poles, (list, tuple)):
+        poles = tuple(poles) if np.ndim(poles) else (poles,)
+    pole_list = [_positive_or_inf("poles", p, "Hz") for p in poles]
+    shape = np.broadcast_shapes(*(np.shape(v) for v in vals.values()),
+                                *(np.shape(p) for p in pole_list))
+    flat = {k: np.broadcast_to(np.asarray(v, dtype=float), shape).ravel() for k, v in vals.items()}
+    n = flat["gbw"].size
+    pk = np.stack([np.broadcast_to(np.asarray(p, dtype=float), shape).ravel() for p in pole_list],
+                  axis=-1) if pole_list else np.zeros((n, 0))
+    return shape, flat, pk
+
+
+# ---------------------------------------------------------------------------------------------
+# polynomials (ascending coefficients on the last axis)
+# ---------------------------------------------------------------------------------------------
+def _polymul(a, b):
+    out = np.zeros(np.broadcast_shapes(a.shape[:-1], b.shape[:-1]) + (a.shape[-1] + b.shape[-1] - 1,))
+    for i in range(a.shape[-1]):
+        out[..., i:i + b.shape[-1]] += a[..., i:i + 1] * b
+    return out
+
+
+def _polyadd(a, b):
+    n = max(a.shape[-1], b.shape[-1])
+    pa = np.concatenate([a, np.zeros(a.shape[:-1] + (n - a.shape[-1],))], axis=-1)
+    pb = np.concatenate([b, np.zeros(b.shape[:-1] + (n - b.shape[-1],))], axis=-1)
+    return pa + pb
+
+
+def _horner(c, x):
+    """sum_k c[..., k] x^k for c (N, m) and x (N, M)."""
+    acc = np.zeros(x.shape, dtype=complex) + c[:, -1:]
+    for k in range(c.shape[-1] - 2, -1, -1):
+        acc = acc * x + c[:, k:k + 1]
+    return acc
+
+
+def _deriv(c):
+    return c[:, 1:] * np.arange(1, c.shape[-1])
+
+
+def _on_axis(c, w):
+    """sum_k c[..., k] (j w)^k for real c (N, m) and w (N, M), in real arithmetic."""
+    w2 = w * w
+    m = c.shape[-1]
+    even = np.zeros(w.shape)
+    odd = np.zeros(w.shape)
+    for k in range(((m - 1) // 2) * 2, -1, -2):   # c0 - c2 w^2 + c4 w^4 ...
+        even = c[:, k:k + 1] - even * w2
+    for k in range(((m - 2) // 2) * 2 + 1, 0, -2):  # (c1 - c3 w^2 + ...) w
+        odd = c[:, k:k + 1] - odd * w2
+    return even + 1j * odd * w
+
+
+def _den_parts(p, pk):
+    """The pieces of Den(s) for flattened parameters ``p`` and extra poles ``pk`` [Hz]."""
+    gf = 1.0 / p["rf"]
+    gsh = 1.0 / p["rsh"]
+    p0 = 1.0 + p["rs"] * gsh
+    one = np.ones_like(gf)
+    nf = np.stack([gf, p["cf"]], -1)
+    pp = np.stack([p0, p["rs"] * p["cd"]], -1)
+    nin = np.stack([gsh, p["cd"] + p["cin"] * p0, p["cin"] * p["rs"] * p["cd"]], -1)
+    nfp = _polymul(nf, pp)
+    q2 = nfp + nin
+    da = np.stack([one, p["dc_gain"] / (_TWO_PI * p["gbw"])], -1)
+    for k in range(pk.shape[-1]):
+        da = _polymul(da, np.stack([one, 1.0 / (_TWO_PI * pk[:, k])], -1))
+    return dict(gf=gf, gsh=gsh, p0=p0, nfp=nfp, q2=q2, da=da)
+
+
+def closed_loop_polynomial(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+    """Denominator of the closed-loop transimpedance, Zt(s) = dc_gain / Den(s).
+
+    All parameters broadcast against each other (one element per design), as in
+    :func:`photorx.circuit.tia.transimpedance`.
+
+    Parameters
+    ----------
+    gbw : array_like
+        Amplifier gain-bandwidth product [Hz], > 0.
+    dc_gain : array_like
+        Amplifier DC open-loop gain [V/V], > 0.
+    poles : sequence of array_like
+        Extra amplifier poles [Hz], > 0, one entry per pole; ``inf`` marks an absent pole.
+        ``()`` for none.
+    rf : array_like
+        Feedback resistance [ohm], > 0.
+    cf : array_like
+        Feedback capacitance [F], >= 0.
+    cd : array_like
+        Photodiode capacitance [F], > 0.
+    rsh : array_like
+        Photodiode shunt resistance [ohm], > 0, ``inf`` for none.
+    rs : array_like
+        Photodiode series resistance [ohm], >= 0.
+    cin : array_like
+        Amplifier input capacitance [F], >= 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        Coefficients of Den(s), s in [rad/s], ascending powers on the last axis, shape
+        ``broadcast_shape + (4 + len(poles),)``; units [S s^k].
+
+    Notes
+    -----
+    Den(s) = Q2(s) D_A(s) + A0 Yf(s) P(s) with the symbols of the module notes.
+    """
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    d = _den_parts(p, pk)
+    den = _polyadd(_polymul(d["q2"], d["da"]), p["dc_gain"][:, None] * d["nfp"])
+    return den.reshape(shape + (den.shape[-1],))
+
+
+def _normalised_poles(den):
+    """Poles of Den in units of w0, with w0 and the normalised coefficients (Den(0) = 1).
+
+    Returns x (N, n) complex (NaN where the degree is lower), w0 (N,), d (N, n+1).
+    """
+    c0 = den[:, 0]
+    w0 = np.where(den[:, 2] > 0, np.sqrt(c0 / np.where(den[:, 2] > 0, den[:, 2], 1.0)),
+                  c0 / den[:, 1])
+    k = np.arange(den.shape[-1])
+    d = den / c0[:, None] * w0[:, None] ** k
+    n = d.shape[-1] - 1
+    nonzero = d != 0
+    degree = n - np.argmax(nonzero[:, ::-1], axis=-1)
+    x = np.full((d.shape[0], n), np.nan + 0j)
+    for m in np.unique(degree):  # at most a few distinct degrees; designs stay batched
+        rows = np.nonzero(degree == m)[0]
+        lead = d[rows, m]
+        comp = np.zeros((rows.size, m, m))
+        comp[:, 0, :] = -d[rows, m - 1::-1] / lead[:, None]
+        if m > 1:
+            comp[:, np.arange(1, m), np.arange(m - 1)] = 1.0
+        x[rows, :m] = np.linalg.eigvals(comp)
+    # one guarded Newton step polishes each root on the original polynomial
+    with np.errstate(all="ignore"):
+        dd = _deriv(d)
+        xv = np.where(np.isnan(x), 0.0, x)
+        f0 = _horner(d, xv)
+        step = f0 / _horner(dd, xv)
+        x1 = xv - step
+        better = np.isfinite(x1) & (np.abs(_horner(d, x1)) < np.abs(f0))
+        x = np.where(better & ~np.isnan(x), x1, x)
+    return x, w0, d
+
+
+def closed_loop_poles(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+    """Closed-loop poles of the transimpedance [rad/s], complex.
+
+    The roots of :func:`closed_loop_polynomial`, from batched companion-matrix eigenvalues
+    polished by one guarded Newton step.
+
+    Parameters
+    ----------
+    gbw : array_like
+        Amplifier gain-bandwidth product [Hz], > 0.
+    dc_gain : array_like
+        Amplifier DC open-loop gain [V/V], > 0.
+    poles : sequence of array_like
+        Extra amplifier poles [Hz], > 0, one entry per pole; ``inf`` marks an absent pole.
+        ``()`` for none.
+    rf : array_like
+        Feedback resistance [ohm], > 0.
+    cf : array_like
+        Feedback capacitance [F], >= 0.
+    cd : array_like
+        Photodiode capacitance [F], > 0.
+    rsh : array_like
+        Photodiode shunt resistance [ohm], > 0, ``inf`` for none.
+    rs : array_like
+        Photodiode series resistance [ohm], >= 0.
+    cin : array_like
+        Amplifier input capacitance [F], >= 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        Complex poles [rad/s], shape ``broadcast_shape + (3 + len(poles),)``; designs of
+        lower degree (Rs = 0, absent poles) are padded with NaN.
+    """
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    d = _den_parts(p, pk)
+    den = _polyadd(_polymul(d["q2"], d["da"]), p["dc_gain"][:, None] * d["nfp"])
+    x, w0, _ = _normalised_poles(den)
+    return (x * w0[:, None]).reshape(shape + (x.shape[-1],))
+
+
+def _bisect_rows(fun, lo, hi, rows, n_iter=44):
+    """Vectorised bisection in log w of fun(w, rows) whose sign differs at lo and hi."""
+    flo = np.sign(fun(lo, rows))
+    for _ in range(n_iter):
+        mid = np.sqrt(lo * hi)
+        fm = np.sign(fun(mid, rows))
+        same = fm == flo
+        lo = np.where(same, mid, lo)
+        hi = np.where(same, hi, mid)
+    return np.sqrt(lo * hi)
