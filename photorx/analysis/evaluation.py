@@ -262,8 +262,9 @@ def _speed(p: _Point) -> dict:
     wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
     circuit_e = with_frequency_axis(p.circuit)
 
-    def photodiode(f):
-        return pd_e.intrinsic_response(f, v_e, wl_e)
+    # bias- and wavelength-dependent set-up once; each refinement step evaluates f only
+    photodiode = (pd_e.intrinsic_response_at(v_e, wl_e) if p.has_speed
+                  else (lambda f: pd_e.intrinsic_response(f, v_e, wl_e)))
 
     def circuit(f):
         h = transimpedance(f, **circuit_e)

@@ -117,9 +117,16 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
         h2 = 1.0
     names = list(out)
     scale = np.asarray(span)[..., None] * f * h2  # dP/du on u in [0, 1]
-    g = np.stack(np.broadcast_arrays(*[out[k] * scale for k in names]))  # (S, ..., n + 1)
-    total_g = g.sum(axis=0)
-    ms = g @ best
+    # one source at a time: no (sources x designs x grid) stack in memory
+    shape = np.broadcast_shapes(np.shape(scale), *(np.shape(out[k]) for k in names))
+    total_g = np.zeros(shape)
+    ms = []
+    for k in names:
+        g_k = np.broadcast_to(out[k] * scale, shape)
+        total_g += g_k
+        ms.append(g_k @ best)
+        del g_k
+    ms = np.stack(ms)  # (S, ...): small, one number per source and design
     if not _converged(total_g, best, check, ms.sum(axis=0), span, rtol):
         return None
     zg = zt2 * scale

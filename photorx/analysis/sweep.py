@@ -20,7 +20,7 @@ from .parameters import resolve_parameter, with_parameters
 __all__ = ["sweep", "grid"]
 
 #: Grids larger than this are evaluated in chunks (memory: each point carries a frequency grid).
-CHUNK = 4096
+CHUNK = 1024
 #: Smallest chunk when a progress callback is given.
 PROGRESS_CHUNK = 256
 
@@ -93,23 +93,35 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     total = len(next(iter(points.values())))
     # a progress bar needs steps; each chunk stays large enough to stay vectorised
     size = CHUNK if progress is None else min(CHUNK, max(PROGRESS_CHUNK, -(-total // 20)))
-    frames = []
+    # every column is allocated once at its full length and filled chunk by chunk: no
+    # per-chunk frames and no concatenation, so the peak memory is one copy of the result
+    # plus one chunk's working set
+    columns: dict[str, np.ndarray] = {}
     for start in range(0, total, size):
         chunk = {k: v[start:start + size] for k, v in points.items()}
         rx = with_parameters(receiver, **chunk)
-        frame = rx.evaluate().to_frame()
-        frame.insert(0, "point", np.arange(start, start + len(frame)))
+        result = rx.evaluate()
+        shape = np.shape(result.values["bandwidth"])
+        figures = {k: np.ravel(np.broadcast_to(np.asarray(v), shape))
+                   for k, v in result.to_dict().items()}
+        del result, rx
+        # column order as before: a swept figure keeps its place, a new axis column goes
+        # in at 1 + its axis index counting a leading "point" column (dropped below)
+        order = ["point", *figures]
         for i, (name, values) in enumerate(chunk.items()):
             column = name.replace("__", ".")
-            if column in frame.columns:
-                frame[column] = values
-            else:
-                frame.insert(1 + i, column, values)
-        frames.append(frame)
+            if column not in figures:
+                order.insert(1 + i, column)
+            figures[column] = np.asarray(values)
+        for column in order[1:]:
+            values = figures[column]
+            if column not in columns:  # text columns as objects: later chunks may be longer
+                kind = values.dtype if values.dtype.kind in "biufc" else object
+                columns[column] = np.empty(total, dtype=kind)
+            columns[column][start:start + len(values)] = values
         if progress is not None:
             progress(min(start + size, total), total)
-    out = pd.concat(frames, ignore_index=True)
-    return out.drop(columns="point")
+    return pd.DataFrame(columns, copy=False)
 
 
 def sweep_points(receiver, points) -> pd.DataFrame:

@@ -117,28 +117,65 @@ class SpeedRoutes:
         ``intrinsic_bandwidth``: the uniform-generation transit response with that f_3dB;
         parametric junction without it: H = 1.
         """
-        fr = np.asarray(require_nonnegative("f", f, "Hz"))
+        return self.intrinsic_response_at(v_r, wavelength)(f)
+
+    def intrinsic_response_at(self, v_r=0.0, wavelength=None):
+        """``f -> intrinsic_response(f, v_r, wavelength)`` with the operating point set up once.
+
+        The velocities, layer stack, absorption and DC normalisation depend on the bias and
+        the wavelength only; a search that evaluates the response at many frequency steps
+        (the -3 dB refinements) computes them once. Same values as
+        :meth:`intrinsic_response`, which calls this.
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        wavelength : float or array_like, optional
+            Vacuum wavelength [m] (see :meth:`intrinsic_response`).
+
+        Returns
+        -------
+        callable
+            ``response(f)`` -> complex H(f), f [Hz] >= 0.
+        """
         if self.intrinsic_bandwidth is not None or not self._physical:
             v = np.asarray(require_finite("v_r", v_r, "V"))
             if self.intrinsic_bandwidth is None:
-                return _out(np.ones(np.broadcast(fr, v).shape) + 0j)
+                def flat(f):
+                    fr = np.asarray(require_nonnegative("f", f, "Hz"))
+                    return _out(np.ones(np.broadcast(fr, v).shape) + 0j)
+                return flat
             tau = speed.UNIFORM_TRANSIT_FACTOR / self.intrinsic_bandwidth
-            h = speed._drift_spectrum(2 * np.pi * fr, 1e-6, tau, tau) / -np.expm1(-1e-6)
-            return _out(np.asarray(h) + 0.0 * v)
+
+            def uniform(f):
+                fr = np.asarray(require_nonnegative("f", f, "Hz"))
+                h = speed._drift_spectrum(2 * np.pi * fr, 1e-6, tau, tau) / -np.expm1(-1e-6)
+                return _out(np.asarray(h) + 0.0 * v)
+            return uniform
         vf, vn = self._velocities(v_r)
         if wavelength is None or not self._has_optics():
             w = np.asarray(self.junction.depletion_width(v_r))
-            return speed.drift_response(fr, w, vf, vn)
+
+            def drift(f):
+                fr = np.asarray(require_nonnegative("f", f, "Hz"))
+                return speed.drift_response(fr, w, vf, vn)
+            return drift
         st = self._stack(v_r)
-        parts = speed.photocurrent_spectrum(fr, self._alpha(wavelength), v_far=vf, v_near=vn,
-                                            **st)
-        dc = speed.photocurrent_spectrum(0.0, self._alpha(wavelength), v_far=vf, v_near=vn,
-                                         **st)
-        num = sum(np.asarray(p) for p in parts)
+        alpha = self._alpha(wavelength)
+        dc = speed.photocurrent_spectrum(0.0, alpha, v_far=vf, v_near=vn, **st)
         den = np.real(sum(np.asarray(p) for p in dc))
-        with np.errstate(invalid="ignore", divide="ignore"):
-            h = np.where(den > 0, num / np.where(den > 0, den, 1.0), 1.0 + 0j)
-        return _out(h)
+        ok = den > 0
+        den_safe = np.where(ok, den, 1.0)
+
+        def physical(f):
+            fr = np.asarray(require_nonnegative("f", f, "Hz"))
+            parts = speed.photocurrent_spectrum(fr, alpha, v_far=vf, v_near=vn, **st)
+            num = sum(np.asarray(p) for p in parts)
+            with np.errstate(invalid="ignore", divide="ignore"):
+                h = np.where(ok, num / den_safe, 1.0 + 0j)
+            return _out(h)
+        return physical
 
     def diffusion_time_constant(self, wavelength, v_r=0.0):
         """Mean delay of the diffusion part of the photocurrent [s] (0 if there is none).
