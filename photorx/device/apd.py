@@ -371,8 +371,8 @@ class AvalanchePhotodiode:
         memory); in a uniform field it is alpha_p/alpha_n exactly.
         """
         x, a_n, a_p = self._alphas(reverse_bias, self._temperature(temperature))
-        integral, phi = av._integrals(x, a_n, a_p)
-        m_x = np.exp(-phi) / (1.0 - integral)[..., None]
+        _, phi, one_minus = av._integrals(x, a_n, a_p)
+        m_x = np.exp(-phi) / np.asarray(one_minus)[..., None]
         num, den = (a_p, a_n) if self.injection == "electron" else (a_n, a_p)
         with np.errstate(invalid="ignore", divide="ignore"):
             k = trapezoid(num * m_x**2, x, axis=-1) / trapezoid(den * m_x**2, x, axis=-1)

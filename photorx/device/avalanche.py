@@ -14,7 +14,7 @@ import numpy as np
 from scipy.integrate import cumulative_trapezoid, trapezoid
 from scipy.optimize import brentq, least_squares
 
-from .._validate import require_in_range, require_nonnegative, require_positive
+from .._validate import as_float_array, require_in_range, require_nonnegative, require_positive
 from ..errors import DesignError
 
 __all__ = [
@@ -44,8 +44,11 @@ def _integrals(x, alpha_n, alpha_p):
     """(I, phi): ionisation integral and the exponent phi(x) = int_0^x (a_n - a_p) dx'."""
     x, a_n, a_p = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (x, alpha_n, alpha_p)))
     phi = cumulative_trapezoid(a_n - a_p, x, axis=-1, initial=0.0)
-    integral = trapezoid(a_n * np.exp(-phi), x, axis=-1)
-    return integral, phi
+    # int a_n e^-phi = int (a_n - a_p) e^-phi + int a_p e^-phi, and the first part is
+    # exactly 1 - e^-phi(W): so 1 - I = e^-phi(W) - int a_p e^-phi dx, free of the
+    # cancellation that 1 - (quadrature of I) suffers near breakdown
+    one_minus = np.exp(-phi[..., -1]) - trapezoid(a_p * np.exp(-phi), x, axis=-1)
+    return 1.0 - one_minus, phi, one_minus
 
 
 def ionization_integral(x, alpha_n, alpha_p):
@@ -68,7 +71,8 @@ def ionization_integral(x, alpha_n, alpha_p):
 
     Notes
     -----
-    Trapezoidal quadrature on the given grid (second order in the spacing).
+    Trapezoidal quadrature on the given grid (second order in the spacing), evaluated as
+    1 - I = exp(-phi(W)) - int_0^W alpha_p exp(-phi) dx (exact for alpha_p = 0).
 
     References
     ----------
@@ -117,8 +121,8 @@ def multiplication_gain(x, alpha_n, alpha_p, injection="electron", weights=None)
     if injection not in INJECTIONS:
         raise DesignError(f"injection = {injection!r} is invalid; valid: "
                           f"{', '.join(INJECTIONS)}", parameter="injection")
-    integral, phi = _integrals(x, alpha_n, alpha_p)
-    if np.any(integral >= 1.0):
+    integral, phi, one_minus = _integrals(x, alpha_n, alpha_p)
+    if np.any(one_minus <= 0.0):
         raise DesignError.out_of_range("ionization integral", np.max(integral), "",
                                        "< 1 (at or beyond avalanche breakdown)")
     if injection == "electron":
@@ -136,7 +140,7 @@ def multiplication_gain(x, alpha_n, alpha_p, injection="electron", weights=None)
         if np.any(norm <= 0):
             raise DesignError("weights must not be all zero", parameter="weights")
         num = trapezoid(g * np.exp(-phi), xb, axis=-1) / norm
-    return _out(num / (1.0 - integral))
+    return _out(num / one_minus)
 
 
 def uniform_gain(alpha_n, alpha_p, width, injection="electron"):
@@ -435,9 +439,14 @@ def apd_bandwidth(transit_bandwidth, rc_bandwidth, avalanche_bandwidth):
         f = (f_t^-2 + f_RC^-2 + f_av^-2)^-1/2, the root-sum-square of the time constants
         (common practice; exact for three first-order Gaussian-like stages only).
     """
-    fs = [np.asarray(require_positive(n, f, "Hz"), dtype=float) for n, f in
-          (("transit_bandwidth", transit_bandwidth), ("rc_bandwidth", rc_bandwidth),
-           ("avalanche_bandwidth", avalanche_bandwidth))]
+    fs = []
+    for name, f in (("transit_bandwidth", transit_bandwidth), ("rc_bandwidth", rc_bandwidth),
+                    ("avalanche_bandwidth", avalanche_bandwidth)):
+        arr = np.asarray(as_float_array(name, f, "Hz"), dtype=float)
+        if np.any(~(arr > 0)):  # also NaN; +inf (no limit) is allowed
+            raise DesignError.out_of_range(name, arr[~(arr > 0)].flat[0] if arr.ndim else arr,
+                                           "Hz", "> 0 (inf allowed)")
+        fs.append(arr)
     return _out(1.0 / np.sqrt(sum(1.0 / f**2 for f in fs)))
 
 
