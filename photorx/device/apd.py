@@ -118,12 +118,26 @@ class SamStructure:
                 (eps_inp, eps_inp, eps_ga))
 
     def peak_field(self, v_r):
-        """Field at the p+/multiplier interface [V/m] at reverse bias ``v_r`` [V]."""
+        """Field at the p+/multiplier interface [V/m] at reverse bias ``v_r`` [V].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        """
         v = require_finite("v_r", v_r, "V")
         return layered_peak_field(np.asarray(v) + self.built_in_potential, *self._layers())
 
     def field_profile(self, v_r, n_points=_GRID):
-        """(x [m], |E| [V/m]) across the three layers at reverse bias ``v_r`` [V]."""
+        """(x [m], |E| [V/m]) across the three layers at reverse bias ``v_r`` [V].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        n_points : int, optional
+            Grid nodes per layer.
+        """
         return layered_field_profile(self.peak_field(v_r), *self._layers(), n_points=n_points)
 
     def punch_through_voltage(self):
@@ -136,13 +150,25 @@ class SamStructure:
         return _out(v - self.built_in_potential)
 
     def depletion_width(self, v_r):
-        """Depleted thickness [m] (the whole stack once the absorber is depleted)."""
+        """Depleted thickness [m] (the whole stack once the absorber is depleted).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        """
         x, e = self.field_profile(v_r)
         inside = e > 0
         return _out(np.max(np.where(inside, x, 0.0), axis=-1))
 
     def capacitance(self, v_r):
-        """Depletion capacitance A / sum(d_i / eps_i) over the depleted layers [F]."""
+        """Depletion capacitance A / sum(d_i / eps_i) over the depleted layers [F].
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        """
         x, e = self.field_profile(v_r)
         (dm, dc, _), _, (eps_m, _, eps_a) = self._layers()
         w = np.max(np.where(e > 0, x, 0.0), axis=-1)
@@ -379,7 +405,15 @@ class AvalanchePhotodiode:
         return _out(np.clip(np.nan_to_num(k, nan=0.0), 0.0, 1.0))
 
     def excess_noise_factor(self, reverse_bias, temperature=None):
-        """McIntyre F(M, k_eff) at reverse bias ``v_r`` [V] [-] (see k_effective)."""
+        """McIntyre F(M, k_eff) at ``reverse_bias`` [-] (see :meth:`k_effective`).
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+        temperature : float, optional
+            [K] (default: the device's).
+        """
         return av.excess_noise_factor(self.gain(reverse_bias, temperature),
                                       self.k_effective(reverse_bias, temperature))
 
@@ -398,21 +432,43 @@ class AvalanchePhotodiode:
         return np.minimum(np.asarray(v_r, dtype=float), 0.999 * vb)
 
     def dark_current_parts(self, reverse_bias, temperature=None):
-        """(surface I_ds, multiplied M I_dm) dark currents [A] at ``reverse_bias`` [V]."""
+        """(surface I_ds, multiplied M I_dm) dark currents [A] at ``reverse_bias``.
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+        temperature : float, optional
+            [K] (default: the device's).
+        """
         m = np.asarray(self.gain(reverse_bias, temperature))
         i_dm = np.asarray(self._primary_bulk(reverse_bias))
         i_ds = self.surface_dark_current + 0.0 * m
         return _out(i_ds), _out(m * i_dm)
 
     def dark_current(self, reverse_bias, temperature=None):
-        """Total dark current I_ds + M I_dm [A] (:func:`avalanche_dark_current`)."""
+        """Total dark current I_ds + M I_dm [A] (:func:`avalanche_dark_current`).
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+        temperature : float, optional
+            [K] (default: the device's).
+        """
         m = self.gain(reverse_bias, temperature)
         return av.avalanche_dark_current(m, self.surface_dark_current,
                                          self._primary_bulk(reverse_bias))
 
     # ------------------------------------------------------------------ photodiode-like
     def capacitance(self, reverse_bias=0.0):
-        """Depletion capacitance [F] (plus the photodiode's package capacitance)."""
+        """Depletion capacitance [F] (plus the photodiode's package capacitance).
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+        """
         if self.structure is not None:
             return self.structure.capacitance(reverse_bias)
         j, pd_ = self.photodiode.junction, self.photodiode
@@ -426,6 +482,13 @@ class AvalanchePhotodiode:
         SAM: (1 - R)(1 - exp(-alpha d_a)) q lambda / (h c) with the InGaAs absorption
         coefficient (:func:`~photorx.device.optics.absorption_coefficient`; the InP
         window is transparent beyond 920 nm). Junction kind: the photodiode's.
+
+        Parameters
+        ----------
+        wavelength : float or array_like
+            Vacuum wavelength [m].
+        reverse_bias : float or array_like, optional
+            Reverse bias [V].
         """
         if self.structure is None:
             return self.photodiode.responsivity(wavelength, self._pd_bias(reverse_bias))
@@ -435,7 +498,13 @@ class AvalanchePhotodiode:
         return _out(qe * q * wl / (h * c) + 0.0 * np.asarray(reverse_bias, dtype=float))
 
     def transit_time(self, reverse_bias=0.0):
-        """Transit time of the depleted region at the saturated velocity, W / v_sat [s]."""
+        """Transit time of the depleted region at the saturated velocity, W / v_sat [s].
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+        """
         if self.structure is not None:
             w = self.structure.depletion_width(reverse_bias)
         else:
@@ -475,7 +544,13 @@ class AvalanchePhotodiode:
         return av.apd_bandwidth(f_t, f_rc, f_av)
 
     def at_temperature(self, temperature):
-        """The same APD at another temperature [K]."""
+        """The same APD at another temperature.
+
+        Parameters
+        ----------
+        temperature : float
+            [K], 50 to 600.
+        """
         t = float(check_temperature(temperature))
         if self.structure is not None:
             return dataclasses.replace(self, structure=dataclasses.replace(self.structure,

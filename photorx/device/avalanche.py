@@ -252,7 +252,7 @@ def miller_gain(v_r, breakdown_voltage, exponent):
 class MillerFit:
     """Result of :func:`fit_miller`.
 
-    Attributes
+    Parameters
     ----------
     breakdown_voltage : float
         V_B [V].
@@ -267,7 +267,13 @@ class MillerFit:
     rms_residual: float
 
     def gain(self, v_r):
-        """Fitted gain at reverse bias ``v_r`` [V] (see :func:`miller_gain`)."""
+        """Fitted gain at reverse bias ``v_r`` (see :func:`miller_gain`).
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V], 0 <= v_r < breakdown_voltage.
+        """
         return miller_gain(v_r, self.breakdown_voltage, self.exponent)
 
 
