@@ -24,6 +24,7 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy.integrate import trapezoid
+from scipy.optimize import brentq
 
 from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
 from ..constants import c, eps0, h, q
@@ -378,6 +379,49 @@ class AvalanchePhotodiode:
             raise DesignError.out_of_range("reverse_bias", np.max(v), "V",
                                            f"< breakdown_voltage = {vb:.4g} V at {t:.4g} K")
         return av.multiplication_gain(x, a_n, a_p, self.injection)
+
+    def bias_for_gain(self, gain, temperature=None):
+        """Reverse bias [V] that gives the gain ``gain`` (scipy brentq below breakdown).
+
+        Parameters
+        ----------
+        gain : float or array_like
+            Target gain M [-], > 1 and below the gain at 0.99999 V_B.
+        temperature : float, optional
+            [K] (default: the device's).
+
+        Returns
+        -------
+        float or numpy.ndarray
+            v_r [V] with M(v_r) = gain (relative tolerance 1e-10 in bias). Sampling a bias
+            sweep in gain resolves the steep part near breakdown; at several temperatures
+            it is the bias of a constant-gain (temperature-compensated) supply.
+        """
+        t = self._temperature(temperature)
+        m = np.asarray(require_in_range("gain", gain, "", 1.0, np.inf, low_inclusive=False),
+                       dtype=float)
+        vb = self.breakdown_voltage(t)
+        top = 0.99999 * vb
+        m_top = float(self.gain(top, t))
+        if np.any(m >= m_top):
+            raise DesignError.out_of_range("gain", np.max(m), "",
+                                           f"> 1 and < {m_top:.4g} (the gain at 0.99999 V_B "
+                                           f"= {top:.4g} V)")
+        # M(0) may exceed 1 slightly (the built-in field multiplies too): start below it
+        low = -0.5 * float(self.photodiode.junction.built_in_potential()) \
+            if self.structure is None else 0.0
+        m_low = float(self.gain(low, t))
+
+        def solve(target):
+            if target <= m_low:
+                raise DesignError.out_of_range("gain", target, "",
+                                               f"> {m_low:.6g} (the gain at {low:.3g} V)")
+            # 1/M is close to linear in bias near breakdown: solve in 1/M
+            return brentq(lambda v: 1.0 / float(self.gain(v, t)) - 1.0 / target, low, top,
+                          xtol=1e-10 * vb, rtol=1e-12)
+
+        out = np.vectorize(solve, otypes=[float])(m)
+        return _out(out)
 
     def k_effective(self, reverse_bias, temperature=None):
         """Effective ionisation ratio of the injected carrier, gain-weighted [-].
