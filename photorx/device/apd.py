@@ -43,6 +43,7 @@ from .materials import check_temperature, material
 __all__ = ["SamStructure", "AvalanchePhotodiode"]
 
 _GRID = 201  # nodes per field segment: trapezoid error below 1e-4 in the integral
+_BREAKDOWN_MARGIN = 1e-7  # 1 - I at which a bias counts as breakdown (brentq root tolerance)
 
 
 def _out(x):
@@ -364,6 +365,9 @@ class AvalanchePhotodiode:
     def gain(self, reverse_bias, temperature=None):
         """Avalanche gain M(v_r) [-], >= 1; DesignError at or beyond breakdown.
 
+        A bias where 1 - I < 1e-7 (M > 1e7) counts as breakdown: it lies within the
+        root tolerance of :meth:`breakdown_voltage`.
+
         Parameters
         ----------
         reverse_bias : float or array_like
@@ -373,7 +377,8 @@ class AvalanchePhotodiode:
         """
         t = self._temperature(temperature)
         x, a_n, a_p = self._alphas(reverse_bias, t)
-        if np.any(av.ionization_integral(x, a_n, a_p) >= 1.0):
+        # 1 - I below 1e-7 (M beyond ~1e7) is breakdown within the solver's tolerance
+        if np.any(av._integrals(x, a_n, a_p)[2] <= _BREAKDOWN_MARGIN):
             vb = self.breakdown_voltage(t)
             v = np.asarray(reverse_bias, dtype=float)
             raise DesignError.out_of_range("reverse_bias", np.max(v), "V",

@@ -223,3 +223,19 @@ def test_bias_for_gain_inverts_the_gain_and_tracks_temperature():
     assert v_cold < apd.bias_for_gain(50.0) < v_hot
     with pytest.raises(DesignError, match="gain"):
         apd.bias_for_gain(1e9)
+
+
+@SETTINGS
+@given(st.floats(1.0, 3.0))
+def test_any_bias_at_or_above_breakdown_is_refused(factor):
+    apd = _sam()
+    with pytest.raises(DesignError, match="reverse_bias.*V"):
+        apd.gain(factor * apd.breakdown_voltage())
+
+
+@SETTINGS
+@given(st.sampled_from(["multiplier_doping", "charge_doping", "absorber_doping"]),
+       st.floats(1e25 * 10, 1e30))
+def test_sam_doping_out_of_range_names_parameter_unit_and_range(name, value):
+    with pytest.raises(DesignError, match=rf"{name} = .* m\^-3 is invalid; valid range: \["):
+        prx.SamStructure(area=1e-9, **{name: value})
