@@ -202,8 +202,8 @@ class AvalanchePhotodiode:
     reflectance : float, optional
         SAM front reflectance [-], 0 to <1 (default 0: anti-reflection coated).
     series_resistance : float, optional
-        SAM series resistance [ohm], >= 0 (default 10). The junction kind uses the
-        photodiode's.
+        Series resistance [ohm], >= 0. Default: the photodiode's (junction kind) or
+        10 ohm (SAM).
     saturation_velocity : float, optional
         Carrier velocity in the multiplier for the transit and build-up times [m/s],
         > 0 (default 1e5 m/s, about the saturated drift velocity in Si and InP, from
@@ -231,7 +231,7 @@ class AvalanchePhotodiode:
     surface_dark_current: float = 0.0
     bulk_dark_current: float | None = None
     reflectance: float = 0.0
-    series_resistance: float = 10.0
+    series_resistance: float | None = None
     saturation_velocity: float = 1e5
 
     def __post_init__(self):
@@ -265,8 +265,10 @@ class AvalanchePhotodiode:
                 "bulk_dark_current", self.bulk_dark_current, "A"))
         setf(self, "reflectance", require_in_range("reflectance", self.reflectance, "", 0.0, 1.0,
                                                    high_inclusive=False))
-        setf(self, "series_resistance", require_nonnegative(
-            "series_resistance", self.series_resistance, "ohm"))
+        r_s = self.series_resistance
+        if r_s is None:
+            r_s = 10.0 if self.structure is not None else self.photodiode.series_resistance
+        setf(self, "series_resistance", require_nonnegative("series_resistance", r_s, "ohm"))
         setf(self, "saturation_velocity", require_positive(
             "saturation_velocity", self.saturation_velocity, "m/s"))
 
@@ -581,8 +583,7 @@ class AvalanchePhotodiode:
         rl = require_nonnegative("load_resistance", load_resistance, "ohm")
         tau = np.asarray(self.transit_time(reverse_bias))
         f_t = 0.443 / tau
-        r_s = self.series_resistance if self.structure is not None else \
-            self.photodiode.series_resistance
+        r_s = self.series_resistance
         f_rc = 1.0 / (2 * np.pi * (r_s + np.asarray(rl)) * np.asarray(
             self.capacitance(reverse_bias)))
         m = np.asarray(self.gain(reverse_bias, temperature))

@@ -239,3 +239,11 @@ def test_any_bias_at_or_above_breakdown_is_refused(factor):
 def test_sam_doping_out_of_range_names_parameter_unit_and_range(name, value):
     with pytest.raises(DesignError, match=rf"{name} = .* m\^-3 is invalid; valid range: \["):
         prx.SamStructure(area=1e-9, **{name: value})
+
+
+def test_series_resistance_follows_the_photodiode_or_is_given():
+    assert _reach_through().series_resistance == _reach_through().photodiode.series_resistance
+    assert _sam().series_resistance == 10.0
+    apd = prx.AvalanchePhotodiode(structure=prx.SamStructure(area=(50 * um) ** 2),
+                                  series_resistance=25.0)
+    assert apd.series_resistance == 25.0
