@@ -23,6 +23,9 @@ from .errors import DesignError
 __all__ = ["main", "parse_axis", "parse_constraint", "MAX_POINTS", "YES_NO_FIGURES"]
 
 EXIT_OK, EXIT_FAILURE, EXIT_USAGE = 0, 1, 2
+#: Exit status after the reader of standard output went away: 128 + SIGPIPE (13), what a
+#: shell reports for a pipeline stage stopped by a broken pipe (common practice).
+EXIT_BROKEN_PIPE = 141
 
 #: Sweep axes offered as options (``--reverse-bias 0:20:81``); others via ``--axis NAME=SPEC``.
 _AXIS_OPTIONS = ("reverse_bias", "rf", "cf", "wavelength", "optical_power", "temperature", "area")
@@ -296,7 +299,10 @@ def _cmd_sweep(args) -> int:
                               f"{', '.join(frame.columns)}", parameter="columns")
         keep = list(dict.fromkeys([c.replace("__", ".") for c in axes] + wanted))
         frame = frame[[c for c in keep if c in frame.columns]]
-    _write_or_print(frame.to_csv(index=False, lineterminator="\n"), args.output)
+    # figures that do not exist (no post filter, no phase crossover) read "none", as in the
+    # budget exports (pandas: read_csv(..., na_values=["none"]))
+    frame = frame.replace([np.inf, -np.inf], np.nan)
+    _write_or_print(frame.to_csv(index=False, lineterminator="\n", na_rep="none"), args.output)
     return EXIT_OK
 
 
@@ -386,6 +392,7 @@ def _cmd_report(args) -> int:
              or (Path(args.design).stem if args.design else "photorx receiver report"))
     path = write_report(rx, args.output, title=title)
     print(f"wrote {path}", file=sys.stderr)
+    _warn_failed_checks(rx)
     return EXIT_OK
 
 
@@ -501,7 +508,12 @@ def main(argv=None) -> int:
             # finite is refused by the engine itself; photorx's own warnings get one line
             warnings.simplefilter("ignore", RuntimeWarning)
             warnings.showwarning = _show_warning
-            return args.func(args)
+            code = args.func(args)
+            sys.stdout.flush()  # a closed pipe shows here, inside the handler below
+            return code
+    except BrokenPipeError:  # the reader left (``photorx budget | head -1``): stop quietly
+        _discard_stdout()
+        return EXIT_BROKEN_PIPE
     except SystemExit as exc:  # --help and --version
         return exc.code if isinstance(exc.code, int) else EXIT_OK
     except UsageError as exc:
@@ -528,6 +540,16 @@ def main(argv=None) -> int:
         print(f"photorx: internal error: {type(exc).__name__}: {_one_line(exc)} "
               "(set PHOTORX_DEBUG=1 for details)", file=sys.stderr)
         return EXIT_FAILURE
+
+
+def _discard_stdout() -> None:
+    """Point standard output at the null device so the exit-time flush cannot fail again."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError):  # not a real file (captured in tests)
+        pass
 
 
 def _show_warning(message, category, filename, lineno, file=None, line=None):
