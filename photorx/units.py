@@ -142,12 +142,34 @@ def format_eng(value, unit: str = "", digits: int = 3) -> str:
 
 
 def dbm_to_watt(p_dbm):
-    """Optical or electrical power from dBm to W: P = 1 mW * 10^(dBm/10)."""
+    """Optical or electrical power from dBm to W: P = 1 mW * 10^(dBm/10).
+
+    Parameters
+    ----------
+    p_dbm : float or array_like
+        Power [dBm], any real value.
+
+    Returns
+    -------
+    numpy.ndarray
+        Power [W], > 0 (0-d array for scalar input).
+    """
     return 1e-3 * 10.0 ** (np.asarray(p_dbm, dtype=float) / 10.0)
 
 
 def watt_to_dbm(p_watt):
-    """Power from W to dBm; zero or negative power is a DesignError (no -inf)."""
+    """Power from W to dBm; zero or negative power is a DesignError (no -inf).
+
+    Parameters
+    ----------
+    p_watt : float or array_like
+        Power [W], > 0.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Power [dBm]: 10 log10(P / 1 mW).
+    """
     p = np.asarray(p_watt, dtype=float)
     if np.any(p <= 0):
         raise DesignError.out_of_range("power", p[p <= 0][0] if p.ndim else p, "W",

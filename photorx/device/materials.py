@@ -63,7 +63,20 @@ _FIELDS = ("eps_r", "eg_0k", "varshni_alpha", "varshni_beta", "nc_300", "nv_300"
 
 
 def check_temperature(temperature, name: str = "temperature"):
-    """Validate a temperature [K] against :data:`TEMPERATURE_RANGE`; return it as float/array."""
+    """Validate a temperature [K] against :data:`TEMPERATURE_RANGE`; return it as float/array.
+
+    Parameters
+    ----------
+    temperature : float or array_like
+        Temperature [K]; valid 50-600 K (:data:`TEMPERATURE_RANGE`), else a DesignError.
+    name : str, optional
+        Parameter name quoted in the error message; default "temperature".
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ``temperature`` [K], unchanged, as float (scalar input) or array.
+    """
     return require_in_range(name, temperature, "K", *TEMPERATURE_RANGE)
 
 
@@ -254,22 +267,65 @@ class Material:
         return self.eps_r * eps0
 
     def band_gap(self, temperature=_T_REF):
-        """Band gap [eV] at ``temperature`` [K] (Varshni form, see :func:`band_gap_varshni`)."""
+        """Band gap [eV] at ``temperature`` [K] (Varshni form, see :func:`band_gap_varshni`).
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            Band gap Eg(T) [eV].
+        """
         t = check_temperature(temperature)
         return band_gap_varshni(t, self.eg_0k, self.varshni_alpha, self.varshni_beta)
 
     def nc(self, temperature=_T_REF):
-        """Effective density of states of the conduction band [m^-3]: Nc(300 K) (T/300 K)^1.5."""
+        """Effective density of states of the conduction band [m^-3]: Nc(300 K) (T/300 K)^1.5.
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            Nc(T) [m^-3].
+        """
         t = check_temperature(temperature)
         return _scalar_or_array(self.nc_300 * (np.asarray(t) / _T_REF) ** 1.5)
 
     def nv(self, temperature=_T_REF):
-        """Effective density of states of the valence band [m^-3]: Nv(300 K) (T/300 K)^1.5."""
+        """Effective density of states of the valence band [m^-3]: Nv(300 K) (T/300 K)^1.5.
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            Nv(T) [m^-3].
+        """
         t = check_temperature(temperature)
         return _scalar_or_array(self.nv_300 * (np.asarray(t) / _T_REF) ** 1.5)
 
     def intrinsic_density(self, temperature=_T_REF):
         """Intrinsic carrier density ni [m^-3] at ``temperature`` [K].
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            ni(T) [m^-3].
 
         Notes
         -----
@@ -296,6 +352,18 @@ class Material:
     def mobility(self, carrier, temperature=_T_REF):
         """Low-field (lattice) mobility of ``carrier`` ("n" or "p") at temperature [m^2/(V s)].
 
+        Parameters
+        ----------
+        carrier : {"n", "p"}
+            Electrons ("n") or holes ("p"); anything else is a DesignError.
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            Mobility mu(T) [m^2/(V s)].
+
         Notes
         -----
         mu(T) = mu(300 K) (T / 300 K)^-gamma, the lattice-scattering law of lightly doped
@@ -316,6 +384,18 @@ class Material:
 
     def saturation_velocity(self, carrier, temperature=_T_REF):
         """Saturation velocity of ``carrier`` ("n" or "p") at temperature [m/s].
+
+        Parameters
+        ----------
+        carrier : {"n", "p"}
+            Electrons ("n") or holes ("p"); anything else is a DesignError.
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            Saturation velocity v_sat(T) [m/s].
 
         Notes
         -----
@@ -342,7 +422,18 @@ class Material:
         return _scalar_or_array(v / ((1.0 - a) + a * t))
 
     def cutoff_wavelength(self, temperature=_T_REF):
-        """Long-wavelength absorption edge lambda_c = h c / Eg(T) [m]."""
+        """Long-wavelength absorption edge lambda_c = h c / Eg(T) [m].
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Temperature [K], 50-600 K (:data:`TEMPERATURE_RANGE`); default 300 K.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            Cut-off wavelength lambda_c [m].
+        """
         return _scalar_or_array(h * c / (q * np.asarray(self.band_gap(temperature))))
 
     def critical_field(self, doping):
