@@ -53,7 +53,17 @@ def _s(f):
 
 
 def feedback_admittance(f, rf, cf):
-    """Admittance of the feedback network Rf || Cf [S]: Yf = 1/Rf + j 2 pi f Cf."""
+    """Admittance of the feedback network Rf || Cf [S]: Yf = 1/Rf + j 2 pi f Cf.
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0.
+    rf : array_like
+        Feedback resistance [ohm], > 0.
+    cf : array_like
+        Feedback capacitance [F], >= 0.
+    """
     return 1.0 / np.asarray(rf, dtype=float) + _s(f) * np.asarray(cf, dtype=float)
 
 
@@ -62,6 +72,19 @@ def input_admittance(f, cd, rsh, rs, cin):
 
     Yin = 1/(Rs + Zd) + j 2 pi f Cin with Zd = Rsh || 1/(j 2 pi f Cd).
     ``rsh`` may be ``inf`` (no shunt path).
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0.
+    cd : array_like
+        Photodiode capacitance [F], > 0.
+    rsh : array_like
+        Photodiode shunt resistance [ohm], > 0; ``inf`` for no shunt path.
+    rs : array_like
+        Photodiode series resistance [ohm], >= 0.
+    cin : array_like
+        Amplifier input capacitance (common-mode plus differential) [F], >= 0.
     """
     s = _s(f)
     # Written with the junction admittance yd so that Rsh = inf at f = 0 stays finite.
@@ -70,14 +93,50 @@ def input_admittance(f, cd, rsh, rs, cin):
 
 
 def feedback_factor(f, rf, cf, cd, rsh, rs, cin):
-    """Feedback factor beta = Yf / (Yf + Yin), complex, dimensionless."""
+    """Feedback factor beta = Yf / (Yf + Yin), complex, dimensionless.
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0.
+    rf : array_like
+        Feedback resistance [ohm], > 0.
+    cf : array_like
+        Feedback capacitance [F], >= 0.
+    cd : array_like
+        Photodiode capacitance [F], > 0.
+    rsh : array_like
+        Photodiode shunt resistance [ohm], > 0; ``inf`` for no shunt path.
+    rs : array_like
+        Photodiode series resistance [ohm], >= 0.
+    cin : array_like
+        Amplifier input capacitance (common-mode plus differential) [F], >= 0.
+    """
     yf = feedback_admittance(f, rf, cf)
     return yf / (yf + input_admittance(f, cd, rsh, rs, cin))
 
 
 def noise_gain(f, rf, cf, cd, rsh, rs, cin):
     """Noise gain 1/beta = 1 + Yin/Yf, complex: the gain from the amplifier's input voltage noise
-    to the output for an ideal amplifier (the rising "en*C" term at high frequency)."""
+    to the output for an ideal amplifier (the rising "en*C" term at high frequency).
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0.
+    rf : array_like
+        Feedback resistance [ohm], > 0.
+    cf : array_like
+        Feedback capacitance [F], >= 0.
+    cd : array_like
+        Photodiode capacitance [F], > 0.
+    rsh : array_like
+        Photodiode shunt resistance [ohm], > 0; ``inf`` for no shunt path.
+    rs : array_like
+        Photodiode series resistance [ohm], >= 0.
+    cin : array_like
+        Amplifier input capacitance (common-mode plus differential) [F], >= 0.
+    """
     return 1.0 + input_admittance(f, cd, rsh, rs, cin) / feedback_admittance(f, rf, cf)
 
 
@@ -101,7 +160,13 @@ def loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
 
 
 def closed_loop_factor(t):
-    """T / (1 + T): how far the loop falls short of ideal feedback, complex."""
+    """T / (1 + T): how far the loop falls short of ideal feedback, complex.
+
+    Parameters
+    ----------
+    t : array_like
+        Loop gain T [V/V], complex (see :func:`loop_gain`); any value except -1.
+    """
     return t / (1.0 + t)
 
 
@@ -109,6 +174,30 @@ def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     """Closed-loop transimpedance v_out / i_ph [ohm], complex; +Rf at DC for an ideal amplifier.
 
     Zt = Zf * Zd/(Zd + Rs) * T/(1 + T); see the module notes for the derivation.
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0.
+    gbw : array_like
+        Gain-bandwidth product [Hz], > 0.
+    dc_gain : array_like
+        DC open-loop gain A0 [V/V], > 0.
+    poles : sequence of array_like
+        Extra (non-dominant) pole frequencies [Hz], > 0; ``inf`` marks an absent pole.
+        See :func:`photorx.circuit.amplifier.open_loop_gain`.
+    rf : array_like
+        Feedback resistance [ohm], > 0.
+    cf : array_like
+        Feedback capacitance [F], >= 0.
+    cd : array_like
+        Photodiode capacitance [F], > 0.
+    rsh : array_like
+        Photodiode shunt resistance [ohm], > 0; ``inf`` for no shunt path.
+    rs : array_like
+        Photodiode series resistance [ohm], >= 0.
+    cin : array_like
+        Amplifier input capacitance (common-mode plus differential) [F], >= 0.
 
     References
     ----------
@@ -161,24 +250,68 @@ class Tia:
         return {k: a[k] for k in ("rf", "cf", "cd", "rsh", "rs", "cin")}
 
     def transimpedance(self, f, net):
-        """Closed-loop transimpedance [ohm], complex; see :func:`transimpedance`."""
+        """Closed-loop transimpedance [ohm], complex; see :func:`transimpedance`.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], >= 0; give array fields of ``net`` a trailing axis to pair them
+            with a 1-D grid.
+        net : photorx.device.equivalent_circuit.EquivalentCircuit
+            The photodiode at its operating point (fields may be arrays that broadcast).
+        """
         return transimpedance(f, **self._args(net))
 
     def loop_gain(self, f, net):
-        """Loop gain A*beta, complex; see :func:`loop_gain`."""
+        """Loop gain A*beta, complex; see :func:`loop_gain`.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], >= 0; give array fields of ``net`` a trailing axis to pair them
+            with a 1-D grid.
+        net : photorx.device.equivalent_circuit.EquivalentCircuit
+            The photodiode at its operating point (fields may be arrays that broadcast).
+        """
         return loop_gain(f, **self._args(net))
 
     def noise_gain(self, f, net):
-        """Noise gain 1/beta, complex; see :func:`noise_gain`."""
+        """Noise gain 1/beta, complex; see :func:`noise_gain`.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], >= 0; give array fields of ``net`` a trailing axis to pair them
+            with a 1-D grid.
+        net : photorx.device.equivalent_circuit.EquivalentCircuit
+            The photodiode at its operating point (fields may be arrays that broadcast).
+        """
         return noise_gain(f, **self._passive(net))
 
     def feedback_factor(self, f, net):
-        """Feedback factor beta, complex; see :func:`feedback_factor`."""
+        """Feedback factor beta, complex; see :func:`feedback_factor`.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], >= 0; give array fields of ``net`` a trailing axis to pair them
+            with a 1-D grid.
+        net : photorx.device.equivalent_circuit.EquivalentCircuit
+            The photodiode at its operating point (fields may be arrays that broadcast).
+        """
         return feedback_factor(f, **self._passive(net))
 
     # -- analyses owned by other modules (imported lazily to keep the core light) --------
     def analyze(self, net, **options):
-        """Bandwidth, margins, peaking and step-response figures; see :mod:`photorx.circuit.metrics`."""
+        """Bandwidth, margins, peaking and step-response figures; see :mod:`photorx.circuit.metrics`.
+
+        Parameters
+        ----------
+        net : photorx.device.equivalent_circuit.EquivalentCircuit
+            The photodiode at its operating point (fields may be arrays that broadcast).
+        **options
+            Passed to :func:`photorx.circuit.metrics.analyze_tia` (``settling_tolerance``).
+        """
         from .metrics import analyze_tia
 
         return analyze_tia(self, net, **options)
@@ -209,7 +342,18 @@ class Tia:
         return t, step_response(t, **self._args(net))
 
     def noise(self, net, temperature=300.0, **options):
-        """Noise spectrum of every source at the output; see :mod:`photorx.analysis.noise`."""
+        """Noise spectrum of every source at the output; see :mod:`photorx.analysis.noise`.
+
+        Parameters
+        ----------
+        net : photorx.device.equivalent_circuit.EquivalentCircuit
+            The photodiode at its operating point.
+        temperature : float
+            Temperature of the resistors [K], > 0; default 300 K.
+        **options
+            Passed to :func:`photorx.analysis.noise_spectrum.tia_noise` (post filter, current
+            split, second-stage noise, integration band).
+        """
         from ..analysis.noise_spectrum import tia_noise
 
         return tia_noise(self, net, temperature=temperature, **options)
