@@ -32,41 +32,43 @@ OMIT = "<constructor default>"
 class Key:
     """One row of the design-file schema.
 
-    Attributes
+    Parameters
     ----------
     section : str
-        Dotted section path, e.g. ``"photodiode.junction"``.
+        Dotted section path, e.g. ``"photodiode.junction"``; one of :data:`SECTIONS`.
     name : str
         Key as written in the file.
     unit : str or None
         SI unit of the value (pint syntax): a quantity string is converted to it and a
-        quantity of another dimension is an error. ``""`` for a plain number.
+        quantity of another dimension is an error. ``""`` (default) for a plain number,
+        ``None`` for text.
     default : object
-        Value used when the key is absent; :data:`REQUIRED` makes it mandatory; ``None``
-        makes it optional with no value; :data:`OMIT` leaves the constructor's default.
-    argument : str
-        Constructor argument (defaults to ``name``).
+        Value used when the key is absent; :data:`REQUIRED` (default) makes it mandatory;
+        ``None`` makes it optional with no value; :data:`OMIT` leaves the constructor's default.
+    argument : str or None
+        Constructor argument; default ``None`` means ``name``.
     write : str or None
         Unit the value is written in (``"nm"``, ``"cm^-3"``, ``"area"`` for um^2 or mm^2);
-        None picks an engineering prefix of ``unit``.
+        None (default) picks an engineering prefix of ``unit``.
     check : str
         Valid range of the SI value: an interval ``"[1e-12..1e-2]"`` (brackets inclusive,
         parentheses exclusive; ``"[1..inf]"`` also admits infinity, any other bound
-        refuses it), a named check (``">0"``, ``">=0"``, ``"0..1"``, ``"(0..1]"``,
-        ``"(0..0.5)"``, ``"optical"``) or ``""``. Errors and the template show it.
+        refuses it), a named check (``">0"``, ``">=0"``, ``">1"``, ``"0..1"``, ``"(0..1]"``,
+        ``"(0..1)"``, ``"(0..0.5)"``, ``"optical"`` = 10 nm to 100 um) or ``""`` (default,
+        no check). Errors and the template show it.
     kind : str
-        ``"quantity"``, ``"text"``, ``"integer"``, ``"list"`` (of quantities), ``"ratio"``
-        (a plain number or decibels, ``"10 dB"``) or ``"table"`` (a quantity, or a list of
-        ``[wavelength, value]`` pairs).
+        ``"quantity"`` (default), ``"text"``, ``"integer"``, ``"list"`` (of quantities),
+        ``"ratio"`` (a plain number or decibels, ``"10 dB"``) or ``"table"`` (a quantity, or
+        a list of ``[wavelength, value]`` pairs).
     when : tuple of str
         The key applies only when the section's selector (``model`` or ``kind``) takes one
-        of these values; empty = always.
+        of these values; empty (default) = always.
     choices : tuple of str
-        Allowed values of a text key.
+        Allowed values of a text key; empty (default) = any text.
     doc : str
-        Help text for the template and for error messages.
+        Help text for the template and for error messages; default ``""``.
     example : str
-        Example value shown in messages and commented template lines.
+        Example value shown in messages and commented template lines; default ``""``.
     """
 
     section: str
@@ -282,7 +284,14 @@ SECTIONS = {
 _SELECTOR = {"photodiode.junction": "model", "photodiode": "model"}
 
 def section_keys(section: str) -> list[Key]:
-    """The schema rows of one section, in order."""
+    """The schema rows of one section, in order.
+
+    Parameters
+    ----------
+    section : str
+        Dotted section path, e.g. ``"amplifier"`` or ``"photodiode.junction"``; a name
+        outside :data:`SECTIONS` gives an empty list.
+    """
     return [k for k in SCHEMA if k.section == section]
 
 
