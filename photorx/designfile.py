@@ -192,7 +192,15 @@ def _check_nesting(text: str, where: str) -> None:
 
 
 def loads_design(text: str, name: str = ""):
-    """Build a :class:`~photorx.analysis.receiver.Receiver` from design-file text."""
+    """Build a :class:`~photorx.analysis.receiver.Receiver` from design-file text.
+
+    Parameters
+    ----------
+    text : str
+        The TOML text of a design file.
+    name : str
+        Source name (usually the file name) put in front of error messages; default ``""``.
+    """
     where = f"{name}: " if name else ""
     _check_nesting(text, where)
     try:
@@ -240,7 +248,14 @@ def load_design(path=None):
 
 
 def demo_design_path(name: str = DEFAULT_DESIGN) -> Path:
-    """Path of a shipped demo design (package data in ``photorx/designs``)."""
+    """Path of a shipped demo design (package data in ``photorx/designs``).
+
+    Parameters
+    ----------
+    name : str
+        One of :data:`DEMO_DESIGNS`; default :data:`DEFAULT_DESIGN`. Any other name is a
+        :class:`~photorx.errors.DesignError`.
+    """
     if name not in DEMO_DESIGNS:
         raise DesignError(f"no demo design named {name!r}; known: {', '.join(DEMO_DESIGNS)}",
                           parameter="design")
@@ -248,7 +263,13 @@ def demo_design_path(name: str = DEFAULT_DESIGN) -> Path:
 
 
 def design_name(path=None) -> str:
-    """The ``[design] name`` of a design file or demo ("" when absent or unreadable)."""
+    """The ``[design] name`` of a design file or demo ("" when absent or unreadable).
+
+    Parameters
+    ----------
+    path : str or path-like, optional
+        The TOML file or a name from :data:`DEMO_DESIGNS`; None means the default demo.
+    """
     try:
         p = demo_design_path(path or DEFAULT_DESIGN) if path is None or str(path) in DEMO_DESIGNS \
             else Path(path)
@@ -261,7 +282,13 @@ def design_name(path=None) -> str:
 
 
 def demo_receiver(name: str = DEFAULT_DESIGN):
-    """The receiver of a shipped demo design (default: the 1310 nm InGaAs PIN link receiver)."""
+    """The receiver of a shipped demo design (default: the 1310 nm InGaAs PIN link receiver).
+
+    Parameters
+    ----------
+    name : str
+        One of :data:`DEMO_DESIGNS`; default :data:`DEFAULT_DESIGN`.
+    """
     return load_design(name)
 
 
@@ -289,6 +316,18 @@ def format_quantity(value: float, unit: str, write: str | None = None) -> str:
 
     The decimal digits are those of ``repr(value)`` shifted by a power of ten, so the text
     reads back (with :func:`~photorx.units.parse_quantity`) to exactly ``value``.
+
+    Parameters
+    ----------
+    value : float
+        The value in SI units; any float (``inf`` and ``nan`` are written as such).
+    unit : str
+        SI unit symbol appended after an engineering prefix (``"F"``, ``"ohm"``; ``"bit/s"``
+        takes no prefix below one).
+    write : str or None
+        Fixed unit to write in instead of a prefix of ``unit``: ``"A/W"``, ``"um^2"``,
+        ``"mm^2"``, ``"cm^-3"``, ``"cm^-4"``, ``"nm"``, ``"um"``, ``"K"`` or ``"area"``
+        (um^2 below 1 mm^2, else mm^2); default None.
     """
     v = float(value)
     if not math.isfinite(v):
@@ -389,6 +428,13 @@ def dumps_design(rx, name: str = "", description: str = "") -> str:
 
     Sections and keys come in schema order; lists are written inline; keys whose
     constructor default is in force (and optional keys without a value) are left out.
+
+    Parameters
+    ----------
+    rx : Receiver
+        A single design (array-valued parameters are an error).
+    name, description : str
+        Optional ``[design]`` text; default ``""`` (section left out when both are empty).
     """
     values = _design_values(rx)
     if name or description:
@@ -514,7 +560,17 @@ def _example(key: Key) -> str:
 
 
 def write_template(path) -> Path:
-    """Write :func:`design_template` to ``path`` atomically."""
+    """Write :func:`design_template` to ``path`` atomically.
+
+    Parameters
+    ----------
+    path : str or path-like
+        Destination file; replaced whole or left untouched on error.
+
+    Returns
+    -------
+    pathlib.Path
+    """
     from ._files import atomic_write_text
 
     return atomic_write_text(path, design_template())
