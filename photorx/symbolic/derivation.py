@@ -48,13 +48,29 @@ _CONSTANT_INFO = {
 
 
 def eq(lhs, rhs) -> sp.Equality:
-    """An unevaluated equation ``lhs = rhs``: a result shown with its own symbol on the left."""
+    """An unevaluated equation ``lhs = rhs``: a result shown with its own symbol on the left.
+
+    Parameters
+    ----------
+    lhs : sympy expression
+        Left side, usually the result's own symbol.
+    rhs : sympy expression
+        Right side, the closed form.
+    """
     return sp.Eq(lhs, rhs, evaluate=False)
 
 
 @dataclass(frozen=True)
 class SymbolInfo:
-    """Meaning and SI unit of one symbol (unit ``"1"`` for a dimensionless quantity)."""
+    """Meaning and SI unit of one symbol (unit ``"1"`` for a dimensionless quantity).
+
+    Parameters
+    ----------
+    description : str
+        What the symbol stands for, in words.
+    unit : str
+        Its SI unit as text (``"F"``, ``"J/K"``); ``"1"`` when dimensionless.
+    """
 
     description: str
     unit: str
@@ -62,7 +78,15 @@ class SymbolInfo:
 
 @dataclass(frozen=True)
 class Step:
-    """One step of a derivation: what is done, and the expression or equation it gives."""
+    """One step of a derivation: what is done, and the expression or equation it gives.
+
+    Parameters
+    ----------
+    description : str
+        What the step does, in words; inline ``$math$`` is set as LaTeX.
+    expression : sympy.Basic
+        The expression or equation the step arrives at.
+    """
 
     description: str
     expression: sp.Basic
@@ -118,6 +142,8 @@ class Derivation:
         Approximations and validity range, in words.
     references : sequence of str
         Published sources the derivation follows or is checked against.
+    _cache : dict
+        Internal: memo of compiled :meth:`lambdify` functions; leave at its default.
     """
 
     title: str
@@ -157,7 +183,13 @@ class Derivation:
         return tuple(self.results)
 
     def expr(self, name: str | None = None) -> sp.Expr:
-        """Right-hand side of the result ``name`` (default: the main result)."""
+        """Right-hand side of the result ``name`` (default: the main result).
+
+        Parameters
+        ----------
+        name : str, optional
+            One of :attr:`names`; None (default) means the main result.
+        """
         if name is None:
             return self.result.rhs
         try:
@@ -170,7 +202,13 @@ class Derivation:
         return self.expr(name)
 
     def symbol(self, name: str) -> sp.Symbol:
-        """The symbol called ``name`` (as in :attr:`symbols`)."""
+        """The symbol called ``name`` (as in :attr:`symbols`).
+
+        Parameters
+        ----------
+        name : str
+            Name of a symbol used in the derivation (a key of :attr:`symbols`).
+        """
         for s in self.symbols:
             if s.name == name:
                 return s
@@ -178,7 +216,16 @@ class Derivation:
                           f"{', '.join(sorted(s.name for s in self.symbols))}", parameter="symbol")
 
     def arguments(self, name: str | None = None, constants: bool = True) -> tuple:
-        """Names of the free symbols of a result, in the order :meth:`lambdify` takes them."""
+        """Names of the free symbols of a result, in the order :meth:`lambdify` takes them.
+
+        Parameters
+        ----------
+        name : str, optional
+            One of :attr:`names`; None (default) means the main result.
+        constants : bool
+            Substitute the physical constants (:data:`CONSTANTS`) first, so that they are
+            not arguments (default True).
+        """
         e = self.expr(name)
         if constants:
             e = e.subs(dict(CONSTANTS))
