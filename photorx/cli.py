@@ -78,6 +78,23 @@ def parse_axis(name: str, spec: str, max_points: int = MAX_POINTS) -> np.ndarray
     logarithmically spaced; ``"1e3,5e3,10e3"`` or ``"1 pF,2 pF"`` lists the values.
     An axis of more than ``max_points`` points is a :class:`DesignError` (before any
     memory is allocated for it); so are ends that are not finite.
+
+    Parameters
+    ----------
+    name : str
+        Parameter swept (a receiver field, e.g. ``"reverse_bias"``); a value written with a
+        unit must carry that parameter's unit, and error messages name ``--<name>``.
+    spec : str
+        ``START:STOP:N`` (linear, N >= 1 points, both ends included), ``START:STOP:N:log``
+        (geometric; both ends > 0) or a comma-separated list; values as numbers in SI or
+        quantities with units. The ends must be finite.
+    max_points : int
+        Largest N allowed for ``START:STOP:N`` (default ``MAX_POINTS`` = 10**6).
+
+    Returns
+    -------
+    numpy.ndarray
+        Axis values in SI units.
     """
     text = spec.strip()
     try:
@@ -121,7 +138,14 @@ _CONSTRAINT = re.compile(r"^\s*([A-Za-z_][\w.]*)\s*(>=|<=)\s*(.+)$")
 
 
 def parse_constraint(text: str) -> tuple[str, tuple[str, float]]:
-    """``"bandwidth>=1 GHz"`` -> ``("bandwidth", (">=", 1e9))``; yes/no figures are refused."""
+    """``"bandwidth>=1 GHz"`` -> ``("bandwidth", (">=", 1e9))``; yes/no figures are refused.
+
+    Parameters
+    ----------
+    text : str
+        ``FIGURE>=VALUE`` or ``FIGURE<=VALUE``: a numeric receiver figure and a number (SI)
+        or a quantity in that figure's unit. Anything else is a :class:`DesignError`.
+    """
     m = _CONSTRAINT.match(text)
     if not m:
         raise DesignError(f"--constraint {text!r}: write FIGURE>=VALUE or FIGURE<=VALUE, "
@@ -493,7 +517,14 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv=None) -> int:
-    """Run the command line; returns the exit status (the console script exits with it)."""
+    """Run the command line; returns the exit status (the console script exits with it).
+
+    Parameters
+    ----------
+    argv : sequence of str, optional
+        Command-line arguments without the program name; default None reads
+        ``sys.argv[1:]``.
+    """
     _CURRENT["design"] = None
     try:
         parser = build_parser()

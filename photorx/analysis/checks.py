@@ -28,7 +28,7 @@ CHECK_COLUMNS = ["check", "value", "limit", "unit", "ok"]
 class Check:
     """One check: a figure compared with a limit.
 
-    Attributes
+    Parameters
     ----------
     name : str
         Short identifier (``"phase_margin"``).
@@ -36,20 +36,22 @@ class Check:
         What is checked, in words (the ``check`` column).
     figure : str
         The receiver figure compared (its unit is the row's unit).
-    relation : {">=", "<=", "<"}
-        How the figure must stand to the limit.
+    relation : {">=", "<=", "<", "=="}
+        How the figure must stand to the limit; ``"=="`` marks a flag figure that must be
+        true (no limit).
     unit : str
         SI unit of value and limit.
     limit_field : str, optional
-        Receiver field holding the limit (None there means no limit is set).
+        Receiver field holding the limit (None there means no limit is set); default None.
     limit_figure : str, optional
-        Receiver figure holding the limit (for limits that follow the design point).
+        Receiver figure holding the limit (for limits that follow the design point);
+        default None.
     factor : float
-        The limit is ``factor`` times the field (0.7 x bit rate).
+        The limit is ``factor`` times the field (0.7 x bit rate); default 1.0.
     absolute : bool
-        Compare ``|figure|`` (a dark current is negative in forward bias).
+        Compare ``|figure|`` (a dark current is negative in forward bias); default False.
     digital_only : bool
-        Only for a receiver with a bit rate.
+        Only for a receiver with a bit rate; default False.
     """
 
     name: str

@@ -85,6 +85,9 @@ def integrate_psd(
         the search for the ends of an infinite band starts.
     f_min, f_max : float
         Lowest and highest frequency [Hz] the band search may reach before giving up.
+    _return_band : bool
+        Internal: when True also return the band ``(f_lo, f_hi)`` [Hz] actually integrated,
+        after the ends were extended; default False. Not part of the interface.
 
     Returns
     -------

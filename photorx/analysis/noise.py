@@ -100,6 +100,13 @@ def johnson_voltage_density(resistance, temperature=300.0):
 def johnson_current_density(resistance, temperature=300.0):
     """Short-circuit thermal noise current density sqrt(4 k T / R) [A/rtHz]; ``inf`` ohm gives 0.
 
+    Parameters
+    ----------
+    resistance : array_like
+        Resistance [ohm], > 0 (``inf`` allowed, giving 0).
+    temperature : array_like
+        Temperature [K], > 0; default 300 K.
+
     References
     ----------
     .. [1] H. Nyquist, Phys. Rev. 32 (1928) 110-113.
@@ -115,6 +122,11 @@ def johnson_current_density(resistance, temperature=300.0):
 
 def shot_current_density(current):
     """Shot noise current density sqrt(2 q I) [A/rtHz] of a DC current ``current`` [A], >= 0.
+
+    Parameters
+    ----------
+    current : array_like
+        DC current [A], >= 0.
 
     Notes
     -----
@@ -360,6 +372,23 @@ def input_noise_psd(
     Takes the parameters of :func:`output_noise_psd`; the post filter, if given, is ignored
     because it scales signal and noise alike.
 
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+        Circuit, see :func:`noise_transfer_functions`; defaults ``poles=()``,
+        ``rsh=inf``, ``rs=0``, ``cin=0``.
+    en, en_corner, in_, in_corner, temperature, i_shot, stage2_noise, stage2_corner
+        Noise sources, as in :func:`output_noise_psd` (all default 0, temperature 300 K).
+    filter_kind, filter_order, filter_cutoff
+        Accepted for symmetry with :func:`output_noise_psd` and ignored.
+
+    Returns
+    -------
+    dict of numpy.ndarray
+        Source key (see :data:`SOURCE_LABELS`) -> input-referred PSD [A^2/Hz].
+
     Notes
     -----
     S_in,k(f) = S_out,k(f) / |Zt(f)|^2 with Zt the closed-loop transimpedance.
@@ -372,7 +401,20 @@ def input_noise_psd(
 
 
 def with_frequency_axis(params):
-    """Give every design parameter a trailing frequency axis (``p[..., None]``)."""
+    """Give every design parameter a trailing frequency axis (``p[..., None]``).
+
+    Parameters
+    ----------
+    params : dict
+        Keywords of :func:`output_noise_psd` (without ``f``), each shaped like the designs;
+        ``poles`` is a sequence of arrays, ``i_shot`` may be a dict, ``filter_kind`` and
+        ``filter_order`` are scalars and are passed through unchanged.
+
+    Returns
+    -------
+    dict
+        The same keys, array values with one trailing axis of length 1.
+    """
     out = {}
     for name, value in params.items():
         if name == "poles":
@@ -446,6 +488,24 @@ def chain_enbw(
 
     Parameters are shaped like the designs (no frequency axis), as in
     :func:`integrated_output_noise`.
+
+    Parameters
+    ----------
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+        Circuit, see :func:`noise_transfer_functions`; defaults ``poles=()``,
+        ``rsh=inf``, ``rs=0``, ``cin=0``.
+    filter_kind, filter_order, filter_cutoff
+        Optional post filter, see :func:`photorx.circuit.filters.filter_response`:
+        kind ``"butterworth"``, ``"bessel"``, ``"brickwall"`` or None (default, no filter);
+        order an integer 1 to 6 (default 4); cutoff [Hz] (default inf).
+    rtol : float
+        Relative tolerance of the integral (default 1e-4), see
+        :func:`photorx.analysis.integration.integrate_psd`.
+
+    Returns
+    -------
+    numpy.ndarray
+        Equivalent noise bandwidth [Hz], shaped like the designs.
 
     Notes
     -----

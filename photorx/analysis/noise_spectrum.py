@@ -138,7 +138,13 @@ class NoiseSpectrum:
         return tuple(output_noise_psd(1.0, **self.params))
 
     def transimpedance(self, f):
-        """Closed-loop transimpedance Zt(f) without the post filter [ohm], complex."""
+        """Closed-loop transimpedance Zt(f) without the post filter [ohm], complex.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], >= 0.
+        """
         circuit = {k: self.params[k] for k in _CIRCUIT}
         return noise_transfer_functions(f, **circuit)["junction"]
 
@@ -184,11 +190,23 @@ class NoiseSpectrum:
         return {name: np.sqrt(v) for name, v in psd.items()}
 
     def output_density(self, f):
-        """Total output noise density [V/rtHz] (root of the summed PSDs)."""
+        """Total output noise density [V/rtHz] (root of the summed PSDs).
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
+        """
         return np.sqrt(sum(v**2 for v in self.by_source(f).values()))
 
     def input_density(self, f):
-        """Total input-referred noise current density [A/rtHz]."""
+        """Total input-referred noise current density [A/rtHz].
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
+        """
         return np.sqrt(sum(v**2 for v in self.by_source(f, "input").values()))
 
     def nep(self, f, responsivity):
@@ -198,6 +216,13 @@ class NoiseSpectrum:
         photocurrent (``shot_signal``): NEP is the power giving SNR = 1 in 1 Hz, defined at
         vanishing signal (Hobbs, *Building Electro-Optical Systems*, 2nd ed., 2009, sec. 3.4),
         as :attr:`photorx.ReceiverResult.nep` is.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
+        responsivity : array_like
+            Photodiode responsivity [A/W], > 0.
         """
         from .sensitivity import noise_equivalent_power
 
@@ -207,7 +232,15 @@ class NoiseSpectrum:
 
     # -- integrals ------------------------------------------------------------------------
     def mean_square(self, f_lo=None, f_hi=None):
-        """Mean-square output noise of every source over [f_lo, f_hi] [V^2] (dict)."""
+        """Mean-square output noise of every source over [f_lo, f_hi] [V^2] (dict).
+
+        Parameters
+        ----------
+        f_lo, f_hi : float, optional
+            Band [Hz], 0 <= f_lo < f_hi, ``f_hi`` may be ``inf``; None (default) takes the
+            spectrum's own band (``self.f_lo``, ``self.f_hi``). f_lo must be > 0 when a 1/f
+            corner is set.
+        """
         f_lo, f_hi = self._band(f_lo, f_hi)
         key = ("ms", float(f_lo), float(f_hi))
         if key not in self._cache:
@@ -218,11 +251,27 @@ class NoiseSpectrum:
         return dict(self._cache[key])
 
     def output_rms(self, f_lo=None, f_hi=None):
-        """Total rms output noise over [f_lo, f_hi] [V]; defaults to the spectrum's band."""
+        """Total rms output noise over [f_lo, f_hi] [V]; defaults to the spectrum's band.
+
+        Parameters
+        ----------
+        f_lo, f_hi : float, optional
+            Band [Hz], 0 <= f_lo < f_hi, ``f_hi`` may be ``inf``; None (default) takes the
+            spectrum's own band (``self.f_lo``, ``self.f_hi``). f_lo must be > 0 when a 1/f
+            corner is set.
+        """
         return math.sqrt(sum(self.mean_square(f_lo, f_hi).values()))
 
     def input_rms(self, f_lo=None, f_hi=None):
-        """Total rms noise referred to the input through |Zt(0)| [A]."""
+        """Total rms noise referred to the input through |Zt(0)| [A].
+
+        Parameters
+        ----------
+        f_lo, f_hi : float, optional
+            Band [Hz], 0 <= f_lo < f_hi, ``f_hi`` may be ``inf``; None (default) takes the
+            spectrum's own band (``self.f_lo``, ``self.f_hi``). f_lo must be > 0 when a 1/f
+            corner is set.
+        """
         return self.output_rms(f_lo, f_hi) / self.midband_transimpedance
 
     def enbw(self):
@@ -278,6 +327,8 @@ class NoiseSpectrum:
         quantity : {"share", "output_rms", "input_rms"}
             Cell values: percent of the total noise power (cells sum to 100), rms output
             noise in that band [V], or rms noise referred to the input [A].
+        drop_zero : bool
+            Leave out sources that contribute nothing (default True).
 
         Returns
         -------
@@ -321,7 +372,16 @@ class NoiseSpectrum:
         return df
 
     def to_frame(self, f, referred="output"):
-        """Densities by source and total on the grid ``f`` (index) as a DataFrame."""
+        """Densities by source and total on the grid ``f`` (index) as a DataFrame.
+
+        Parameters
+        ----------
+        f : array_like
+            Frequency grid [Hz], > 0.
+        referred : {"output", "input", "input_midband"}
+            Where the densities are referred, as in :meth:`by_source` (default
+            ``"output"``, [V/rtHz]; the input choices give [A/rtHz]).
+        """
         import pandas as pd
 
         f = np.atleast_1d(np.asarray(f, dtype=float))

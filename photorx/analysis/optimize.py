@@ -37,7 +37,7 @@ _OPS = {">=": np.greater_equal, "<=": np.less_equal}
 class OptimizationResult:
     """Outcome of :func:`optimize`.
 
-    Attributes
+    Parameters
     ----------
     receiver : Receiver
         The best design found.
@@ -111,7 +111,14 @@ class OptimizationResult:
 
     def plot(self, ax=None):
         """The trade curve: objective and constraint figures against reverse bias, the
-        optimum marked. Returns the matplotlib figure."""
+        optimum marked. Returns the matplotlib figure.
+
+        Parameters
+        ----------
+        ax : sequence of matplotlib.axes.Axes, optional
+            One axes per plotted figure (the objective and every constraint figure except
+            ``stable``); default None makes a new figure.
+        """
         from ..views.plots import plot_bias_tradeoff
         from .receiver import FIGURES
 

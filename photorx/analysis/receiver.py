@@ -182,7 +182,13 @@ class Receiver:
             raise DesignError(text, parameter="reverse_bias") from None
 
     def budget(self, title: str | None = None):
-        """Budget tables of this (scalar) design: a :class:`~photorx.views.tables.Budget`."""
+        """Budget tables of this (scalar) design: a :class:`~photorx.views.tables.Budget`.
+
+        Parameters
+        ----------
+        title : str, optional
+            Title of the budget; default None (or empty) gives ``"Receiver budget"``.
+        """
         return receiver_budget(self, title=title)
 
     def checks(self):

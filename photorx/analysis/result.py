@@ -107,6 +107,22 @@ class ReceiverResult:
     warnings of the evaluation. ``noise_mean_square`` maps each source to its mean-square
     output noise [V^2] and ``noise_spot_density`` to its input-referred density [A/rtHz] at
     a tenth of the noise bandwidth; :meth:`noise_table` formats them.
+
+    Parameters
+    ----------
+    values : dict
+        Figure name (see :data:`FIGURES`) -> scalar or array, SI units; must hold
+        ``"bandwidth"`` (it sets the number of design points).
+    noise_by_source : dict
+        Noise source key -> input-referred rms noise current [A].
+    warnings : tuple of str
+        Model warnings of the evaluation; default none.
+    noise_mean_square : dict
+        Noise source key -> mean-square output noise [V^2]; default empty (then
+        :meth:`noise_table` is unavailable).
+    noise_spot_density : dict
+        Noise source key -> input-referred density [A/rtHz] at a tenth of the noise
+        bandwidth; default empty.
     """
 
     values: dict
@@ -147,6 +163,20 @@ class ReceiverResult:
         The same table as :meth:`photorx.analysis.noise_spectrum.NoiseSpectrum.budget`
         (spot density at ENBW/10, band ``f_lo`` to infinity), read from this result instead
         of integrating the noise again.
+
+        Parameters
+        ----------
+        f_lo : float
+            Lower edge of the band the noise was integrated over [Hz] (the receiver's
+            ``noise_band_low``); only recorded in the table's ``attrs``, nothing is
+            integrated again.
+        drop_zero : bool
+            Leave out sources that contribute nothing (default True).
+
+        Raises
+        ------
+        ValueError
+            If the result holds more than one design point or no noise breakdown.
         """
         from .noise_spectrum import source_table
 

@@ -31,6 +31,14 @@ def grid(max_points=None, **axes) -> dict[str, np.ndarray]:
     The first axis varies slowest (row-major order, as ``itertools.product``). A grid of
     more than ``max_points`` points (None: no limit) is a :class:`DesignError`, raised
     before the grid is built.
+
+    Parameters
+    ----------
+    max_points : int, optional
+        Largest number of grid points allowed; default None, no limit.
+    **axes : array_like
+        Axis name -> non-empty 1-D sequence of numbers (SI units of that parameter); at
+        least one axis.
     """
     if not axes:
         raise DesignError("a sweep needs at least one axis, e.g. reverse_bias=np.linspace(0, 20, 81)")
