@@ -193,5 +193,18 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
 
 
 def write_report(rx, path, title: str = "photorx receiver report", **options) -> Path:
-    """Write :func:`build_report` to ``path`` atomically; returns the path."""
+    """Write :func:`build_report` to ``path`` atomically; returns the path.
+
+    Parameters
+    ----------
+    rx : Receiver
+        The design.
+    path : str or os.PathLike
+        Destination HTML file; written through a temporary file, so on failure it keeps
+        its previous content (or stays absent).
+    title : str
+        Page title; default ``"photorx receiver report"``.
+    **options
+        ``bias_points`` and ``fmt``, passed on to :func:`build_report`.
+    """
     return atomic_write_text(path, build_report(rx, title=title, **options))

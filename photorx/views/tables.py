@@ -167,7 +167,13 @@ class Budget:
         return pd.concat(frames, ignore_index=True, sort=False)
 
     def display_table(self, name) -> pd.DataFrame:
-        """Table ``name`` as text for display: values with engineering prefixes, units merged."""
+        """Table ``name`` as text for display: values with engineering prefixes, units merged.
+
+        Parameters
+        ----------
+        name : str
+            Name of the table (one of :attr:`names`); KeyError if absent.
+        """
         return _display_frame(self._tables[name])
 
     # -- rendering ---------------------------------------------------------------------------
@@ -213,6 +219,11 @@ class Budget:
 
         Returns the text when ``path`` is None, otherwise writes it atomically and returns
         the path.
+
+        Parameters
+        ----------
+        path : str, os.PathLike or None
+            Destination file, written atomically; default None returns the text instead.
         """
         # figures that do not exist read "none" here too (pandas: na_values=["none"]); a
         # column that a table does not have stays empty
@@ -234,6 +245,11 @@ class Budget:
 
         NaN and infinities are written as ``null`` (strict JSON); every row also carries
         its ``display`` text, where a figure that does not exist reads ``"none"``.
+
+        Parameters
+        ----------
+        path : str, os.PathLike or None
+            Destination file, written atomically; default None returns the text instead.
         """
         tables = {}
         for name, table in self._tables.items():
@@ -254,7 +270,15 @@ class Budget:
         return _emit(text, path)
 
     def to_markdown(self, path=None, cautions: bool = True):
-        """Markdown: title, one pipe table per budget table, notes and the cautions."""
+        """Markdown: title, one pipe table per budget table, notes and the cautions.
+
+        Parameters
+        ----------
+        path : str, os.PathLike or None
+            Destination file, written atomically; default None returns the text instead.
+        cautions : bool
+            Append the safety and model cautions section; default True.
+        """
         out = [f"# {self.title}", ""]
         for name in self._tables:
             shown = self.display_table(name)
@@ -267,7 +291,15 @@ class Budget:
         return _emit("\n".join(out).rstrip() + "\n", path)
 
     def to_latex(self, path=None):
-        """LaTeX: one ``booktabs`` tabular per table (needs ``\\usepackage{booktabs}``)."""
+        """LaTeX: one ``booktabs`` tabular per table (needs ``\\usepackage{booktabs}``).
+
+        The cautions are always appended as LaTeX comments.
+
+        Parameters
+        ----------
+        path : str, os.PathLike or None
+            Destination file, written atomically; default None returns the text instead.
+        """
         out = [f"% {_latex_escape(self.title)} (written by photorx)"]
         for name in self._tables:
             shown = self.display_table(name)
@@ -283,7 +315,15 @@ class Budget:
         return _emit("\n".join(out) + "\n", path)
 
     def to_html(self, path=None, cautions: bool = True):
-        """A standalone HTML page with the tables, the notes and the cautions."""
+        """A standalone HTML page with the tables, the notes and the cautions.
+
+        Parameters
+        ----------
+        path : str, os.PathLike or None
+            Destination file, written atomically; default None returns the text instead.
+        cautions : bool
+            Include the safety and model cautions section; default True.
+        """
         body = (f"<h1>{html.escape(self.title)}</h1>\n" + self._html_tables(2)
                 + (cautions_html(2) if cautions else ""))
         return _emit(html_page(self.title, body), path)

@@ -57,6 +57,20 @@ def log_slider(description, value, low, high, step=0.02, readout=None):
 
     The readout shows an SI prefix when the unit in the description takes one
     (``"Cf [F]"`` reads ``60.0f``), otherwise three significant digits.
+
+    Parameters
+    ----------
+    description : str
+        Label beside the slider, with its display unit in brackets (``"Cf [F]"``).
+    value : float
+        Start value in display units; clipped into ``[low, high]``.
+    low, high : float
+        Ends of the slider in display units; both > 0, ``low < high``.
+    step : float
+        Step in decades (log10 units); default 0.02.
+    readout : str or None
+        d3 format of the readout; default None picks ``".3s"`` (SI prefix) or ``".3g"``
+        from the unit in ``description``.
     """
     w = _widgets()
     readout = readout or _readout(description)
@@ -69,7 +83,21 @@ def log_slider(description, value, low, high, step=0.02, readout=None):
 
 def lin_slider(description, value, low, high, step, readout=".4"):
     """A linear slider in display units (readout: 4 significant digits, zeros trimmed, so
-    a wavelength reads 1310 rather than 1.31e+3)."""
+    a wavelength reads 1310 rather than 1.31e+3).
+
+    Parameters
+    ----------
+    description : str
+        Label beside the slider, with its display unit in brackets (``"wavelength [nm]"``).
+    value : float
+        Start value in display units; clipped into ``[low, high]``.
+    low, high : float
+        Ends of the slider in display units, ``low < high``.
+    step : float
+        Step in display units, > 0.
+    readout : str
+        d3 format of the readout; default ``".4"``.
+    """
     w = _widgets()
     value = float(np.clip(value, low, high))
     return w.FloatSlider(value=value, min=low, max=high, step=step, description=description,
@@ -78,7 +106,15 @@ def lin_slider(description, value, low, high, step, readout=".4"):
 
 
 def rows_html(rows, header=("quantity", "value")) -> str:
-    """A small HTML table from ``(name, text)`` rows (texts already formatted)."""
+    """A small HTML table from ``(name, text)`` rows (texts already formatted).
+
+    Parameters
+    ----------
+    rows : iterable of sequence
+        Table rows, one cell per header column; cells are shown with ``str`` and escaped.
+    header : sequence of str
+        Column headings; default ``("quantity", "value")``.
+    """
     head = "".join(f"<th style='text-align:left;padding:0 8px'>{html.escape(h)}</th>"
                    for h in header)
     body = "".join("<tr>" + "".join(f"<td style='padding:0 8px'>{html.escape(str(c))}</td>"
@@ -91,6 +127,16 @@ def frame_html(frame, units=None, digits=4) -> str:
 
     ``units`` maps a column to its SI unit; a column header ending in ``[unit]`` is read
     the same way.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The table; its float and integer columns are formatted, other columns shown as
+        they are.
+    units : dict of str to str or None
+        SI unit symbol by column name; default None (units from ``[unit]`` headers only).
+    digits : int
+        Significant digits of the formatted numbers; default 4.
     """
     units = dict(units or {})
     shown = frame.copy()
@@ -193,6 +239,13 @@ def _MinorEng(unit):
 class Panel:
     """Base of every panel: controls, a headless figure, an output area and a message area.
 
+    Parameters
+    ----------
+    render : bool
+        Render the figure to PNG after every update; default True. False skips the
+        rendering (scripts and tests that read only the numbers); :meth:`render` can still
+        be called.
+
     Attributes
     ----------
     controls : dict of str to ipywidgets.Widget
@@ -276,7 +329,14 @@ class Panel:
 
     # -- behaviour ---------------------------------------------------------------------------
     def value(self, name):
-        """Current value of control ``name``."""
+        """Current value of control ``name``.
+
+        Parameters
+        ----------
+        name : str
+            Key in :attr:`controls`; KeyError if absent. The value is in that control's
+            display unit.
+        """
         return self.controls[name].value
 
     def set(self, **values):
@@ -357,15 +417,37 @@ class Panel:
         self.message.value = "".join(parts)
 
     def note(self, text):
-        """Add a line to the message area for this update."""
+        """Add a line to the message area for this update.
+
+        Parameters
+        ----------
+        text : str
+            The note (converted with ``str``); shown amber when it starts with "warning" or
+            "model warning", else green. Cleared by the next :meth:`update`.
+        """
         self.notes.append(str(text))
 
     def alarm(self, text):
-        """Show ``text`` as an error in the message area while the panel still draws."""
+        """Show ``text`` as an error in the message area while the panel still draws.
+
+        Parameters
+        ----------
+        text : str
+            The message (converted with ``str``); cleared by the next :meth:`update`.
+        """
         self.alarms.append(str(text))
 
     def fail(self, text, parameter=None):
-        """Stop this update with a message (raises DesignError, caught by :meth:`update`)."""
+        """Stop this update with a message (raises DesignError, caught by :meth:`update`).
+
+        Parameters
+        ----------
+        text : str
+            The error message shown in the message area.
+        parameter : str or None
+            Name of the offending parameter, passed to :class:`~photorx.errors.DesignError`;
+            default None.
+        """
         raise DesignError(str(text), parameter=parameter)
 
     def render(self):
@@ -394,7 +476,15 @@ class Panel:
     # -- helpers for subclasses -------------------------------------------------------------
     @staticmethod
     def rescale(ax, x_tight=True):
-        """Autoscale an axes to its (moved) artists."""
+        """Autoscale an axes to its (moved) artists.
+
+        Parameters
+        ----------
+        ax : matplotlib.axes.Axes
+            The axes to rescale (visible artists only).
+        x_tight : bool
+            Fit the x axis tightly to the data, without margins; default True.
+        """
         ax.relim(visible_only=True)
         ax.autoscale_view(tight=None)
         if x_tight:
@@ -402,7 +492,15 @@ class Panel:
 
     @staticmethod
     def set_line(line, x, y):
-        """Move a line; NaN/inf values are hidden (matplotlib skips non-finite points)."""
+        """Move a line; NaN/inf values are hidden (matplotlib skips non-finite points).
+
+        Parameters
+        ----------
+        line : matplotlib.lines.Line2D
+            The line to move.
+        x, y : array_like of float
+            New data, same length, in the axes' units; non-finite ``y`` become NaN gaps.
+        """
         y = np.asarray(y, dtype=float)
         line.set_data(np.asarray(x, dtype=float), np.where(np.isfinite(y), y, np.nan))
 

@@ -66,7 +66,17 @@ def _metrics_rows(m):
 class LoopPanel(Panel):
     """Bode plot of the loop gain against the open-loop gain and the noise gain, closed-loop
     response, step response and margins; controls for Rf, Cf, GBW and bias, and a button that
-    designs Cf for a chosen target with :func:`~photorx.design_feedback_capacitor`."""
+    designs Cf for a chosen target with :func:`~photorx.design_feedback_capacitor`.
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    """
 
     title = "Amplifier loop: loop gain, noise gain, closed loop, step response"
     figsize = (10.0, 6.0)
@@ -217,7 +227,17 @@ _FILTERS = ("none", "bessel", "butterworth", "brickwall")
 
 
 class NoisePanel(Panel):
-    """Stacked noise density by source, the noise budget table, NEP and SNR, post filter."""
+    """Stacked noise density by source, the noise budget table, NEP and SNR, post filter.
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    """
 
     title = "Noise: density by source, budget, NEP and SNR"
     figsize = (9.0, 4.2)
@@ -340,10 +360,30 @@ class NoisePanel(Panel):
 
 
 def loop_panel(receiver=None, render=True) -> LoopPanel:
-    """Build the amplifier-loop panel for ``receiver`` (default: the demo design)."""
+    """Build the amplifier-loop panel for ``receiver`` (default: the demo design).
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    """
     return LoopPanel(receiver, render=render)
 
 
 def noise_panel(receiver=None, render=True) -> NoisePanel:
-    """Build the noise panel for ``receiver`` (default: the demo design)."""
+    """Build the noise panel for ``receiver`` (default: the demo design).
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    """
     return NoisePanel(receiver, render=render)

@@ -60,6 +60,15 @@ class JunctionPanel(Panel):
     Controls: junction type, material, dopings, gradient, i-layer thickness and doping,
     area, temperature, bias span, minority-carrier lifetime (diffusion capacitance in
     forward bias) and the parametric fit Cj0/(1 + V_R/Vj)^m.
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
     """
 
     title = "Junction: depletion width, charge and capacitance against bias"
@@ -193,6 +202,15 @@ class PhotodiodePanel(Panel):
 
     Controls: operating reverse bias, wavelength, temperature, load resistance of the RC
     limit and the bias span.
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
     """
 
     title = "Photodiode: quantum efficiency, speed and dark current"
@@ -371,5 +389,15 @@ def junction_panel(receiver=None, render=True) -> JunctionPanel:
 
 
 def photodiode_panel(receiver=None, render=True) -> PhotodiodePanel:
-    """Build the photodiode panel for ``receiver``'s photodiode (default: the demo design)."""
+    """Build the photodiode panel for ``receiver``'s photodiode (default: the demo design).
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    """
     return PhotodiodePanel(receiver, render=render)

@@ -39,7 +39,20 @@ _FORMATS = ("csv", "md", "latex", "html", "json")
 
 class TradeoffPanel(Panel):
     """Every figure of the whole receiver against reverse bias; the constrained optimiser;
-    buttons that export the budget tables and the report into a chosen folder."""
+    buttons that export the budget tables and the report into a chosen folder.
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values start the controls, or the name of a shipped demo design or
+        the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    export_folder : str or os.PathLike
+        Start value of the export-folder control; default ``"photorx-export"``. The folder
+        is created only when a file is written.
+    """
 
     title = "Bias trade-off: the whole receiver against reverse bias"
     figsize = (10.0, 5.6)
@@ -134,7 +147,14 @@ class TradeoffPanel(Panel):
 
     # -- the design ------------------------------------------------------------------------
     def design(self, bias=None):
-        """The receiver described by the controls (operating bias unless ``bias`` is given)."""
+        """The receiver described by the controls (operating bias unless ``bias`` is given).
+
+        Parameters
+        ----------
+        bias : float, array_like or None
+            Reverse bias [V] of the returned design, >= 0; default None uses the
+            operating-bias control.
+        """
         rx = self.receiver
         tia = dataclasses.replace(rx.tia, rf=self.value("rf"), cf=self.value("cf"))
         return dataclasses.replace(rx, tia=tia, reverse_bias=self.value("bias")
@@ -239,7 +259,17 @@ class TradeoffPanel(Panel):
             return None
 
     def run_optimizer(self, grid_points=120):
-        """Run :func:`photorx.optimize` over the bias span (and Rf, Cf when ticked)."""
+        """Run :func:`photorx.optimize` over the bias span (and Rf, Cf when ticked).
+
+        Returns the :class:`~photorx.analysis.optimize.OptimizationResult`, or None when a
+        DesignError is shown in the message area.
+
+        Parameters
+        ----------
+        grid_points : int
+            Approximate size of the optimiser's coarse grid over the varied parameters
+            (passed on to :func:`photorx.optimize`); default 120.
+        """
         def go():
             vary = {"reverse_bias": (0.0, 0.999 * self.value("span"))}
             junction = self.receiver.photodiode.junction

@@ -47,7 +47,14 @@ def _derivation(name):
 
 
 def derivation_html(d) -> str:
-    """HTML (with ``$$...$$`` LaTeX for MathJax) of a :class:`~photorx.symbolic.Derivation`."""
+    """HTML (with ``$$...$$`` LaTeX for MathJax) of a :class:`~photorx.symbolic.Derivation`.
+
+    Parameters
+    ----------
+    d : photorx.symbolic.Derivation
+        The derivation; its title, steps, results, assumptions and references are shown
+        (text escaped).
+    """
     import sympy as sp
 
     def text(t):
@@ -288,6 +295,18 @@ _CHECKS = {
 def numeric_checks(name, receiver, bias):
     """Closed form against the numeric engine for derivation ``name`` at the design's values.
 
+    Parameters
+    ----------
+    name : str
+        Function name of the derivation in :mod:`photorx.symbolic` (a value of
+        :data:`DERIVATIONS`, e.g. ``"abrupt_junction"``).
+    receiver : Receiver
+        The design whose values are put into the closed forms and the engine (a junction
+        type the design does not have is stood in for by a typical silicon junction).
+    bias : float
+        Reverse bias [V], >= 0, of the abrupt, graded and p-i-n checks; capped at 90 % of
+        the junction's breakdown estimate. The other checks use ``receiver``'s own bias.
+
     Returns
     -------
     pandas.DataFrame
@@ -308,7 +327,20 @@ def numeric_checks(name, receiver, bias):
 
 
 class ClosedFormsPanel(Panel):
-    """A derivation of :mod:`photorx.symbolic` rendered, with its numeric checks."""
+    """A derivation of :mod:`photorx.symbolic` rendered, with its numeric checks.
+
+    Parameters
+    ----------
+    receiver : Receiver, str or None
+        The design whose values the numeric checks use, or the name of a shipped demo design
+        or the path (str) of a design file; default None, the embedded demo design.
+    render : bool
+        Render the figure to PNG after every update; default True (False for scripts and
+        timing the computation).
+    derivation : str
+        Label of the first derivation shown, a key of :data:`DERIVATIONS`; default
+        ``"abrupt junction"``.
+    """
 
     title = "Closed forms: derivations and numeric checks"
     figsize = (5.0, 2.6)
@@ -376,6 +408,8 @@ def closed_forms_panel(receiver=None, render=True, derivation="abrupt junction")
     ----------
     receiver : Receiver or str, optional
         The design whose values the numeric checks use.
+    render : bool
+        Render the figure to PNG after every update; default True.
     derivation : str
         Label of the first derivation shown (a key of :data:`DERIVATIONS`).
     """
