@@ -143,8 +143,8 @@ class SpeedRoutes:
         wavelength : float or array_like, optional
             Vacuum wavelength [m], > 0, not shorter than the short end of the material's
             absorption table (DesignError names the range); default None: uniform
-            generation across the depletion layer. Used by the transit part only with a physical junction and no
-            ``intrinsic_bandwidth``.
+            generation across the depletion layer. Used by the transit part only, with a
+            physical junction and no ``intrinsic_bandwidth``.
         """
         return speed.combined_bandwidth(self.transit_bandwidth(v_r, wavelength),
                                         self.rc_bandwidth(v_r, load_resistance))
