@@ -59,7 +59,14 @@ def _out(x):
 
 
 def default_lifetimes(name: str):
-    """(lifetime, generation_lifetime) [s] for a material name; (1 us, 1 us) if unknown."""
+    """(lifetime, generation_lifetime) [s] for a material name; (1 us, 1 us) if unknown.
+
+    Parameters
+    ----------
+    name : str
+        Material name, a key of :data:`DEFAULT_LIFETIMES` (case-sensitive); any other
+        name gives the fallback (1 us, 1 us).
+    """
     return DEFAULT_LIFETIMES.get(name, _FALLBACK_LIFETIMES)
 
 
@@ -261,10 +268,22 @@ def generation_conductance(v_r, area, ni, width, width_slope, generation_lifetim
 
     Parameters
     ----------
+    v_r : float or array_like
+        Reverse bias [V], finite (negative = forward).
+    area : float or array_like
+        Junction area [m^2], > 0.
+    ni : float or array_like
+        Intrinsic carrier density [m^-3], > 0.
+    width : float or array_like
+        Depletion width at ``v_r`` [m], >= 0.
     width_slope : float or array_like
         dW/dv_r at ``v_r`` [m/V], >= 0 (0 above punch-through of a p-i-n diode).
-    (others)
-        As :func:`generation_current`.
+    generation_lifetime : float or array_like
+        Generation lifetime tau_g [s], > 0.
+    temperature : float or array_like, optional
+        Temperature [K], > 0 (default 300).
+    ideality : float or array_like, optional
+        Ideality n of the bias dependence near zero bias [-], 1 to 10 (default 2).
 
     Notes
     -----

@@ -52,7 +52,14 @@ def _out(x):
 
 
 def table_key(name) -> str:
-    """Canonical material name of a table (case-insensitive); DesignError if none."""
+    """Canonical material name of a table (case-insensitive); DesignError if none.
+
+    Parameters
+    ----------
+    name : str or Material
+        Material name, case-insensitive, one of :data:`OPTICAL_MATERIALS` (also
+        "In0.53Ga0.47As"), or an object with such a ``name``; DesignError otherwise.
+    """
     key = str(getattr(name, "name", name)).strip().lower()
     if key in _ALIASES:
         return _ALIASES[key]
@@ -95,13 +102,27 @@ def _load(key: str) -> _Table:
 
 
 def optical_table(name):
-    """Shipped 300 K table of a material: (wavelength [m], n [-], k [-]), read-only arrays."""
+    """Shipped 300 K table of a material: (wavelength [m], n [-], k [-]), read-only arrays.
+
+    Parameters
+    ----------
+    name : str or Material
+        Material name, case-insensitive, one of :data:`OPTICAL_MATERIALS` (also
+        "In0.53Ga0.47As"), or an object with such a ``name``; DesignError otherwise.
+    """
     t = _load(table_key(name))
     return t.wavelength, t.n, t.k
 
 
 def optical_source(name) -> str:
-    """The data sets behind a material's n, k table (the file header), as text."""
+    """The data sets behind a material's n, k table (the file header), as text.
+
+    Parameters
+    ----------
+    name : str or Material
+        Material name, case-insensitive, one of :data:`OPTICAL_MATERIALS` (also
+        "In0.53Ga0.47As"), or an object with such a ``name``; DesignError otherwise.
+    """
     return _load(table_key(name)).header
 
 
@@ -171,13 +192,34 @@ def refractive_index(wavelength, material):
 
     Interpolated linearly in photon energy; held at the end values outside the table
     (n varies slowly there).
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0 (any value outside the table gets the end value).
+    material : str or Material
+        Material name, case-insensitive, one of :data:`OPTICAL_MATERIALS` (also
+        "In0.53Ga0.47As"), or an object with such a ``name``; DesignError otherwise.
     """
     t = _load(table_key(material))
     return _out(np.interp(_energy_ref(wavelength), t.energy, t.n_by_energy))
 
 
 def extinction_coefficient(wavelength, material, shift=0.0):
-    """Extinction coefficient k = alpha lambda / (4 pi) [-] at 300 K (``shift`` as alpha)."""
+    """Extinction coefficient k = alpha lambda / (4 pi) [-] at 300 K (``shift`` as alpha).
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0 and not shorter than the table's short end (shifted
+        with the band gap; DesignError names the range); 0 beyond the long end.
+    material : str or Material
+        Material name, case-insensitive, one of :data:`OPTICAL_MATERIALS` (also
+        "In0.53Ga0.47As"), or an object with such a ``name``; DesignError otherwise.
+    shift : float or array_like, optional
+        Band-gap change Eg(T) - Eg(300 K) [eV] that moves the absorption edge rigidly
+        (default 0, the 300 K table).
+    """
     key = table_key(material)
     t = _load(key)
     a = np.asarray(shifted_absorption(wavelength, t.energy, t.log_alpha, shift,
@@ -186,6 +228,19 @@ def extinction_coefficient(wavelength, material, shift=0.0):
 
 
 def complex_index(wavelength, material, shift=0.0):
-    """Complex refractive index N = n - i k [-] (engineering sign, loss for Im N < 0)."""
+    """Complex refractive index N = n - i k [-] (engineering sign, loss for Im N < 0).
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0 and not shorter than the table's short end (shifted
+        with the band gap; DesignError names the range); k = 0 beyond the long end.
+    material : str or Material
+        Material name, case-insensitive, one of :data:`OPTICAL_MATERIALS` (also
+        "In0.53Ga0.47As"), or an object with such a ``name``; DesignError otherwise.
+    shift : float or array_like, optional
+        Band-gap change Eg(T) - Eg(300 K) [eV] that moves the absorption edge rigidly
+        (default 0, the 300 K table).
+    """
     return _out(np.asarray(refractive_index(wavelength, material))
                 - 1j * np.asarray(extinction_coefficient(wavelength, material, shift)))

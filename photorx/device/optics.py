@@ -84,12 +84,25 @@ def absorption_table(name: str):
 
 
 def absorption_source(name: str) -> str:
-    """Header of a material's n, k file: the data sets (author, year, database page)."""
+    """Header of a material's n, k file: the data sets (author, year, database page).
+
+    Parameters
+    ----------
+    name : str or Material
+        Material name, case-insensitive, one of
+        :data:`photorx.device.optical_data.OPTICAL_MATERIALS` (also "In0.53Ga0.47As"), or
+        an object with such a ``name``; DesignError otherwise.
+    """
     return _od.optical_source(name)
 
 
 def photon_energy(wavelength):
     """Photon energy h c / lambda [eV] of vacuum wavelength ``wavelength`` [m].
+
+    Parameters
+    ----------
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0.
 
     References
     ----------
@@ -298,6 +311,13 @@ def responsivity_from_qe(qe, wavelength):
 def qe_from_responsivity(responsivity, wavelength):
     """Quantum efficiency eta = R h c / (q lambda) [-] of responsivity [A/W] at wavelength [m].
 
+    Parameters
+    ----------
+    responsivity : float or array_like
+        Responsivity [A/W], >= 0 (not capped: a value above q lambda / (h c) gives eta > 1).
+    wavelength : float or array_like
+        Vacuum wavelength [m], > 0.
+
     References
     ----------
     .. [1] S. M. Sze and K. K. Ng, *Physics of Semiconductor Devices*, 3rd ed., Wiley,
@@ -312,7 +332,20 @@ def qe_from_responsivity(responsivity, wavelength):
 # carrier collection
 # ---------------------------------------------------------------------------------------
 def require_thickness_or_inf(name, value):
-    """Thickness [m] >= 0 where ``numpy.inf`` (a thick substrate) is allowed."""
+    """Thickness [m] >= 0 where ``numpy.inf`` (a thick substrate) is allowed.
+
+    Parameters
+    ----------
+    name : str
+        Parameter name used in the DesignError message.
+    value : float or array_like
+        Thickness [m], >= 0 or +inf; NaN, -inf and negatives raise DesignError.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ``value`` as float (scalar in, scalar out) or float array.
+    """
     raw = np.asarray(as_float_array(name, value, "m"), dtype=float)
     finite = np.where(np.isposinf(raw), 0.0, raw)
     require_nonnegative(name, finite, "m")  # rejects NaN, -inf and negatives
@@ -483,8 +516,23 @@ def collection_fractions(alpha, top_thickness, depletion_width, bottom_thickness
 
 def internal_quantum_efficiency(alpha, top_thickness, depletion_width, bottom_thickness,
                                 top_diffusion_length, bottom_diffusion_length):
-    """Collected carriers per photon entering the semiconductor [-] (sum of
-    :func:`collection_fractions`; same parameters)."""
+    """Collected carriers per photon entering the semiconductor [-].
+
+    The sum of the three parts of :func:`collection_fractions`, with the same parameters.
+
+    Parameters
+    ----------
+    alpha : float or array_like
+        Absorption coefficient [m^-1], >= 0.
+    top_thickness : float or array_like
+        Undepleted top layer d [m], >= 0.
+    depletion_width : float or array_like
+        Depletion width W [m], >= 0.
+    bottom_thickness : float or array_like
+        Undepleted absorbing bottom layer H [m], >= 0 or inf.
+    top_diffusion_length, bottom_diffusion_length : float or array_like
+        Minority-carrier diffusion lengths [m], > 0.
+    """
     top, drift, bottom = collection_fractions(alpha, top_thickness, depletion_width,
                                               bottom_thickness, top_diffusion_length,
                                               bottom_diffusion_length)

@@ -343,6 +343,14 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
     def capacitance(self, v_r=0.0):
         """Total diode capacitance [F]: junction + diffusion (forward bias) + package.
 
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+        Reverse bias [V], default 0; positive = reverse, negative = forward. Finite, and
+        for a physical junction -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the
+        breakdown estimate); with a fitted dark current on a parametric junction
+        v_r > -0.9 vj. DesignError otherwise.
+
         Notes
         -----
         C = C_j(v_r) + tau I_F / (2 n V_T) + C_pkg, the long-diode diffusion capacitance of
@@ -401,6 +409,12 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
         values (fitted dark current, R0, a parametric junction's capacitance) are
         rescaled from ``reference_temperature`` as documented in Notes; a given
         responsivity and intrinsic bandwidth are kept.
+
+        Parameters
+        ----------
+        temperature : float or array_like
+            New temperature [K], 50 to 600. An array only for a physical diode without a
+            fitted dark current; with datasheet values a single number.
 
         Notes
         -----

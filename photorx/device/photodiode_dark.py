@@ -91,6 +91,18 @@ def datasheet_temperature_factors(temperature, reference_temperature, band_gap):
 def junction_potential_at_temperature(vj, temperature, reference_temperature, band_gap):
     """Junction (built-in) potential Vj at T from its value at T0 [V].
 
+    Parameters
+    ----------
+    vj : float
+        Junction potential Vj0 at ``reference_temperature`` [V], > 0.
+    temperature : float
+        Temperature T [K], > 0 (not checked here; :meth:`Photodiode.at_temperature`
+        passes 50 to 600 K).
+    reference_temperature : float
+        Temperature T0 of ``vj`` [K], > 0.
+    band_gap : float
+        Band gap of the diode material [eV], its 300 K value (held fixed).
+
     Notes
     -----
     Vbi = Eg/q - (kT/q) ln(Nc Nv / (N_A N_D)) with Nc Nv ~ T^3 gives
@@ -245,6 +257,14 @@ class DarkCurrentRoutes:
 
         Positive in the reverse direction. With a fitted (datasheet) dark current the
         fitted generation-like and leakage parts are returned and "diffusion" is 0.
+
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+        Reverse bias [V], default 0; positive = reverse, negative = forward. Finite, and
+        for a physical junction -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the
+        breakdown estimate); with a fitted dark current on a parametric junction
+        v_r > -0.9 vj. DesignError otherwise.
         """
         v = self._fit_bias(v_r)
         if self._fit is not None:
@@ -263,6 +283,14 @@ class DarkCurrentRoutes:
     def dark_current(self, v_r=0.0):
         """Dark current [A] at reverse bias ``v_r`` [V]; positive in the reverse direction.
 
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+        Reverse bias [V], default 0; positive = reverse, negative = forward. Finite, and
+        for a physical junction -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the
+        breakdown estimate); with a fitted dark current on a parametric junction
+        v_r > -0.9 vj. DesignError otherwise.
+
         Notes
         -----
         Sum of :meth:`dark_current_components`: diffusion I_s (1 - e^{-v_r/V_T}) ~ ni^2,
@@ -280,6 +308,14 @@ class DarkCurrentRoutes:
 
     def shunt_resistance(self, v_r=0.0):
         """Differential (shunt) resistance (dI_dark/dv_r)^-1 [ohm] at the bias; R0 at 0 V.
+
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+        Reverse bias [V], default 0; positive = reverse, negative = forward. Finite, and
+        for a physical junction -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the
+        breakdown estimate); with a fitted dark current on a parametric junction
+        v_r > -0.9 vj. DesignError otherwise.
 
         Notes
         -----

@@ -68,6 +68,12 @@ class OpticsRoutes:
     def surface_reflectance(self, wavelength):
         """Front power reflectance [-] at vacuum wavelength [m].
 
+        Parameters
+        ----------
+        wavelength : float or array_like
+            Vacuum wavelength [m], > 0; without a given ``reflectance`` also within the
+            300 K n, k table of the material (DesignError names the range).
+
         Notes
         -----
         ``reflectance`` if given; otherwise |r|^2 of the air/coating/semiconductor stack at
@@ -95,6 +101,17 @@ class OpticsRoutes:
         Physics mode only (see :func:`~photorx.device.optics.collection_fractions`); the
         front reflectance is included, so the sum is the quantum efficiency. The drift part
         absorbs over min(W, absorber_thickness).
+
+        Parameters
+        ----------
+        wavelength : float or array_like
+            Vacuum wavelength [m], > 0, not shorter than the short end of the material's
+            absorption table (moved with the band gap; DesignError names the range); the
+            result is 0 beyond its long end.
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite; in
+            physics mode -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown
+            estimate), DesignError otherwise.
         """
         self._require_optics("collection_fractions")
         st = self._stack(v_r)
@@ -110,6 +127,18 @@ class OpticsRoutes:
 
     def responsivity(self, wavelength, v_r=0.0):
         """Responsivity [A/W] at vacuum wavelength [m] and reverse bias [V].
+
+        Parameters
+        ----------
+        wavelength : float or array_like or None
+            Vacuum wavelength [m], > 0. Physics mode: not shorter than the short end of
+            the material's absorption table (moved with the band gap; DesignError names
+            the range), 0 A/W beyond its long end. Given table: within the table. Given
+            number: ignored, may be None.
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite; in
+            physics mode -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown
+            estimate), DesignError otherwise.
 
         Notes
         -----
@@ -143,6 +172,17 @@ class OpticsRoutes:
         Physics mode: (1 - R)(C_t + e^{-alpha d}(1 - e^{-alpha W}) + e^{-alpha(d+W)} C_b),
         see :func:`~photorx.device.optics.quantum_efficiency`; grows with reverse bias at
         long wavelengths as W widens. Given responsivity: eta = R h c / (q lambda).
+
+        Parameters
+        ----------
+        wavelength : float or array_like
+            Vacuum wavelength [m], > 0. Physics mode: not shorter than the short end of
+            the material's absorption table (moved with the band gap; DesignError names
+            the range), 0 beyond its long end. Given responsivity table: within the table.
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite; in
+            physics mode -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown
+            estimate), DesignError otherwise.
         """
         if self.given_responsivity is not None:
             return optics.qe_from_responsivity(self.responsivity(wavelength, v_r), wavelength)
@@ -152,6 +192,17 @@ class OpticsRoutes:
         """Share of the DC photocurrent carried by slow diffusion from undepleted layers [-].
 
         0 when the optics is not modelled (parametric junction).
+
+        Parameters
+        ----------
+        wavelength : float or array_like
+            Vacuum wavelength [m], > 0, not shorter than the short end of the material's
+            absorption table (moved with the band gap; DesignError names the range); 0
+            beyond its long end. Not checked when the optics is not modelled.
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite; in
+            physics mode -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown
+            estimate), DesignError otherwise; not checked when the optics is not modelled.
         """
         if not self._has_optics():
             return _out(0.0 * np.asarray(wavelength, dtype=float) + 0.0 * np.asarray(v_r))

@@ -54,6 +54,19 @@ class SpeedRoutes:
         (:func:`~photorx.device.speed.drift_velocity`); so zero-bias (photovoltaic)
         operation is slow. With ``intrinsic_bandwidth`` given: the equivalent
         uniform-generation transit time 0.553 / f_3dB.
+
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite;
+            with a physical junction (and no ``intrinsic_bandwidth``)
+            -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown estimate),
+            DesignError otherwise.
+
+        Raises
+        ------
+        DesignError
+            A parametric junction without ``intrinsic_bandwidth``.
         """
         if self.intrinsic_bandwidth is not None:
             return _out(speed.UNIFORM_TRANSIT_FACTOR / self.intrinsic_bandwidth
@@ -75,6 +88,19 @@ class SpeedRoutes:
         absorption profile at that wavelength. See
         :func:`~photorx.device.speed.transit_bandwidth`. inf for a parametric junction
         without ``intrinsic_bandwidth``.
+
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite;
+            with a physical junction (and no ``intrinsic_bandwidth``)
+            -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown estimate),
+            DesignError otherwise.
+        wavelength : float or array_like, optional
+            Vacuum wavelength [m], > 0, not shorter than the short end of the material's
+            absorption table (DesignError names the range); default None: uniform
+            generation across the depletion layer. Used only with a physical junction and no
+            ``intrinsic_bandwidth``.
         """
         if self.intrinsic_bandwidth is not None:
             return _out(self.intrinsic_bandwidth + 0.0 * np.asarray(
@@ -87,12 +113,39 @@ class SpeedRoutes:
         return speed.transit_bandwidth(w, vf, vn, a)
 
     def rc_bandwidth(self, v_r=0.0, load_resistance=50.0):
-        """RC limit 1 / (2 pi (R_s + R_L) C) [Hz] with a load resistance [ohm]."""
+        """RC limit 1 / (2 pi (R_s + R_L) C) [Hz] with a load resistance [ohm].
+
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite;
+            as :meth:`capacitance`: physical junction -0.9 Vbi < v_r <=
+            ``junction.breakdown_voltage()``, fitted dark current on a parametric junction
+            v_r > -0.9 vj; DesignError otherwise.
+        load_resistance : float or array_like, optional
+            Load resistance R_L in series with R_s [ohm], >= 0 (default 50).
+        """
         rl = require_nonnegative("load_resistance", load_resistance, "ohm")
         return speed.rc_bandwidth(self.capacitance(v_r), self.series_resistance + np.asarray(rl))
 
     def bandwidth(self, v_r=0.0, load_resistance=50.0, wavelength=None):
-        """Transit and RC limits combined, (f_t^-2 + f_RC^-2)^-1/2 [Hz] (no diffusion tail)."""
+        """Transit and RC limits combined, (f_t^-2 + f_RC^-2)^-1/2 [Hz] (no diffusion tail).
+
+        Parameters
+        ----------
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite;
+            as :meth:`capacitance`: physical junction -0.9 Vbi < v_r <=
+            ``junction.breakdown_voltage()``, fitted dark current on a parametric junction
+            v_r > -0.9 vj; DesignError otherwise.
+        load_resistance : float or array_like, optional
+            Load resistance R_L in series with R_s [ohm], >= 0 (default 50).
+        wavelength : float or array_like, optional
+            Vacuum wavelength [m], > 0, not shorter than the short end of the material's
+            absorption table (DesignError names the range); default None: uniform
+            generation across the depletion layer. Used by the transit part only, with a
+            physical junction and no ``intrinsic_bandwidth``.
+        """
         return speed.combined_bandwidth(self.transit_bandwidth(v_r, wavelength),
                                         self.rc_bandwidth(v_r, load_resistance))
 
@@ -187,6 +240,21 @@ class SpeedRoutes:
         bottom parts); for carriers generated a distance d from the edge it is close to
         d^2 / (2 D) (:func:`~photorx.device.speed.diffusion_time`), and tends to the
         lifetime for weakly absorbed light in a thick layer.
+
+        Parameters
+        ----------
+        wavelength : float or array_like
+            Vacuum wavelength [m], > 0, not shorter than the short end of the material's
+            absorption table (moved with the band gap; DesignError names the range).
+        v_r : float or array_like, optional
+            Reverse bias [V], default 0; positive = reverse, negative = forward. Finite;
+            -0.9 Vbi < v_r <= ``junction.breakdown_voltage()`` (the breakdown estimate),
+            DesignError otherwise.
+
+        Raises
+        ------
+        DesignError
+            A junction without modelled optics (parametric, or no absorption table).
         """
         self._require_optics("diffusion_time_constant")
         st = self._stack(v_r)
