@@ -94,54 +94,11 @@ def test_the_walk_finds_the_interface():
         assert expected in names
 
 
-# Public names whose numpydoc Parameters sections are still incomplete: a ratchet, not an
-# exemption. Each name here must still be missing a parameter (the test fails once it is
-# documented, so the name is then removed); no name may be added.
-_PENDING_DOCUMENTATION = frozenset({
-    "photorx.device.darkcurrent.default_lifetimes",
-    "photorx.device.darkcurrent.generation_conductance",
-    "photorx.device.optical_data.complex_index",
-    "photorx.device.optical_data.extinction_coefficient",
-    "photorx.device.optical_data.optical_source",
-    "photorx.device.optical_data.optical_table",
-    "photorx.device.optical_data.refractive_index",
-    "photorx.device.optical_data.table_key",
-    "photorx.device.optics.absorption_source",
-    "photorx.device.optics.internal_quantum_efficiency",
-    "photorx.device.optics.photon_energy",
-    "photorx.device.optics.qe_from_responsivity",
-    "photorx.device.optics.require_thickness_or_inf",
-    "photorx.device.photodiode.Photodiode.at_temperature",
-    "photorx.device.photodiode.Photodiode.capacitance",
-    "photorx.device.photodiode_dark.DarkCurrentRoutes.dark_current",
-    "photorx.device.photodiode_dark.DarkCurrentRoutes.dark_current_components",
-    "photorx.device.photodiode_dark.DarkCurrentRoutes.shunt_resistance",
-    "photorx.device.photodiode_dark.junction_potential_at_temperature",
-    "photorx.device.photodiode_optics.OpticsRoutes.collection_fractions",
-    "photorx.device.photodiode_optics.OpticsRoutes.diffusion_fraction",
-    "photorx.device.photodiode_optics.OpticsRoutes.quantum_efficiency",
-    "photorx.device.photodiode_optics.OpticsRoutes.responsivity",
-    "photorx.device.photodiode_optics.OpticsRoutes.surface_reflectance",
-    "photorx.device.photodiode_speed.SpeedRoutes.bandwidth",
-    "photorx.device.photodiode_speed.SpeedRoutes.diffusion_time_constant",
-    "photorx.device.photodiode_speed.SpeedRoutes.rc_bandwidth",
-    "photorx.device.photodiode_speed.SpeedRoutes.transit_bandwidth",
-    "photorx.device.photodiode_speed.SpeedRoutes.transit_time",
-})
-
-
 @pytest.mark.parametrize("name,obj", PUBLIC, ids=[n for n, _ in PUBLIC])
 def test_every_parameter_is_documented(name, obj):
     expected = _signature_parameters(obj)
     missing = [p for p in expected if p not in _documented_parameters(obj)] if expected else []
-    if name in _PENDING_DOCUMENTATION:
-        assert missing, f"{name} is now fully documented: remove it from _PENDING_DOCUMENTATION"
-        return
     assert not missing, f"{name}: parameters not documented in its numpydoc Parameters section: {missing}"
-
-
-def test_the_pending_list_only_names_public_objects():
-    assert _PENDING_DOCUMENTATION <= {name for name, _ in PUBLIC}
 
 
 def test_the_documentation_check_can_fail():
