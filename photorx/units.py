@@ -34,6 +34,8 @@ __all__ = [
     "per_cm3", "per_cm4", "cm2", "cm2_per_Vs", "cm_per_s", "per_cm", "V_per_cm",
     # helpers
     "format_eng", "parse_quantity", "dbm_to_watt", "watt_to_dbm",
+    # display text of values in tables and results
+    "NONE", "display_value", "figure_text",
 ]
 
 # length [m]
@@ -452,3 +454,70 @@ def parse_quantity(text, unit: str | None = None) -> float:
         raise
     except Exception as exc:
         raise DesignError(f"cannot convert '{raw}' to {unit} ({exc})") from None
+
+
+# ---------------------------------------------------------------------------------------------
+# display text of values (shared by result objects, checks and every table export)
+# ---------------------------------------------------------------------------------------------
+#: Text of a figure that does not exist (NaN or infinite in SI) in every table and export.
+NONE = "none"
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(
+        value, (bool, np.bool_))
+
+
+def display_value(value, unit="", digits: int = 3) -> str:
+    """Text for one budget cell: engineering prefix for numbers, yes/no for flags.
+
+    Parameters
+    ----------
+    value : float, bool, str or None
+        Value in SI units; NaN and infinities read :data:`NONE`.
+    unit : str
+        SI unit symbol, ``""`` for none.
+    digits : int
+        Significant digits of numbers.
+    """
+    unit = "" if unit is None or (isinstance(unit, float) and math.isnan(unit)) else str(unit)
+    if value is None:
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if _is_number(value):
+        v = float(value)
+        if not math.isfinite(v):
+            # a figure that does not exist (no post filter, no phase crossover) or a
+            # bound at infinity reads "none", never "inf"/"nan"
+            return NONE
+        if unit == "%" and 0 < abs(v) < 0.01:
+            return "< 0.01 %"  # "5.51e-09 %" of a noise share reads as noise itself
+        return format_eng(v, unit, digits)
+    text = str(value)
+    return f"{text} {unit}".strip() if unit else text
+
+
+def figure_text(name: str, value, unit: str = "") -> str:
+    """Text of one named figure: :func:`display_value`, with wavelengths in nm.
+
+    Parameters
+    ----------
+    name : str
+        Figure name (``"wavelength"`` is shown in nm).
+    value : float, bool, str or None
+        Value in SI units.
+    unit : str
+        SI unit symbol.
+    """
+    if unit == "m" and "wavelength" in str(name) and _is_number(value):
+        return _wavelength_text(value)
+    return display_value(value, unit)
+
+
+def _wavelength_text(value) -> str:
+    """Optical wavelengths in nm, as the trade writes them ("1310 nm", not "1.31 um")."""
+    v = float(value)
+    if not math.isfinite(v) or not 1e-8 <= v < 1e-4:
+        return display_value(v, "m")
+    return f"{v * 1e9:.4g} nm"

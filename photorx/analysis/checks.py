@@ -194,7 +194,7 @@ def check_warning(row) -> str:
     row : pandas.Series
         A row of a :func:`receiver_checks` table.
     """
-    from ..views.tables import display_value
+    from ..units import display_value
 
     if isinstance(row["value"], (bool, np.bool_)):
         return f"{row['check']}: no"

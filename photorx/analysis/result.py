@@ -204,7 +204,7 @@ class ReceiverResult:
 
     def __repr__(self) -> str:
         # text, one figure a line: description, value with engineering prefix and unit
-        from ..views.tables import figure_text
+        from ..units import figure_text
         from .noise import SOURCE_LABELS
 
         if self.size != 1:
@@ -219,7 +219,7 @@ class ReceiverResult:
         return "ReceiverResult\n" + "\n".join(lines)
 
     def _repr_html_(self) -> str:
-        from ..views.tables import display_value
+        from ..units import display_value
 
         frame = self.to_frame()
         if len(frame) != 1:

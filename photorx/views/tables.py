@@ -37,14 +37,11 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DesignError
-from ..units import format_eng
+from ..units import NONE, _is_number, _wavelength_text, display_value, figure_text, format_eng  # noqa: F401
 from .._files import atomic_write_text
 from .cautions import CAUTIONS, cautions_html, cautions_markdown, cautions_short, cautions_text
 
 __all__ = ["Budget", "EXPORT_FORMATS", "NONE", "display_value", "figure_text"]
-
-#: Text of a figure that does not exist (NaN or infinite in SI) in every table and export.
-NONE = "none"
 
 #: export format -> file suffix
 EXPORT_FORMATS = {"csv": ".csv", "md": ".md", "latex": ".tex", "html": ".html", "json": ".json"}
@@ -58,41 +55,6 @@ table.photorx-budget th, table.photorx-budget td { border-bottom: 1px solid #ccc
 table.photorx-budget td.num { text-align: right; font-variant-numeric: tabular-nums; }
 section.cautions { border-left: 4px solid #c60; padding-left: 1em; }
 """
-
-
-def _is_number(value) -> bool:
-    return isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(
-        value, (bool, np.bool_))
-
-
-def display_value(value, unit="", digits: int = 3) -> str:
-    """Text for one budget cell: engineering prefix for numbers, yes/no for flags.
-
-    Parameters
-    ----------
-    value : float, bool, str or None
-        Value in SI units; NaN and infinities read :data:`NONE`.
-    unit : str
-        SI unit symbol, ``""`` for none.
-    digits : int
-        Significant digits of numbers.
-    """
-    unit = "" if unit is None or (isinstance(unit, float) and math.isnan(unit)) else str(unit)
-    if value is None:
-        return ""
-    if isinstance(value, (bool, np.bool_)):
-        return "yes" if value else "no"
-    if _is_number(value):
-        v = float(value)
-        if not math.isfinite(v):
-            # a figure that does not exist (no post filter, no phase crossover) or a
-            # bound at infinity reads "none", never "inf"/"nan"
-            return NONE
-        if unit == "%" and 0 < abs(v) < 0.01:
-            return "< 0.01 %"  # "5.51e-09 %" of a noise share reads as noise itself
-        return format_eng(v, unit, digits)
-    text = str(value)
-    return f"{text} {unit}".strip() if unit else text
 
 
 class Budget:
@@ -395,34 +357,9 @@ def _display_cells(table: pd.DataFrame) -> list:
     return cells
 
 
-def figure_text(name: str, value, unit: str = "") -> str:
-    """Text of one named figure: :func:`display_value`, with wavelengths in nm.
-
-    Parameters
-    ----------
-    name : str
-        Figure name (``"wavelength"`` is shown in nm).
-    value : float, bool, str or None
-        Value in SI units.
-    unit : str
-        SI unit symbol.
-    """
-    if unit == "m" and "wavelength" in str(name) and _is_number(value):
-        return _wavelength_text(value)
-    return display_value(value, unit)
-
-
 def _missing(value) -> bool:
     """True for a limit that is not set (None or NaN)."""
     return value is None or (_is_number(value) and math.isnan(float(value)))
-
-
-def _wavelength_text(value) -> str:
-    """Optical wavelengths in nm, as the trade writes them ("1310 nm", not "1.31 um")."""
-    v = float(value)
-    if not math.isfinite(v) or not 1e-8 <= v < 1e-4:
-        return display_value(v, "m")
-    return f"{v * 1e9:.4g} nm"
 
 
 def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
