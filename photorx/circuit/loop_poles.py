@@ -124,6 +124,11 @@ def _den_parts(p, pk):
     return dict(gf=gf, gsh=gsh, p0=p0, nfp=nfp, q2=q2, da=da)
 
 
+def _denominator(p, parts):
+    """Den(s) = Q2(s) D_A(s) + A0 Yf(s) P(s) from :func:`_den_parts` (ascending coefficients)."""
+    return _polyadd(_polymul(parts["q2"], parts["da"]), p["dc_gain"][:, None] * parts["nfp"])
+
+
 def closed_loop_polynomial(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     """Denominator of the closed-loop transimpedance, Zt(s) = dc_gain / Den(s).
 
@@ -164,7 +169,7 @@ def closed_loop_polynomial(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     """
     shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
     d = _den_parts(p, pk)
-    den = _polyadd(_polymul(d["q2"], d["da"]), p["dc_gain"][:, None] * d["nfp"])
+    den = _denominator(p, d)
     return den.reshape(shape + (den.shape[-1],))
 
 
@@ -238,7 +243,7 @@ def closed_loop_poles(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     """
     shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
     d = _den_parts(p, pk)
-    den = _polyadd(_polymul(d["q2"], d["da"]), p["dc_gain"][:, None] * d["nfp"])
+    den = _denominator(p, d)
     x, w0, _ = _normalised_poles(den)
     return (x * w0[:, None]).reshape(shape + (x.shape[-1],))
 

@@ -87,8 +87,9 @@ import numpy as np
 from .._validate import as_float_array
 from ..errors import DesignError
 from .loop_margins import _loop_corners, _margins, loop_margins
-from .loop_poles import (_TWO_PI, _bisect_rows, _den_parts, _deriv, _normalised_poles, _on_axis,
-                         _polyadd, _polymul, _prepare, closed_loop_poles, closed_loop_polynomial)
+from .loop_poles import (_TWO_PI, _bisect_rows, _den_parts, _denominator, _deriv,
+                         _normalised_poles, _on_axis, _prepare, closed_loop_poles,
+                         closed_loop_polynomial)
 from .step_figures import _step_figures
 
 __all__ = [
@@ -257,7 +258,7 @@ def tia_figures(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.i
     n = p["gbw"].size
     parts = _den_parts(p, pk)
     a0 = p["dc_gain"]
-    den = _polyadd(_polymul(parts["q2"], parts["da"]), a0[:, None] * parts["nfp"])
+    den = _denominator(p, parts)
     zt0 = a0 / den[:, 0]
     x, w0, d = _normalised_poles(den)
     stable = np.all(np.isnan(x) | (x.real < 0), -1)

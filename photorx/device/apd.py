@@ -27,7 +27,7 @@ from scipy.integrate import trapezoid
 from scipy.optimize import brentq
 
 from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
-from ..constants import c, eps0, h, q
+from ..constants import c, h, q
 from ..errors import DesignError
 from . import avalanche as av
 from . import optics
@@ -159,9 +159,12 @@ class SamStructure:
         v_r : float or array_like
             Reverse bias [V].
         """
+        return _out(self._depleted_thickness(v_r))
+
+    def _depleted_thickness(self, v_r):
+        """Depleted thickness [m] as an array (the edge is where the field reaches zero)."""
         x, e = self.field_profile(v_r)
-        inside = e > 0
-        return _out(np.max(np.where(inside, x, 0.0), axis=-1))
+        return np.max(np.where(e > 0, x, 0.0), axis=-1)
 
     def capacitance(self, v_r):
         """Depletion capacitance A / sum(d_i / eps_i) over the depleted layers [F].
@@ -171,9 +174,8 @@ class SamStructure:
         v_r : float or array_like
             Reverse bias [V].
         """
-        x, e = self.field_profile(v_r)
         (dm, dc, _), _, (eps_m, _, eps_a) = self._layers()
-        w = np.max(np.where(e > 0, x, 0.0), axis=-1)
+        w = self._depleted_thickness(v_r)
         d_inp = np.minimum(w, dm + dc)
         d_ga = np.maximum(w - dm - dc, 0.0)
         return _out(np.asarray(self.area) / (d_inp / eps_m + d_ga / eps_a))
