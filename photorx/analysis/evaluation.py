@@ -146,10 +146,15 @@ class _Bracket:
         self.g_lo, self.g_hi = np.take_along_axis(g, k - 1, -1), np.take_along_axis(g, k, -1)
         self.x = self.x_lo
         self.last = np.zeros(self.x.shape, dtype=np.int8)
+        self.converged = False
 
     def propose(self):
         denom = np.where(self.g_lo != self.g_hi, self.g_lo - self.g_hi, 1.0)
-        self.x = np.clip(self.x_lo + self.g_lo * (self.x_hi - self.x_lo) / denom, self.x_lo, self.x_hi)
+        x = np.clip(self.x_lo + self.g_lo * (self.x_hi - self.x_lo) / denom, self.x_lo, self.x_hi)
+        # every design's step below 1e-13 in ln f (or no crossing to refine): further steps
+        # change nothing the figures show
+        self.converged = bool(np.all((np.abs(x - self.x) <= _STEP_TOL) | ~self.found[..., None]))
+        self.x = x
         return self.x
 
     def update(self, gx):
@@ -166,6 +171,7 @@ class _Bracket:
 
 
 _REFINE_STEPS = 8
+_STEP_TOL = 1e-13
 
 
 def _log_ratio(h, log_level):
@@ -303,6 +309,8 @@ def _speed(p: _Point) -> dict:
         ch_b = _Bracket(f, _log_ratio(h_pd * h_circuit, log_ref), chain_ok)
         for _ in range(_REFINE_STEPS):  # both searches share each call of the photodiode model
             x = np.concatenate([pd_b.propose(), ch_b.propose()], axis=-1)
+            if pd_b.converged and ch_b.converged:
+                break
             hp = photodiode(np.exp(x))
             pd_b.update(_log_ratio(hp[..., :1], log_half))
             ch_b.update(_log_ratio(hp[..., 1:] * circuit(np.exp(x[..., 1:])), log_ref))
@@ -316,6 +324,8 @@ def _speed(p: _Point) -> dict:
         ch_b = _Bracket(f, _log_ratio(h_circuit, log_ref), chain_ok)
         for _ in range(_REFINE_STEPS):
             x = ch_b.propose()
+            if ch_b.converged:
+                break
             ch_b.update(_log_ratio(circuit(np.exp(x)), log_ref))
     bandwidth = ch_b.result()
     miss = chain_ok & ~ch_b.found

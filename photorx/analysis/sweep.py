@@ -105,6 +105,7 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     # per-chunk frames and no concatenation, so the peak memory is one copy of the result
     # plus one chunk's working set
     columns: dict[str, np.ndarray] = {}
+    text_labels: dict[str, dict[str, int]] = {}
     for start in range(0, total, size):
         chunk = {k: v[start:start + size] for k, v in points.items()}
         rx = with_parameters(receiver, **chunk)
@@ -123,12 +124,17 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
             figures[column] = np.asarray(values)
         for column in order[1:]:
             values = figures[column]
-            if column not in columns:  # text columns as objects: later chunks may be longer
-                kind = values.dtype if values.dtype.kind in "biufc" else object
-                columns[column] = np.empty(total, dtype=kind)
+            if values.dtype.kind not in "biufc":  # text: a few distinct labels, stored as codes
+                labels = text_labels.setdefault(column, {})
+                codes = np.array([labels.setdefault(v, len(labels)) for v in np.unique(values)], dtype=np.int32)
+                values = codes[np.searchsorted(np.unique(values), values)]
+            if column not in columns:
+                columns[column] = np.empty(total, dtype=values.dtype)
             columns[column][start:start + len(values)] = values
         if progress is not None:
             progress(min(start + size, total), total)
+    for column, labels in text_labels.items():  # categorical: one small integer per row
+        columns[column] = pd.Categorical.from_codes(columns[column], categories=list(labels))
     return pd.DataFrame(columns, copy=False)
 
 
