@@ -80,12 +80,66 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=16, top_factor=1e3
     full = {**_DEFAULTS, **params}
     filt = dict(filter_kind=filter_kind, filter_order=filter_order, filter_cutoff=filter_cutoff)
     if filter_kind != "brickwall" and np.ndim(f_lo) == 0 and float(f_lo) > 0:
-        fast = _on_grid(float(f_lo), rtol, points_per_decade, top_factor, full, filt)
+        fast = _on_grid_in_blocks(float(f_lo), rtol, points_per_decade, top_factor, full, filt)
         if fast is not None:
             return fast
     ms = integrated_output_noise(f_lo, np.inf, rtol=rtol, **full, **filt)
     enbw = chain_enbw(**{k: full[k] for k in _CIRCUIT}, **filt, rtol=rtol)
     return ms, enbw
+
+
+_BLOCK = 256  # designs per pass over the noise grid: about 11 MB of transfer functions
+
+
+def _leaves(params, filt):
+    """(key, index, value) of every array-valued input, poles and shot currents included."""
+    for k, v in {**params, "filter_cutoff": filt["filter_cutoff"]}.items():
+        if k == "poles":
+            yield from ((k, i, x) for i, x in enumerate(v))
+        elif isinstance(v, dict):
+            yield from ((k, name, x) for name, x in v.items())
+        else:
+            yield k, None, v
+
+
+def _on_grid_in_blocks(f_lo, rtol, per_decade, top_factor, params, filt):
+    """:func:`_on_grid` over at most ``_BLOCK`` designs at a time (bounded working set).
+
+    The sources' densities on the grid are (designs x grid) arrays, about a dozen of them:
+    a block of a few hundred designs keeps them within the cache-friendly megabytes, where a
+    chunk of thousands would hold tens of megabytes at once. Each block uses its own grid
+    span, so results do not depend on the blocking beyond the tolerance ``rtol``.
+    """
+    leaves = list(_leaves(params, filt))
+    shape = np.broadcast_shapes(*(np.shape(v) for _, _, v in leaves))
+    size = int(np.prod(shape))
+    if size <= _BLOCK:
+        return _on_grid(f_lo, rtol, per_decade, top_factor, params, filt)
+    flat = [(k, i, np.broadcast_to(np.asarray(v, dtype=float), shape).reshape(-1))
+            for k, i, v in leaves]
+    parts = []
+    for start in range(0, size, _BLOCK):
+        block_params = {k: (v if k not in ("poles",) and not isinstance(v, dict) else
+                            (list(v) if k == "poles" else dict(v))) for k, v in params.items()}
+        block_filt = dict(filt)
+        for k, i, v in flat:
+            piece = v[start:start + _BLOCK]
+            if k == "filter_cutoff":
+                block_filt[k] = piece
+            elif i is None:
+                block_params[k] = piece
+            else:
+                block_params[k][i] = piece
+        block_params["poles"] = tuple(block_params["poles"])
+        part = _on_grid(f_lo, rtol, per_decade, top_factor, block_params, block_filt)
+        if part is None:
+            return None
+        parts.append(part)
+    names = list(parts[0][0])
+    mean_square = {k: np.concatenate([np.broadcast_to(ms[k], (len(en),)) for ms, en in parts])
+                   .reshape(shape) for k in names}
+    enbw = np.concatenate([en for _, en in parts]).reshape(shape)
+    return mean_square, enbw
 
 
 def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
