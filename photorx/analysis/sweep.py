@@ -20,6 +20,10 @@ from .parameters import resolve_parameter, with_parameters
 __all__ = ["sweep", "grid"]
 
 #: Grids larger than this are evaluated in chunks (memory: each point carries a frequency grid).
+#: Each chunk pays the fixed cost of one evaluation (some 20 ms of Python and small-array
+#: overhead), so larger chunks are faster (2,048: about a fifth less CPU per point) but hold
+#: more at once (the noise stage works in blocks of its own, ``noise_integrals._BLOCK``; the
+#: speed stage holds about 13 kB per design): 1,024 keeps a 10^5-point sweep near 150 MB.
 CHUNK = 1024
 #: Smallest chunk when a progress callback is given.
 PROGRESS_CHUNK = 256
