@@ -608,3 +608,60 @@ class AvalanchePhotodiode:
             return dataclasses.replace(self, structure=dataclasses.replace(self.structure,
                                                                            temperature=t))
         return dataclasses.replace(self, photodiode=self.photodiode.at_temperature(t))
+
+    # ------------------------------------------------------------------ receiver routes
+    def receiver_view(self, temperature=None):
+        """The photodiode-like view the receiver stages read, at ``temperature``.
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Operating temperature(s) [K], 50 to 600 (default: the device's); an array
+            gives one per design point.
+
+        Returns
+        -------
+        ApdAtTemperature
+            See :class:`~photorx.device.apd_receiver.ApdAtTemperature`.
+        """
+        from .apd_receiver import ApdAtTemperature
+
+        return ApdAtTemperature(self, self.temperature if temperature is None else temperature)
+
+    def multiplication(self, reverse_bias):
+        """Gain, excess noise factor, k_eff and dark-current split at ``reverse_bias``.
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+
+        Returns
+        -------
+        dict of numpy.ndarray
+            See :meth:`~photorx.device.apd_receiver.ApdAtTemperature.multiplication`.
+        """
+        return self.receiver_view().multiplication(reverse_bias)
+
+    def equivalent_circuit(self, v_r=0.0, optical_power=0.0, wavelength=None,
+                           background_power=0.0):
+        """Small-signal equivalent circuit with the multiplied currents.
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        optical_power : float or array_like, optional
+            Signal optical power [W], >= 0.
+        wavelength : float or array_like, optional
+            Vacuum wavelength [m]; required when any optical power is given.
+        background_power : float or array_like, optional
+            Background optical power [W], >= 0.
+
+        Returns
+        -------
+        EquivalentCircuit
+            See :meth:`~photorx.device.apd_receiver.ApdAtTemperature.equivalent_circuit`.
+        """
+        return self.receiver_view().equivalent_circuit(v_r, optical_power, wavelength,
+                                                       background_power)
