@@ -266,7 +266,7 @@ def optimum_gain(receiver, objective="snr", gain_range=None, n_points=25):
     a, b = np.log(gains[max(best - 1, 0)]), np.log(gains[min(best + 1, n - 1)])
     sol = minimize_scalar(cost, bounds=(a, b), method="bounded", options={"xatol": 1e-3})
     m_opt, value = (float(np.exp(sol.x)), sign * float(sol.fun)) \
-        if sign * sol.fun <= sign * values[best] else (float(gains[best]), float(values[best]))
+        if sol.fun <= sign * values[best] else (float(gains[best]), float(values[best]))
     bias = float(gain_axis(receiver, m_opt))
     r = dataclasses.replace(receiver, reverse_bias=bias).evaluate()
     k = float(r.k_effective)
