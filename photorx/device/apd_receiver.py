@@ -93,6 +93,8 @@ class ApdAtTemperature:
 
     def __post_init__(self):
         object.__setattr__(self, "temperature", check_temperature(self.temperature))
+        # the stages ask for the same bias several times: one ionisation pass per bias array
+        object.__setattr__(self, "_memo", {})
 
     # ---------------------------------------------------------------- per temperature
     def _each(self, fn, v_r, n=0):
@@ -153,12 +155,19 @@ class ApdAtTemperature:
             return np.stack(np.broadcast_arrays(m, k, i_dm))
 
         v = np.asarray(v_r, dtype=float)
+        key = (v.shape, v.tobytes())
+        if key in self._memo:
+            return dict(self._memo[key])
         shape = np.broadcast_shapes(v.shape, np.shape(self.temperature))
         m, k, i_dm = self._each(one, v, n=3)
         f = np.asarray(av.excess_noise_factor(m, k))
         i_ds = np.broadcast_to(self.apd.surface_dark_current, shape).astype(float)
-        return {"gain": m, "excess_noise_factor": f, "k_effective": k,
-                "surface_dark_current": i_ds, "bulk_dark_current": i_dm}
+        out = {"gain": m, "excess_noise_factor": f, "k_effective": k,
+               "surface_dark_current": i_ds, "bulk_dark_current": i_dm}
+        if len(self._memo) > 8:
+            self._memo.clear()
+        self._memo[key] = out
+        return dict(out)
 
     # ---------------------------------------------------------------- photodiode-like
     @property
@@ -208,7 +217,8 @@ class ApdAtTemperature:
         v_r : float or array_like
             Reverse bias [V].
         """
-        return _out(self._each(lambda a, v: a.dark_current(v), v_r))
+        d = self.multiplication(v_r)
+        return _out(d["surface_dark_current"] + d["gain"] * d["bulk_dark_current"])
 
     def equivalent_circuit(self, v_r=0.0, optical_power=0.0, wavelength=None,
                            background_power=0.0):
@@ -265,14 +275,10 @@ class ApdAtTemperature:
 
     def _intrinsic_bandwidth(self, v_r):
         tau = np.asarray(self.apd.transit_time(v_r), dtype=float)
-
-        def one(a, v):
-            m = np.asarray(a.gain(v))
-            k = np.maximum(np.asarray(a.k_effective(v)), 1e-3)
-            tau_m = a._profile(v, n_points=3)[0][..., -1] / a.saturation_velocity
-            return av.gain_bandwidth_limit(m, k, tau_m)
-
-        f_av = self._each(one, v_r)
+        d = self.multiplication(v_r)
+        # multiplier transit time: the multiplying region's width at the saturated velocity
+        tau_m = self.apd._profile(v_r, n_points=3)[0][..., -1] / self.apd.saturation_velocity
+        f_av = av.gain_bandwidth_limit(d["gain"], np.maximum(d["k_effective"], 1e-3), tau_m)
         return np.asarray(av.apd_bandwidth(0.443 / tau, np.inf, f_av))
 
     def transit_bandwidth(self, v_r=0.0, wavelength=None):
