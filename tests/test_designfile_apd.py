@@ -70,3 +70,14 @@ def test_cli_budget_of_the_apd_demo(capsys):
     assert main(["budget", "si-apd-850"]) == 0
     out = capsys.readouterr().out
     assert "avalanche gain" in out and "excess noise factor" in out
+
+
+def test_cli_sweep_in_gain(tmp_path):
+    import pandas as pd
+
+    out = tmp_path / "gain.csv"
+    assert main(["sweep", "si-apd-850", "--axis", "gain=2:50:3:log", "--output", str(out)]) == 0
+    frame = pd.read_csv(out)
+    # each gain becomes the bias that gives it (McIntyre gain rises monotonically to breakdown)
+    assert list(frame["gain"].round(6)) == pytest.approx([2.0, 10.0, 50.0], rel=1e-6)
+    assert frame["reverse_bias"].is_monotonic_increasing
