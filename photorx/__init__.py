@@ -52,6 +52,12 @@ _EXPORTS = {
     "load_design": "photorx.designfile",
     "save_design": "photorx.designfile",
     "demo_receiver": "photorx.designfile",
+    "ApdAtTemperature": "photorx.device.apd_receiver",
+    "bias_for_constant_gain": "photorx.device.apd_receiver",
+    "optimum_gain": "photorx.analysis.apd_optimum",
+    "optimum_gain_closed_form": "photorx.analysis.apd_optimum",
+    "OptimumGain": "photorx.analysis.apd_optimum",
+    "gain_axis": "photorx.analysis.apd_optimum",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]

@@ -55,6 +55,7 @@ DEMO_DESIGNS = {
     "ingaas-pin-1310": "Short-reach 1310 nm InGaAs PIN link receiver",
     "si-pin-850": "Silicon PIN receiver at 850 nm",
     "si-photometer": "Low-light silicon photometry front end",
+    "si-apd-850": "Silicon avalanche photodiode receiver at 850 nm",
 }
 DEFAULT_DESIGN = "ingaas-pin-1310"
 
@@ -130,10 +131,20 @@ def _junction_factory(model, material=None, **kwargs):
     return cls(material=mat, **kwargs)
 
 
-def _photodiode_factory(junction, **kwargs):
+#: Constructor arguments of the avalanche photodiode among the [photodiode] keys.
+_APD_ARGS = ("injection", "surface_dark_current", "bulk_dark_current", "saturation_velocity")
+
+
+def _photodiode_factory(junction, kind="photodiode", **kwargs):
     from .device.photodiode import Photodiode
 
-    return Photodiode(junction=junction, **kwargs)
+    apd_args = {k: kwargs.pop(k) for k in _APD_ARGS if k in kwargs}
+    pd_ = Photodiode(junction=junction, **kwargs)
+    if kind != "avalanche":
+        return pd_
+    from .device.apd import AvalanchePhotodiode
+
+    return AvalanchePhotodiode(photodiode=pd_, **apd_args)
 
 
 #: Deepest nesting of arrays and inline tables a design file may use (a wavelength table
@@ -375,17 +386,25 @@ _JUNCTION_MODELS = {"AbruptJunction": "abrupt", "PinJunction": "pin",
 
 def _design_values(rx) -> dict[str, dict]:
     """Receiver -> {section: {key name: SI value}} by the schema's constructor arguments."""
-    junction = rx.photodiode.junction
+    photodiode, apd = rx.photodiode, None
+    if callable(getattr(photodiode, "multiplication", None)):  # an avalanche photodiode
+        apd, photodiode = photodiode, getattr(photodiode, "photodiode", None)
+        if photodiode is None:
+            raise DesignError("a separate-absorption-multiplication APD (structure) cannot be "
+                              "written to a design file; valid: an APD on a photodiode "
+                              "junction", parameter="photodiode")
+    junction = photodiode.junction
     model = _JUNCTION_MODELS.get(type(junction).__name__)
     if model is None:
         raise DesignError(f"junction of type {type(junction).__name__} cannot be written to a "
                           "design file", parameter="junction")
     objects = {
-        "photodiode.junction": junction, "photodiode": rx.photodiode, "amplifier": rx.tia.amp,
+        "photodiode.junction": junction, "photodiode": photodiode, "amplifier": rx.tia.amp,
         "feedback": rx.tia, "operating_point": rx, "signal": rx, "limits": rx, "analysis": rx,
         "post_filter": rx.post_filter,
     }
-    chosen = {"photodiode.junction": model}
+    chosen = {"photodiode.junction": model,
+              "photodiode": "photodiode" if apd is None else "avalanche"}
     out: dict[str, dict] = {}
     for section in SECTIONS:
         obj = objects.get(section)
@@ -397,6 +416,14 @@ def _design_values(rx) -> dict[str, dict]:
                 continue
             if section == "photodiode.junction" and key.name == "model":
                 values["model"] = model
+            elif section == "photodiode" and key.name == "kind":
+                if apd is not None:
+                    values["kind"] = "avalanche"
+            elif section == "photodiode" and key.arg in _APD_ARGS:
+                value = getattr(apd, key.arg)
+                if value is None or (key.default is OMIT and _is_default(apd, key.arg, value)):
+                    continue
+                values[key.name] = value
             elif section == "photodiode.junction" and key.name == "material":
                 values["material"] = junction.material.name
             elif section == "photodiode.junction" and key.name == "temperature":
@@ -510,7 +537,9 @@ def design_template() -> str:
         values = sections.get(section, {})
         keys = _keys(section)
         selector = _SELECTOR.get(section)
-        chosen = values.get(selector) if selector else None
+        sel_key = next((k for k in keys if k.name == selector), None)
+        chosen = values.get(selector, None if sel_key is None or sel_key.default is REQUIRED
+                            else sel_key.default) if selector else None
         lines.append(f"[{section}]" + ("" if required else "  # optional section"))
         if section not in sections:
             for key in keys:
@@ -539,8 +568,10 @@ def design_template() -> str:
                          and chosen not in k.when]
                 shared = [k.name for k in keys if k.when and other in k.when
                           and chosen in k.when]
+                common = any(not k.when and k.name != selector for k in keys)
                 lines.append(f"# with {selector} = \"{other}\", replace the {chosen}-only "
                              "keys above by:" if shared else
+                             f"# with {selector} = \"{other}\", add these keys:" if common else
                              f"# with {selector} = \"{other}\", use only these keys:")
                 for k in extra:
                     need = "required" if k.default is REQUIRED else "optional"

@@ -191,6 +191,23 @@ SCHEMA: tuple[Key, ...] = (
         example="298 K"),
     Key("photodiode", "band_gap", "eV", OMIT, check="[0.1..10]",
         doc="Band gap for rescaling datasheet values with temperature.", example="1.12 eV"),
+    # -- avalanche photodiode: the junction above multiplies (Si or InP, abrupt or pin) -------
+    Key("photodiode", "kind", None, "photodiode", kind="text", choices=("photodiode", "avalanche"),
+        doc="photodiode (no gain) or avalanche: the junction's own field multiplies the "
+            "carriers (McIntyre gain; Si or InP, abrupt or pin junction). APD bias supplies "
+            "run at tens to hundreds of volts: limit their current.", example="avalanche"),
+    Key("photodiode", "injection", None, OMIT, kind="text", choices=("electron", "hole"),
+        when=("avalanche",),
+        doc="Carrier that enters the multiplier (default electron: p-on-n lit from the p side).",
+        example="electron"),
+    Key("photodiode", "surface_dark_current", "A", OMIT, check="[0..1e-2]", when=("avalanche",),
+        doc="Unmultiplied (surface) dark current I_ds (default 0).", example="100 pA"),
+    Key("photodiode", "bulk_dark_current", "A", None, check="[0..1e-2]", when=("avalanche",),
+        doc="Primary bulk dark current I_dm that the gain multiplies (default: the "
+            "photodiode's dark-current model).", example="1 pA"),
+    Key("photodiode", "saturation_velocity", "m/s", OMIT, check="[1e3..1e6]", when=("avalanche",),
+        doc="Carrier velocity for the transit and avalanche build-up times (default 1e5 m/s).",
+        example="1e5 m/s"),
     # -- amplifier -----------------------------------------------------------------------------
     Key("amplifier", "gbw", "Hz", REQUIRED, check="[1e3..1e12]", doc="Gain-bandwidth product.",
         example="1 GHz"),
@@ -281,7 +298,7 @@ SECTIONS = {
 }
 
 #: Selector key of sections whose keys depend on a model choice.
-_SELECTOR = {"photodiode.junction": "model", "photodiode": "model"}
+_SELECTOR = {"photodiode.junction": "model", "photodiode": "kind"}
 
 def section_keys(section: str) -> list[Key]:
     """The schema rows of one section, in order.
@@ -552,10 +569,13 @@ def read_design(source, name: str = "") -> dict[str, dict]:
         chosen = None
         if selector and any(k.name == selector for k in keys):
             sel_key = next(k for k in keys if k.name == selector)
-            if selector not in values:
+            if selector not in values and sel_key.default is not REQUIRED:
+                chosen = sel_key.default  # an optional selector (photodiode kind)
+            elif selector not in values:
                 raise DesignError(f"{where}missing key {sel_key.where}: expected "
                                   f"{_expected(sel_key)}", parameter=sel_key.where)
-            chosen = _parse_value(sel_key, values[selector], where)
+            else:
+                chosen = _parse_value(sel_key, values[selector], where)
         applicable = {k.name: k for k in keys if not k.when or chosen in k.when}
         for key in values:
             if key not in applicable:

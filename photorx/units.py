@@ -259,7 +259,9 @@ def _guard_expression(text: str, raw: str) -> None:
               and not rest.startswith("**"))
         if ok:
             num, _, den = power.group(2).partition("/")
-            ok = abs(float(num) / (float(den) if den.strip() else 1.0)) <= MAX_EXPONENT
+            divisor = float(den) if den.strip() else 1.0
+            # a zero denominator ("^(1/0)") is no number at all
+            ok = divisor != 0 and abs(float(num) / divisor) <= MAX_EXPONENT
         if not ok:
             raise DesignError(f"cannot read '{raw}' as a quantity: an exponent must be a plain "
                               f"number from -{MAX_EXPONENT} to {MAX_EXPONENT} (as in 'cm^-3' or "

@@ -150,6 +150,50 @@ panel"""),
         ("code", """panel.set(derivation="feedback capacitor")
 panel.checks"""),
     ],
+    "07_avalanche.ipynb": [
+        ("markdown", """# 7. Avalanche photodiodes
+
+**Caution.** An avalanche photodiode's bias supply runs at tens to hundreds of volts (the
+demo here sits at about 310 V). Current-limit the supply (near breakdown the diode draws
+whatever it is given), insulate and guard the bias node and discharge its filter
+capacitors before touching the circuit; handle the diode and the amplifier input with ESD
+precautions; classify and operate test lasers for eye safety (often invisible infrared);
+and defer to local codes and licensed practice. Every figure below is a model estimate.
+
+A few volts below breakdown the field in the junction is strong enough for carriers to
+ionise the lattice: each primary photoelectron becomes M electrons (McIntyre's gain
+from the ionisation integral over the junction's own field). The gain is noisy: the
+multiplied shot noise is 2 q I M^2 F(M), with the excess noise factor
+F = k M + (1 - k)(2 - 1/M) and k the ionisation ratio (small for silicon). The signal
+power grows as M^2, the multiplied shot noise faster, so there is an optimum gain, and
+hence an optimum bias, for the SNR or the BER sensitivity. Breakdown moves up with
+temperature, so a constant gain needs a bias that tracks it.
+
+The panel shows the invented silicon APD receiver at 850 nm: gain against bias (sampled in
+gain, so that the steep part is resolved), F(M), the objective against gain with the
+numeric optimum and the thermal-noise-limited closed form, and the bias that holds the
+operating gain from -40 to 85 degC."""),
+        ("code", _SETUP + """
+
+rx = prx.load_design("si-apd-850")
+panel = pw.avalanche_panel(rx)
+panel"""),
+        ("markdown", """Gain, k and F at the biases that give chosen gains (a sweep in gain
+maps each gain to its bias):"""),
+        ("code", """apd = rx.photodiode
+bias = prx.gain_axis(rx, [2.0, 10.0, 50.0, 100.0])
+bias, apd.gain(bias), apd.k_effective(bias), apd.excess_noise_factor(bias)"""),
+        ("markdown", """The optimum gain for the BER sensitivity, numeric (full model: k_eff,
+dark current and bandwidth follow the bias) and in Personick's closed form (constant k,
+thermal noise only), as the panel computed it with `prx.optimum_gain`; `penalty_db` is what
+the closed-form gain costs in the full model:"""),
+        ("code", """best = panel.optimum  # what prx.optimum_gain(rx, objective="sensitivity") returns
+best.summary()"""),
+        ("markdown", """The temperature-compensated bias: the reverse bias that holds M = 50
+from -40 to 85 degC (233 to 358 K):"""),
+        ("code", """temperatures = [233.15, 253.15, 273.15, 298.15, 323.15, 358.15]
+prx.bias_for_constant_gain(apd, 50.0, temperatures)"""),
+    ],
 }
 
 

@@ -422,7 +422,14 @@ def test_every_constructor_argument_has_a_schema_row():
 
     assert args(Receiver) - {"photodiode", "tia", "post_filter"} == rows(
         "operating_point", "signal", "limits", "analysis")
-    assert args(Photodiode) - {"junction"} == rows("photodiode")
+    assert args(Photodiode) - {"junction"} == rows("photodiode") - {"kind"}
+    # the avalanche photodiode on a junction: its own arguments are the avalanche-only rows
+    # (structure, reflectance and series resistance belong to the SAM kind or the photodiode)
+    from photorx.device.apd import AvalanchePhotodiode
+
+    assert args(AvalanchePhotodiode) - {"photodiode", "structure", "reflectance",
+                                        "series_resistance"} == \
+        rows("photodiode", model="avalanche") - rows("photodiode")
     assert args(Tia) - {"amp"} == rows("feedback")
     assert args(PostFilter) == rows("post_filter")
     for model, cls in [("abrupt", jn.AbruptJunction), ("pin", jn.PinJunction),

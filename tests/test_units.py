@@ -206,6 +206,7 @@ def test_dbm_conversions():
     ("(10**1000 um)^2", "m^2", ["exponent"]),
     ("(1 um)**(2**64)", "m^2", ["exponent"]),
     ("(1 um)^7", "m^7", ["exponent"]),
+    ("(1 um)^(1/0)", "m", ["exponent"]),                    # a zero denominator (fuzz find)
     ("((((((1 um)))))) ", "m", ["parentheses"]),
     ("1 um * " * 20 + "1 um", None, ["longer than 80 characters"]),
     ("(1e200 um)^2", "m^2", ["overflows"]),

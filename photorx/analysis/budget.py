@@ -7,7 +7,7 @@ import numpy as np
 from ..errors import DesignError
 from .checks import receiver_checks
 from .noise import SOURCE_LABELS
-from .result import _TABLE_ORDER, BER_FIGURES, FIGURES
+from .result import _TABLE_ORDER, APD_FIGURES, BER_FIGURES, FIGURES
 
 __all__ = ["receiver_budget", "checks_table"]
 
@@ -56,6 +56,8 @@ def receiver_budget(rx, title: str | None = None):
     values["dominant_noise_source"] = SOURCE_LABELS.get(values["dominant_noise_source"],
                                                         values["dominant_noise_source"])
     digital = rx.bit_rate is not None  # an analog design shows analog figures only
+    # the gain rows only for a diode that multiplies (a PIN's are 1, 1 and "does not apply")
+    hidden = set() if callable(getattr(rx.photodiode, "multiplication", None)) else set(APD_FIGURES)
     tables = {}
     for table in _TABLE_ORDER:
         if table == "checks":
@@ -63,7 +65,7 @@ def receiver_budget(rx, title: str | None = None):
             continue
         rows = [dict(quantity=desc, value=values[name], unit=unit)
                 for name, (unit, tab, desc) in FIGURES.items() if tab == table and name in values
-                and (digital or name not in BER_FIGURES)]
+                and (digital or name not in BER_FIGURES) and name not in hidden]
         tables[table] = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
         if table == "noise":
             # read from the same evaluation: the noise is integrated once

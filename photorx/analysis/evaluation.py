@@ -20,6 +20,7 @@ from ..circuit.metrics import tia_figures
 from ..circuit.tia import transimpedance
 from ..device.optics import qe_from_responsivity
 from .noise import input_noise_psd, with_frequency_axis
+from .multiplication import multiplied_currents
 from .noise_integrals import chain_noise
 from .parameters import with_trailing_axis
 from .result import ReceiverResult
@@ -218,9 +219,12 @@ class _Point:
         # current is negative (it flows forward), and the photodiode's own equivalent circuit
         # uses |I_dark| for its shot-noise current (EquivalentCircuit.current); so do the noise
         # and sensitivity stages here (2 q |I|: Schottky 1918; common practice)
-        self.dark_shot = np.abs(self.dark)
-        self.i_signal = self.responsivity * rx.optical_power
-        self.i_background = self.responsivity * rx.background_power
+        # avalanche gain (1 for a PIN): signal M R P, shot noise 2q I_ds + 2q I M^2 F
+        self.mult = multiplied_currents(self.pd, self.v, self.responsivity, rx.optical_power,
+                                        rx.background_power, self.dark)
+        self.dark_shot = self.mult["shot_dark"]
+        self.i_signal = self.mult["signal_current"]
+        self.i_background = self.mult["background_current"]
         self.circuit = rx.tia._args(self.net)
         self.loop = tia_figures(**self.circuit, output_swing=self.amp.output_swing)
         self.shape = np.broadcast_shapes(
@@ -370,7 +374,7 @@ def _noise(p: _Point):
     sources = dict(
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),
         in_corner=p.b(amp.current_noise_corner), temperature=p.b(rx.temperature),
-        i_shot={"dark": p.b(p.dark_shot), "signal": p.b(p.i_signal), "background": p.b(p.i_background)})
+        i_shot={k: p.b(p.mult[f"shot_{k}"]) for k in ("dark", "signal", "background")})
     # one grid for both integrals: the loop's transfer functions are built once
     mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources)
     enbw = p.b(enbw)
@@ -404,14 +408,17 @@ def _noise(p: _Point):
 
 def _sensitivity(p: _Point, noise: dict) -> dict:
     rx = p.rx
-    r, power, dark = p.b(p.responsivity), p.b(rx.optical_power), p.b(p.dark_shot)
+    # multiplied responsivity M R and shot-noise factor M F (1 and 1 for a PIN)
+    r, power, dark = p.b(p.mult["gain"] * p.responsivity), p.b(rx.optical_power), p.b(p.dark_shot)
+    nf = p.b(p.mult["noise_factor"])
     enbw, circuit_rms = noise["noise_bandwidth"], noise["circuit_noise_rms"]
-    snr = np.where(power > 0, analog_snr(power, r, circuit_rms, enbw, rx.modulation_depth, dark), 0.0)
+    snr = np.where(power > 0, analog_snr(power, r, circuit_rms, enbw, rx.modulation_depth, dark,
+                                         noise_factor=nf), 0.0)
     with np.errstate(divide="ignore"):
         snr_db = np.where(snr > 0, 10.0 * np.log10(np.where(snr > 0, snr, 1.0)), -np.inf)
     zt0 = np.abs(p.b(p.loop["dc_transimpedance"]))
     sens = p.b(required_average_power(q_from_ber(rx.target_ber), r, circuit_rms, enbw,
-                                      rx.extinction_ratio, dark))
+                                      rx.extinction_ratio, dark, noise_factor=nf))
     return {
         # at vanishing signal: the floor without the signal's own shot noise (see _noise)
         "nep": noise_equivalent_power(noise["noise_floor_density"], r),
@@ -435,7 +442,7 @@ def _checks(p: _Point, op: dict, speed: dict) -> dict:
     peak = (_levels(power, None, float(rx.extinction_ratio))[0] if rx.bit_rate is not None
             else power * (1.0 + rx.modulation_depth))
     # a DC-coupled stage carries background and dark current at its output too
-    i_peak = p.b(p.responsivity) * peak + p.b(p.i_background) + p.b(p.dark_shot)
+    i_peak = p.b(p.mult["gain"] * p.responsivity) * peak + p.b(p.i_background) + np.abs(p.b(p.dark))
     return {
         "peak_photocurrent": i_peak,
         "peak_output": i_peak * speed["dc_transimpedance"],
@@ -479,7 +486,24 @@ def evaluate_receiver(rx):
     op = _operating_point(p)
     speed = _speed(p)
     noise, by_source, mean_square, spot = _noise(p)
-    values = {**op, **speed, **_stability(p), **noise, **_sensitivity(p, noise), **_checks(p, op, speed)}
+    values = {**op, **speed, **_stability(p), **noise, **_sensitivity(p, noise), **_checks(p, op, speed),
+              **_multiplication(p, mean_square)}
     warnings = tuple(text for name, text in _WARNINGS if not np.all(values[name]))
     return ReceiverResult(values=values, noise_by_source=by_source, warnings=warnings,
                           noise_mean_square=mean_square, noise_spot_density=spot)
+
+
+def _multiplication(p: _Point, mean_square: dict) -> dict:
+    """Avalanche figures: M, F, k_eff and the share of the output noise power that passes
+    the gain (2 q (I_ph + I_bg + I_dm) M^2 F; for a PIN the same sources at M = 1)."""
+    mult = p.mult
+    total = sum(mean_square.values())
+    with np.errstate(invalid="ignore", divide="ignore"):
+        dark_part = np.where(mult["shot_dark"] > 0,
+                             mult["shot_dark_multiplied"] / np.where(mult["shot_dark"] > 0,
+                                                                     mult["shot_dark"], 1.0), 0.0)
+    multiplied = mean_square["shot_signal"] + mean_square["shot_background"] \
+        + mean_square["shot_dark"] * p.b(dark_part)
+    return {"gain": p.b(mult["gain"]), "excess_noise_factor": p.b(mult["excess_noise_factor"]),
+            "k_effective": p.b(mult["k_effective"]),
+            "multiplied_shot_noise_share": p.b(multiplied / total)}

@@ -470,8 +470,9 @@ def tia_noise(
     dark_current, signal_current, background_current : float, optional
         Split of the diode's DC current [A], >= 0, shown as separate shot-noise sources
         ``shot_dark``, ``shot_signal``, ``shot_background``; when given they replace
-        ``net.current`` (a ModelRangeWarning if their sum differs from it by more than 1 %).
-        When none is given, ``net.current`` is one source ``shot``.
+        ``net.shot_current`` (a ModelRangeWarning if their sum differs from it by more
+        than 1 %). When none is given, ``net.shot_current`` (``net.current`` unless the
+        diode multiplies) is one source ``shot``.
     stage2_noise, stage2_noise_corner : float
         Input voltage noise of a following stage [V/rtHz] and its 1/f corner [Hz].
     f_lo, f_hi : float
@@ -504,12 +505,13 @@ def tia_noise(
     }
     for name, value in split.items():
         require_nonnegative(f"{name}_current", value, "A")
-    if split and np.any(np.asarray(net.current) > 0):
+    shot_current = getattr(net, "shot_current", net.current)
+    if split and np.any(np.asarray(shot_current) > 0):
         total = sum(np.asarray(v, dtype=float) for v in split.values())
-        if np.any(np.abs(total - net.current) > 0.01 * np.asarray(net.current)):
+        if np.any(np.abs(total - shot_current) > 0.01 * np.asarray(shot_current)):
             warnings.warn(
                 f"dark + signal + background current ({np.max(total):.4g} A) differs from "
-                f"net.current ({np.max(net.current):.4g} A); the split is used for the shot "
+                f"net.shot_current ({np.max(shot_current):.4g} A); the split is used for the shot "
                 "noise",
                 ModelRangeWarning,
                 stacklevel=3,
@@ -530,7 +532,7 @@ def tia_noise(
         "in_": amp.current_noise,
         "in_corner": amp.current_noise_corner,
         "temperature": float(require_positive("temperature", temperature, "K")),
-        "i_shot": split if split else net.current,
+        "i_shot": split if split else shot_current,
         "stage2_noise": float(require_nonnegative("stage2_noise", stage2_noise, "V/rtHz")),
         "stage2_corner": float(
             require_nonnegative("stage2_noise_corner", stage2_noise_corner, "Hz")

@@ -21,6 +21,7 @@ from ..circuit.tia import Tia
 from ..errors import DesignError
 from .budget import receiver_budget
 from .evaluation import evaluate_receiver
+from .multiplication import multiplied_currents
 from .result import _TABLE_ORDER, BER_FIGURES, FIGURES, ReceiverResult  # noqa: F401  (re-exported)
 
 __all__ = ["Receiver", "ReceiverResult", "FIGURES"]
@@ -32,8 +33,10 @@ class Receiver:
 
     Parameters
     ----------
-    photodiode : Photodiode
-        The detector (its junction temperature is replaced by ``temperature``).
+    photodiode : Photodiode or AvalanchePhotodiode
+        The detector (its junction temperature is replaced by ``temperature``). An
+        avalanche photodiode multiplies: signal current M R P, shot noise
+        2 q I_ds + 2 q (I_ph + I_bg + I_dm) M^2 F(M).
     tia : Tia
         The transimpedance stage.
     reverse_bias : float or array_like
@@ -135,8 +138,15 @@ class Receiver:
 
     # -- composition -------------------------------------------------------------------
     def photodiode_at_temperature(self):
-        """The photodiode with its junction at the receiver's temperature."""
+        """The photodiode with its junction at the receiver's temperature.
+
+        An avalanche photodiode (anything with ``receiver_view``) gives its view at the
+        receiver's temperature(s): :class:`~photorx.device.apd_receiver.ApdAtTemperature`.
+        """
         pd_ = self.photodiode
+        view = getattr(pd_, "receiver_view", None)
+        if callable(view):
+            return view(self.temperature)
         junction = getattr(pd_, "junction", None)
         if junction is not None and dataclasses.is_dataclass(junction) and \
                 "temperature" in {f.name for f in dataclasses.fields(junction)}:
@@ -158,12 +168,13 @@ class Receiver:
         pd_ = self.photodiode_at_temperature()
         net = self.equivalent_circuit()
         r = pd_.responsivity(self.wavelength, self.reverse_bias)
+        # equivalent full-shot currents: |I_dark| for a PIN (forward-biased dark current is
+        # negative; its shot noise is 2 q |I|), I_ds + M^2 F I_dm and M^2 F R P for an APD
+        i = multiplied_currents(pd_, self.reverse_bias, r, self.optical_power,
+                                self.background_power, pd_.dark_current(self.reverse_bias))
         return self.tia.noise(net, temperature=self.temperature, post_filter=self.post_filter,
-                              # |I_dark|: forward-biased dark current is negative (see
-                              # EquivalentCircuit.current); its shot noise is 2 q |I|
-                              dark_current=np.abs(pd_.dark_current(self.reverse_bias)),
-                              signal_current=r * self.optical_power,
-                              background_current=r * self.background_power,
+                              dark_current=i["shot_dark"], signal_current=i["shot_signal"],
+                              background_current=i["shot_background"],
                               f_lo=self.noise_band_low)
 
     def evaluate(self) -> "ReceiverResult":

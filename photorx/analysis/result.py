@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["FIGURES", "BER_FIGURES", "ReceiverResult"]
+__all__ = ["FIGURES", "BER_FIGURES", "APD_FIGURES", "ReceiverResult"]
 
 #: Every scalar figure of a :class:`ReceiverResult`: name -> (unit, budget table, description).
 FIGURES = {
@@ -89,7 +89,17 @@ FIGURES = {
     "dark_current_within_limit": ("", "checks", "dark current within its limit"),
     "bias_power_within_limit": ("", "checks", "bias-supply power within its limit"),
     "bandwidth_for_bit_rate": ("", "checks", "bandwidth >= 0.7 x bit rate (NRZ rule of thumb)"),
+    # avalanche multiplication (a PIN: gain 1, F 1, k NaN = does not apply)
+    "gain": ("", "operating point", "avalanche gain M (1 for a PIN)"),
+    "excess_noise_factor": ("", "operating point", "excess noise factor F(M) (McIntyre; 1 for a PIN)"),
+    "k_effective": ("", "operating point", "effective ionisation ratio k (NaN for a PIN: does not apply)"),
+    "multiplied_shot_noise_share": ("", "noise",
+                                    "share of the output noise power from multiplied shot noise, "
+                                    "2q (I_ph + I_bg + I_dm) M^2 F"),
 }
+
+#: Figures of an avalanche photodiode: the budget shows them only for a diode that multiplies.
+APD_FIGURES = ("gain", "excess_noise_factor", "k_effective", "multiplied_shot_noise_share")
 
 #: Figures of a digital receiver only: an analog design (no bit rate) does not show them.
 BER_FIGURES = ("bit_rate", "target_ber", "sensitivity", "sensitivity_dbm", "bandwidth_for_bit_rate")

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .._validate import require_finite, require_nonnegative, require_positive
+from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
 from ..constants import q as _Q
 from ..errors import DesignError
 from ..units import watt_to_dbm
@@ -79,6 +79,7 @@ def analog_snr(
     noise_bandwidth,
     modulation_depth=1.0,
     dark_current=0.0,
+    noise_factor=1.0,
 ):
     """Electrical signal-to-noise power ratio of an analog (sinusoidally modulated) receiver.
 
@@ -96,7 +97,11 @@ def analog_snr(
     modulation_depth : array_like
         Optical modulation index m, 0 < m <= 1: P(t) = P (1 + m cos w t).
     dark_current : array_like
-        Dark current [A], >= 0 (adds its shot noise).
+        Dark current [A], >= 0 (adds its shot noise); for an avalanche photodiode its
+        equivalent full-shot current I_ds + M^2 F I_dm.
+    noise_factor : array_like, optional
+        Shot-noise factor of the signal current [-], >= 1: M F(M) for an avalanche
+        photodiode whose multiplied responsivity is ``responsivity`` (default 1, a PIN).
 
     Returns
     -------
@@ -105,8 +110,8 @@ def analog_snr(
 
     Notes
     -----
-    SNR = (m R P)^2 / 2 / (sigma_c^2 + 2 q (R P + I_d) B). Shot-noise limit:
-    m^2 R P / (4 q B); circuit-noise limit: (m R P)^2 / (2 sigma_c^2).
+    SNR = (m R P)^2 / 2 / (sigma_c^2 + 2 q (R P nf + I_d) B), nf = M F. Shot-noise limit:
+    m^2 R P / (4 q B nf); circuit-noise limit: (m R P)^2 / (2 sigma_c^2).
 
     References
     ----------
@@ -121,8 +126,9 @@ def analog_snr(
     b = require_positive("noise_bandwidth", noise_bandwidth, "Hz")
     m = _require_modulation(modulation_depth)
     i_d = require_nonnegative("dark_current", dark_current, "A")
+    nf = require_in_range("noise_factor", noise_factor, "", 1.0, np.inf)
     i_ph = r * np.asarray(p)
-    noise = s_c**2 + 2.0 * _Q * (i_ph + i_d) * b
+    noise = s_c**2 + 2.0 * _Q * (i_ph * nf + i_d) * b
     if np.any(np.asarray(noise) == 0):
         raise DesignError.out_of_range(
             "circuit_noise_rms", 0.0, "A", "> 0 when there is no photocurrent (SNR undefined)"
@@ -272,6 +278,7 @@ def required_average_power(
     noise_bandwidth,
     extinction_ratio=np.inf,
     dark_current=0.0,
+    noise_factor=1.0,
 ):
     """Average optical power needed for a Q factor, with signal-dependent shot noise [W].
 
@@ -289,7 +296,11 @@ def required_average_power(
     extinction_ratio : array_like
         r = P1 / P0, > 1; ``inf`` for a zero level without light.
     dark_current : array_like
-        Dark current [A], >= 0.
+        Dark current [A], >= 0; for an avalanche photodiode its equivalent full-shot
+        current I_ds + M^2 F I_dm.
+    noise_factor : array_like, optional
+        Shot-noise factor of the signal current [-], >= 1: M F(M) for an avalanche
+        photodiode whose multiplied responsivity is ``responsivity`` (default 1, a PIN).
 
     Returns
     -------
@@ -299,10 +310,12 @@ def required_average_power(
     Notes
     -----
     P1 = 2 P r/(r+1), P0 = 2 P/(r+1); I_k = R P_k + I_d;
-    sigma_k^2 = sigma_c^2 + 2 q I_k B; Q = (I1 - I0)/(sigma1 + sigma0).
+    sigma_k^2 = sigma_c^2 + 2 q (nf R P_k + I_d) B; Q = (I1 - I0)/(sigma1 + sigma0).
+    With nf = M F this is Personick's APD receiver (signal M R0 P, noise
+    2 q M^2 F R0 P).
     Q grows monotonically with P, and the equation is solved by bisection in log P
     (relative precision 1e-12). For r = inf and I_d = 0 the closed form is
-    P = (Q/R)(q B Q + sigma_c).
+    P = (Q/R)(q B Q nf + sigma_c).
 
     References
     ----------
@@ -316,18 +329,19 @@ def required_average_power(
     s_c = require_nonnegative("circuit_noise_rms", circuit_noise_rms, "A")
     b = require_positive("noise_bandwidth", noise_bandwidth, "Hz")
     i_d = require_nonnegative("dark_current", dark_current, "A")
+    nf = require_in_range("noise_factor", noise_factor, "", 1.0, np.inf)
     ratio = np.asarray(extinction_ratio, dtype=float)
     if np.any(np.isnan(ratio)) or np.any(ratio <= 1):
         bad = ratio[~(ratio > 1)].ravel()[0] if ratio.ndim else float(ratio)
         raise DesignError.out_of_range("extinction_ratio", bad, "", "> 1 (inf allowed)")
-    q_v, r, s_c, b, i_d, ratio = np.broadcast_arrays(
-        *(np.asarray(x, dtype=float) for x in (q_v, r, s_c, b, i_d, ratio))
+    q_v, r, s_c, b, i_d, ratio, nf = np.broadcast_arrays(
+        *(np.asarray(x, dtype=float) for x in (q_v, r, s_c, b, i_d, ratio, nf))
     )
 
     def q_of(power):
         p1, p0 = _levels(power, r, ratio)
-        i1, i0 = r * p1 + i_d, r * p0 + i_d
-        return (i1 - i0) / (np.sqrt(s_c**2 + 2 * _Q * i1 * b) + np.sqrt(s_c**2 + 2 * _Q * i0 * b))
+        s1, s0 = nf * r * p1 + i_d, nf * r * p0 + i_d  # equivalent full-shot currents
+        return r * (p1 - p0) / (np.sqrt(s_c**2 + 2 * _Q * s1 * b) + np.sqrt(s_c**2 + 2 * _Q * s0 * b))
 
     # bracket: Q rises at least as sqrt(P) for large P, so doubling decades always brackets
     lo = np.full(q_v.shape, 1e-30)

@@ -83,7 +83,11 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
         Parameter name (a field name anywhere in the receiver tree such as
         ``reverse_bias``, ``rf``, ``cf``, ``area``, ``i_thickness``, ``wavelength``,
         ``optical_power``, ``temperature``, or a dotted path written with ``__``) to the
-        1-D values it takes, in SI units.
+        1-D values it takes, in SI units. For an avalanche photodiode, ``gain`` [-] is an
+        axis too: each gain becomes the reverse bias that gives it at the point's
+        temperature (:func:`photorx.analysis.apd_optimum.gain_axis`), so the steep part of
+        M(V) near breakdown is sampled evenly; the table then has ``reverse_bias`` as the
+        axis column and ``gain`` as a figure.
 
     Returns
     -------
@@ -100,8 +104,13 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     22
     """
     for name in axes:
-        resolve_parameter(receiver, name.replace("__", "."))  # fail early, naming the axis
+        if name != "gain":
+            resolve_parameter(receiver, name.replace("__", "."))  # fail early, naming the axis
     points = grid(max_points=max_points, **axes)
+    if "gain" in points:  # an avalanche gain axis: the bias that gives each gain
+        from .apd_optimum import gain_points
+
+        points = gain_points(receiver, points)
     total = len(next(iter(points.values())))
     # a progress bar needs steps; each chunk stays large enough to stay vectorised
     size = CHUNK if progress is None else min(CHUNK, max(PROGRESS_CHUNK, -(-total // 20)))

@@ -24,7 +24,6 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy.integrate import trapezoid
-from scipy.optimize import brentq
 
 from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
 from ..constants import c, h, q
@@ -43,6 +42,7 @@ from .materials import check_temperature, material
 __all__ = ["SamStructure", "AvalanchePhotodiode"]
 
 _GRID = 201  # nodes per field segment: trapezoid error below 1e-4 in the integral
+_BREAKDOWN_CACHE: dict = {}  # (device, temperature) -> breakdown voltage [V]
 _BREAKDOWN_MARGIN = 1e-7  # 1 - I at which a bias counts as breakdown (brentq root tolerance)
 
 
@@ -350,7 +350,21 @@ class AvalanchePhotodiode:
         value is the one this device uses.
         """
         t = self._temperature(temperature)
+        try:  # a frozen design at one temperature has one breakdown: solve it once
+            key = (self, t)
+            cached = _BREAKDOWN_CACHE.get(key)
+        except TypeError:  # a field that does not hash (an array): no cache
+            key = cached = None
+        if cached is not None:
+            return cached
+        vb = self._solve_breakdown(t)
+        if key is not None:
+            if len(_BREAKDOWN_CACHE) > 256:
+                _BREAKDOWN_CACHE.clear()
+            _BREAKDOWN_CACHE[key] = vb
+        return vb
 
+    def _solve_breakdown(self, t):
         def integral(v):
             return float(self.ionization_integral(v, t))
 
@@ -390,7 +404,7 @@ class AvalanchePhotodiode:
         return av.multiplication_gain(x, a_n, a_p, self.injection)
 
     def bias_for_gain(self, gain, temperature=None):
-        """Reverse bias [V] that gives the gain ``gain`` (scipy brentq below breakdown).
+        """Reverse bias [V] that gives the gain ``gain`` (root of 1/M(v) - 1/gain below breakdown).
 
         Parameters
         ----------
@@ -421,16 +435,44 @@ class AvalanchePhotodiode:
             if self.structure is None else 0.0
         m_low = float(self.gain(low, t))
 
-        def solve(target):
-            if target <= m_low:
-                raise DesignError.out_of_range("gain", target, "",
-                                               f"> {m_low:.6g} (the gain at {low:.3g} V)")
-            # 1/M is close to linear in bias near breakdown: solve in 1/M
-            return brentq(lambda v: 1.0 / float(self.gain(v, t)) - 1.0 / target, low, top,
-                          xtol=1e-10 * vb, rtol=1e-12)
+        if np.any(m <= m_low):
+            raise DesignError.out_of_range("gain", np.min(m), "",
+                                           f"> {m_low:.6g} (the gain at {low:.3g} V)")
+        return _out(self._solve_bias(m, t, low, top, vb))
 
-        out = np.vectorize(solve, otypes=[float])(m)
-        return _out(out)
+    def _solve_bias(self, m, t, low, top, vb):
+        """Biases with 1/M(v) = 1/m, all targets at once (bracketed Illinois false position).
+
+        1/M is close to linear in bias near breakdown, so false position on 1/M converges
+        in a few steps; a grid that crowds towards breakdown brackets every target first.
+        """
+        y = 1.0 / m.ravel()
+        grid = top - np.geomspace(1.0, 1e-7, 160) * (top - low)
+        grid = np.concatenate([[low], grid[1:], [top]])
+        inv = 1.0 / np.asarray(self.gain(grid, t))
+        # inv falls with bias: the first node where it drops to the target closes the bracket
+        k = np.clip(np.searchsorted(-inv, -y, side="left"), 1, grid.size - 1)
+        a, b = grid[k - 1], grid[k]
+        fa, fb = inv[k - 1] - y, inv[k] - y
+        side = np.zeros(y.shape, dtype=int)
+        x = b.copy()
+        for _ in range(100):
+            done = (b - a <= 1e-10 * vb) | (fb == 0.0)
+            if np.all(done):
+                break
+            denom = np.where(fa != fb, fa - fb, 1.0)
+            x = np.clip(a + fa * (b - a) / denom, a, b)
+            fx = 1.0 / np.asarray(self.gain(x, t)) - y
+            high = fx <= 0.0  # the root lies below x: x becomes the upper end
+            # Illinois: halve the kept end's value when the same end moves twice
+            fa = np.where(high & (side == 1), 0.5 * fa, fa)
+            fb = np.where(~high & (side == -1), 0.5 * fb, fb)
+            a, fa = np.where(high | done, a, x), np.where(high | done, fa, fx)
+            b, fb = np.where(high & ~done, x, b), np.where(high & ~done, fx, fb)
+            side = np.where(high, 1, -1)
+        # the end whose 1/M is nearer the target
+        out = np.where(np.abs(fa) < np.abs(fb), a, b)
+        return out.reshape(m.shape)
 
     def k_effective(self, reverse_bias, temperature=None):
         """Effective ionisation ratio of the injected carrier, gain-weighted [-].
@@ -608,3 +650,60 @@ class AvalanchePhotodiode:
             return dataclasses.replace(self, structure=dataclasses.replace(self.structure,
                                                                            temperature=t))
         return dataclasses.replace(self, photodiode=self.photodiode.at_temperature(t))
+
+    # ------------------------------------------------------------------ receiver routes
+    def receiver_view(self, temperature=None):
+        """The photodiode-like view the receiver stages read, at ``temperature``.
+
+        Parameters
+        ----------
+        temperature : float or array_like, optional
+            Operating temperature(s) [K], 50 to 600 (default: the device's); an array
+            gives one per design point.
+
+        Returns
+        -------
+        ApdAtTemperature
+            See :class:`~photorx.device.apd_receiver.ApdAtTemperature`.
+        """
+        from .apd_receiver import ApdAtTemperature
+
+        return ApdAtTemperature(self, self.temperature if temperature is None else temperature)
+
+    def multiplication(self, reverse_bias):
+        """Gain, excess noise factor, k_eff and dark-current split at ``reverse_bias``.
+
+        Parameters
+        ----------
+        reverse_bias : float or array_like
+            Reverse bias [V].
+
+        Returns
+        -------
+        dict of numpy.ndarray
+            See :meth:`~photorx.device.apd_receiver.ApdAtTemperature.multiplication`.
+        """
+        return self.receiver_view().multiplication(reverse_bias)
+
+    def equivalent_circuit(self, v_r=0.0, optical_power=0.0, wavelength=None,
+                           background_power=0.0):
+        """Small-signal equivalent circuit with the multiplied currents.
+
+        Parameters
+        ----------
+        v_r : float or array_like
+            Reverse bias [V].
+        optical_power : float or array_like, optional
+            Signal optical power [W], >= 0.
+        wavelength : float or array_like, optional
+            Vacuum wavelength [m]; required when any optical power is given.
+        background_power : float or array_like, optional
+            Background optical power [W], >= 0.
+
+        Returns
+        -------
+        EquivalentCircuit
+            See :meth:`~photorx.device.apd_receiver.ApdAtTemperature.equivalent_circuit`.
+        """
+        return self.receiver_view().equivalent_circuit(v_r, optical_power, wavelength,
+                                                       background_power)

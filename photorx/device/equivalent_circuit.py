@@ -31,12 +31,17 @@ class EquivalentCircuit:
     current : float or array_like
         DC current through the junction whose shot noise counts: dark plus signal plus
         background photocurrent [A], >= 0.
+    shot_current : float or array_like, optional
+        Equivalent full-shot current [A], >= 0: the diode's white shot-noise density is
+        2 q shot_current. Default None: ``current`` (no multiplication). An avalanche
+        photodiode sets I_ds + M^2 F(M) (I_ph + I_bg + I_dm) (McIntyre 1966).
     """
 
     capacitance: float = 1e-12
     series_resistance: float = 0.0
     shunt_resistance: float = np.inf
     current: float = 0.0
+    shot_current: float | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "capacitance", require_positive("capacitance", self.capacitance, "F"))
@@ -47,6 +52,8 @@ class EquivalentCircuit:
             require_positive("shunt_resistance", rsh, "ohm")  # raises with the message
         object.__setattr__(self, "shunt_resistance", rsh if rsh.ndim else float(rsh))
         object.__setattr__(self, "current", require_nonnegative("current", self.current, "A"))
+        shot = self.current if self.shot_current is None else self.shot_current
+        object.__setattr__(self, "shot_current", require_nonnegative("shot_current", shot, "A"))
 
     def admittance(self, f):
         """Admittance of the diode branch seen from the summing node [S], complex.

@@ -16,6 +16,7 @@ import numpy as np
 from ..errors import DesignError
 from .._files import atomic_write_text
 from .cautions import cautions_html
+from .report_apd import apd_section
 from .tables import html_page
 
 __all__ = ["build_report", "write_report", "report_figures"]
@@ -180,6 +181,7 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
         parts += ["</ul></section>"]
     parts += ["<h2>Design</h2>", f"<pre>{html.escape(design_text)}</pre>"]
     parts += ["<h2>Budget</h2>", budget._html_tables(3)]
+    parts.append(apd_section(rx, fmt))  # empty unless the photodiode multiplies
     parts.append("<h2>Plots</h2>")
     for fig_title, uri, caption in report_figures(rx, bias_points, fmt):
         parts.append(f"<h3>{html.escape(fig_title)}</h3>")

@@ -20,6 +20,8 @@ builder                    what it shows
 :func:`tradeoff_panel`     every figure against reverse bias, the constrained optimiser,
                            exports of the budget tables and the report
 :func:`closed_forms_panel` sympy derivations rendered, numeric checks beside them
+:func:`avalanche_panel`    APD gain and excess noise against bias, SNR or sensitivity against
+                           gain with the optimum, temperature-compensated bias
 =========================  ==================================================================
 
 Every builder takes an optional receiver (a :class:`~photorx.Receiver`, or the name or path
@@ -43,6 +45,7 @@ from .widgets_circuit import LoopPanel, NoisePanel, loop_panel, noise_panel
 from .widgets_device import JunctionPanel, PhotodiodePanel, junction_panel, photodiode_panel
 from .widgets_receiver import TradeoffPanel, tradeoff_panel
 from .widgets_symbolic import ClosedFormsPanel, closed_forms_panel
+from .widgets_apd import AvalanchePanel, avalanche_panel
 
 __all__ = [
     "Panel",
@@ -58,6 +61,8 @@ __all__ = [
     "noise_panel",
     "tradeoff_panel",
     "closed_forms_panel",
+    "AvalanchePanel",
+    "avalanche_panel",
     "PANELS",
 ]
 
@@ -69,4 +74,5 @@ PANELS = {
     "noise": noise_panel,
     "tradeoff": tradeoff_panel,
     "closed_forms": closed_forms_panel,
+    "avalanche": avalanche_panel,
 }
