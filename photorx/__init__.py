@@ -52,6 +52,11 @@ _EXPORTS = {
     "load_design": "photorx.designfile",
     "save_design": "photorx.designfile",
     "demo_receiver": "photorx.designfile",
+    "read_cv": "photorx.device.measurements",
+    "read_iv": "photorx.device.measurements",
+    "doping_profile": "photorx.device.cv_profile",
+    "fit_junction": "photorx.device.junction_fit",
+    "JunctionFit": "photorx.device.junction_fit",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]
