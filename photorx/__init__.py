@@ -57,6 +57,8 @@ _EXPORTS = {
     "doping_profile": "photorx.device.cv_profile",
     "fit_junction": "photorx.device.junction_fit",
     "JunctionFit": "photorx.device.junction_fit",
+    "fit_dark_current": "photorx.device.dark_fit",
+    "DarkCurrentFit": "photorx.device.dark_fit",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]
