@@ -175,7 +175,8 @@ def _newton(dev, u, v_r, tol=1e-10, max_iter=200):
         jac = diags([g[1:-1], main, g[1:-1]], [-1, 0, 1], format="csc")
         du = spsolve(jac, -f[1:-1])
         # logarithmic damping keeps large early steps from overshooting the exponentials
-        du = np.where(np.abs(du) > 1.0, np.sign(du) * (1.0 + np.log(np.abs(du))), du)
+        big = np.abs(du) > 1.0
+        du[big] = np.sign(du[big]) * (1.0 + np.log(np.abs(du[big])))
         u[1:-1] += du
         if np.max(np.abs(du)) < tol:
             return u, it
