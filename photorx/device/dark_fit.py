@@ -76,8 +76,8 @@ def dark_current_model(v_r, temperature, saturation_current, generation_current,
     f_g ~ ni(T), f_d ~ ni(T)^2
     (:func:`~photorx.device.photodiode_dark.datasheet_temperature_factors`).
     """
-    v = np.asarray(v_r, dtype=float)
-    t = np.broadcast_to(np.asarray(temperature, dtype=float), v.shape)
+    v, t = np.broadcast_arrays(np.asarray(v_r, dtype=float),
+                               np.asarray(temperature, dtype=float))
     vt = thermal_voltage(t)
     f_gen, f_diff = _temperature_factors(t, reference_temperature, band_gap)
     return (saturation_current * f_diff * -np.expm1(-v / vt)
