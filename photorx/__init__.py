@@ -59,6 +59,7 @@ _EXPORTS = {
     "JunctionFit": "photorx.device.junction_fit",
     "fit_dark_current": "photorx.device.dark_fit",
     "DarkCurrentFit": "photorx.device.dark_fit",
+    "demo_measurements": "photorx.device.measurements",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]

@@ -23,7 +23,8 @@ import numpy as np
 from ..errors import DesignError
 from ..units import parse_quantity
 
-__all__ = ["read_cv", "read_iv", "table_text", "CV_COLUMNS", "IV_COLUMNS"]
+__all__ = ["read_cv", "read_iv", "table_text", "demo_measurements", "DEMO_AREA", "CV_COLUMNS",
+           "IV_COLUMNS"]
 
 #: Columns of a C-V table: name -> (SI unit, required)
 CV_COLUMNS = {"reverse_bias": ("V", True), "capacitance": ("F", True),
@@ -247,3 +248,30 @@ def table_text(frame, units=None):
     for row in frame.itertuples(index=False):
         out.write(", ".join(repr(float(x)) for x in row) + "\n")
     return out.getvalue()
+
+
+#: Junction area of the invented diode behind the demo measurements [m^2] (0.8 mm diameter).
+DEMO_AREA = float(np.pi * 0.4e-3**2)
+
+
+def demo_measurements():
+    """The SYNTHETIC demo C-V and I-V tables shipped with photorx (read with units).
+
+    Returns
+    -------
+    cv, iv : pandas.DataFrame
+        As :func:`read_cv` and :func:`read_iv` return them. Invented data: photorx's model
+        of an invented silicon p-i-n photodiode (area :data:`DEMO_AREA`, 20 um i layer)
+        plus seeded noise, written by ``photorx/data/make_demo_measurements.py``; the C-V
+        at 25 degC, the I-V at 25, 40 and 55 degC. Not data of any real device.
+    """
+    from importlib import resources
+
+    folder = resources.files("photorx").joinpath("data")
+    with folder.joinpath("demo_measured_cv.csv").open("r", encoding="utf-8") as handle:
+        cv = read_cv(handle)
+    with folder.joinpath("demo_measured_iv.csv").open("r", encoding="utf-8") as handle:
+        iv = read_iv(handle)
+    cv.attrs["source"] = "demo_measured_cv.csv (synthetic)"
+    iv.attrs["source"] = "demo_measured_iv.csv (synthetic)"
+    return cv, iv

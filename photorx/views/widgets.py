@@ -20,6 +20,7 @@ builder                    what it shows
 :func:`tradeoff_panel`     every figure against reverse bias, the constrained optimiser,
                            exports of the budget tables and the report
 :func:`closed_forms_panel` sympy derivations rendered, numeric checks beside them
+:func:`measured_panel`     measured C-V fit with residuals, doping profile, dark-current fit
 =========================  ==================================================================
 
 Every builder takes an optional receiver (a :class:`~photorx.Receiver`, or the name or path
@@ -43,6 +44,7 @@ from .widgets_circuit import LoopPanel, NoisePanel, loop_panel, noise_panel
 from .widgets_device import JunctionPanel, PhotodiodePanel, junction_panel, photodiode_panel
 from .widgets_receiver import TradeoffPanel, tradeoff_panel
 from .widgets_symbolic import ClosedFormsPanel, closed_forms_panel
+from .widgets_measured import MeasuredPartsPanel, measured_panel
 
 __all__ = [
     "Panel",
@@ -58,6 +60,8 @@ __all__ = [
     "noise_panel",
     "tradeoff_panel",
     "closed_forms_panel",
+    "MeasuredPartsPanel",
+    "measured_panel",
     "PANELS",
 ]
 
