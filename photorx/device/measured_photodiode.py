@@ -23,6 +23,7 @@ from .._validate import require_finite, require_positive
 from ..errors import DesignError
 from .dark_fit import DarkCurrentFit, dark_current_model, fit_dark_current
 from .materials import check_temperature
+from .junction_parametric import ParametricJunction
 from .photodiode import Photodiode
 
 __all__ = ["TabulatedJunction", "MeasuredPhotodiode", "photodiode_from_measurements"]
@@ -249,6 +250,26 @@ class MeasuredPhotodiode(Photodiode):
         return _out(np.asarray(self.junction.temperature, dtype=float))
 
 
+@dataclass(frozen=True)
+class _WidthJunction:
+    """C(v) for the generation width W ~ 1/C: the measured table inside its range, beyond it
+    the abrupt-junction law (1 + v/0.7 V)^-1/2 scaled to meet the table at its ends
+    (continuous). A fit of the table's own form would be worse there: a p-i-n curve fitted
+    by Cj0/(1 + V/Vj)^m takes a small Vj that diverges in forward bias."""
+
+    table: TabulatedJunction
+    fitted: object = ParametricJunction(cj0=1.0, vj=0.7, m=0.5)
+
+    def capacitance(self, v_r):
+        v = np.asarray(v_r, dtype=float)
+        lo, hi = self.table.bias_range
+        inside = np.asarray(self.table.capacitance(np.clip(v, lo, hi)))
+        edge = np.where(v < lo, lo, hi)
+        scale = np.asarray(self.table.capacitance(edge)) / np.asarray(self.fitted.capacitance(edge))
+        outside = np.asarray(self.fitted.capacitance(v)) * scale
+        return _out(np.where((v < lo) | (v > hi), outside, inside))
+
+
 def _table(value, reader, kind):
     if isinstance(value, (str, os.PathLike)) or hasattr(value, "read"):
         return reader(value)
@@ -290,7 +311,6 @@ def photodiode_from_measurements(cv, responsivity, iv=None, series_resistance=10
     -------
     MeasuredPhotodiode
     """
-    from .junction_fit import fit_junction
     from .measurements import read_cv, read_iv
 
     cv = _table(cv, read_cv, "cv")
@@ -312,9 +332,9 @@ def photodiode_from_measurements(cv, responsivity, iv=None, series_resistance=10
     kw = {}
     if iv is not None:
         iv = _table(iv, read_iv, "iv")
-        # the generation current scales with the depletion width W ~ 1/C; a parametric fit
-        # of the C-V gives it smoothly over the whole I-V range (forward bias included)
-        width = fit_junction(cv, "parametric").junction
+        # the generation current scales with the depletion width W ~ 1/C: the measured C-V
+        # where it exists, a parametric fit of it beyond (e.g. forward-bias I-V points)
+        width = _WidthJunction(table)
         fit = fit_dark_current(iv, junction=width, parts=parts, reference_temperature=t_diode,
                                band_gap=band_gap)
         v = iv["reverse_bias"].to_numpy(float)
