@@ -15,6 +15,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 import scipy.constants as sc
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import photorx as prx
 from photorx.device.poisson import junction_mesh, poisson_cv, solve_poisson
@@ -123,3 +125,18 @@ def test_agrees_with_devsim():
     # two solvers agree within 0.5 % per unit area (F/cm^2 -> F/m^2: x 1e4)
     np.testing.assert_allclose(cv["capacitance"], np.asarray(ref["capacitance"]) * 1e4,
                                rtol=5e-3)
+
+
+@settings(max_examples=5)
+@given(log_na=st.floats(21.0, 23.0), log_nd=st.floats(21.0, 23.0))
+def test_capacitance_falls_with_bias_and_exceeds_the_depletion_value(log_na, log_nd):
+    na, nd = 10.0**log_na, 10.0**log_nd
+    x, n = _device(na, nd, xj=4e-6, length=8e-6)
+    v = np.array([0.5, 2.0, 6.0])
+    c = poisson_cv(x, n, v, AREA, SI)["capacitance"].to_numpy()
+    c_da, _ = _depletion_c(na, nd, v)
+    # physical invariants: C falls with reverse bias; the Debye tails add charge at the
+    # edges, so C lies above the depletion approximation, by a few % at most here
+    # (Kennedy, Murley and Kleinfelder 1968)
+    assert np.all(np.diff(c) < 0)
+    assert np.all(c > c_da) and np.all(c < 1.1 * c_da)
