@@ -85,7 +85,7 @@ def dark_current_model(v_r, temperature, saturation_current, generation_current,
             + shunt_conductance * v)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)  # holds arrays and tables: compared by identity
 class DarkCurrentFit:
     """The dark-current model fitted to I-V data (result of :func:`fit_dark_current`).
 

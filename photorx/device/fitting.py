@@ -20,7 +20,7 @@ __all__ = ["LeastSquaresResult", "weighted_least_squares", "misfit_ranges", "che
 MISFIT_SIGMAS = 3.0
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)  # holds arrays and tables: compared by identity
 class LeastSquaresResult:
     """Solution of :func:`weighted_least_squares` in the fit variables.
 

@@ -38,7 +38,7 @@ _DEFAULT_CONTACT_DOPING = 1e25  # [m^-3] 1e19 cm^-3, a typical diffused contact 
 _PENALTY = 1e6  # normalised residual returned where a trial junction is outside its range
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)  # holds arrays and tables: compared by identity
 class JunctionFit:
     """A junction model fitted to C-V data (result of :func:`fit_junction`).
 

@@ -67,7 +67,7 @@ def junction_mesh(length, junction, fine_step, coarse_step, fine_width=None):
     return np.unique(np.concatenate(parts))
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)  # holds arrays and tables: compared by identity
 class PoissonSolution:
     """Electrostatics of the device at one bias (result of :func:`solve_poisson`).
 
