@@ -7,8 +7,8 @@ Run as a script (DEVSIM keeps global state, so each case runs in its own process
 
 prints a JSON object: reverse biases [V], small-signal capacitance per area [F/cm^2] from
 DEVSIM's drift-diffusion DC solutions (C = -q d(integral n dx)/dV_R, a central difference
-of the electron count at V_R +- 1 mV), and the physical constants DEVSIM's simple_physics module uses
-(CGS units: cm, cm^-3). The set-up follows DEVSIM's own 1-D diode examples
+of the electron count at V_R +- 1 mV), and the physical constants DEVSIM's simple_physics
+module uses (CGS units: cm, cm^-3). The set-up follows DEVSIM's own 1-D diode examples
 (examples/diode/diode_common.py and ssac_diode.py shipped with DEVSIM): Potential-only
 start, then drift-diffusion with SRH recombination, the p side at the "top" contact
 driven by a circuit voltage source.
@@ -34,7 +34,7 @@ def available() -> bool:
             "import devsim\n")
     try:
         return subprocess.run([sys.executable, "-c", code], capture_output=True,
-                              timeout=60).returncode == 0
+                              timeout=60, check=False).returncode == 0
     except (OSError, subprocess.TimeoutExpired):
         return False
 
@@ -49,9 +49,9 @@ def run_case(case: dict) -> dict:
 
 
 def _simulate(case: dict) -> dict:
+    import contextlib
     import importlib.util
     import io
-    import contextlib
 
     if importlib.util.find_spec("devsim_openblas"):
         import devsim_openblas
@@ -101,7 +101,7 @@ def _simulate(case: dict) -> dict:
         ds.solve(type="dc", absolute_error=1e10, relative_error=1e-10, maximum_iterations=40)
         caps, v_now, step = [], 0.0, float(case.get("step", 1e-3))
         for v_r in case["bias"]:
-            n_steps = max(1, int(math.ceil(abs(v_r - v_now) / float(case.get("ramp", 1.0)))))
+            n_steps = max(1, math.ceil(abs(v_r - v_now) / float(case.get("ramp", 1.0))))
             for k in range(1, n_steps + 1):
                 v = v_now + (v_r - v_now) * k / n_steps
                 ds.circuit_alter(name="V1", value=-v)  # p side negative: reverse bias

@@ -22,8 +22,8 @@ import numpy as np
 from .._validate import require_finite, require_positive
 from ..errors import DesignError
 from .dark_fit import DarkCurrentFit, dark_current_model, fit_dark_current
-from .materials import check_temperature
 from .junction_parametric import ParametricJunction
+from .materials import check_temperature
 from .photodiode import Photodiode
 
 __all__ = ["TabulatedJunction", "MeasuredPhotodiode", "photodiode_from_measurements"]

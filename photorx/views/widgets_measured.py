@@ -111,11 +111,11 @@ class MeasuredPartsPanel(Panel):
         self._draw_iv()
         for ax in self.axes.values():
             self.rescale(ax)
-        rows = [(name, f"{format_eng(value, '')} +- {format_eng(self.fit.uncertainties[name], '')}")
+        rows = [(name, _pm(value, self.fit.uncertainties[name]))
                 for name, value in self.fit.parameters.items()]
         rows += [("reduced chi-square (C-V)", f"{self.fit.reduced_chi_square:.3g}"),
                  ("bias ranges not fitted (C-V)", _ranges(self.fit.misfit_ranges))]
-        rows += [(name, f"{format_eng(value, '')} +- {format_eng(self.dark.uncertainties[name], '')}")
+        rows += [(name, _pm(value, self.dark.uncertainties[name]))
                  for name, value in self.dark.parameters.items()]
         rows += [("bias ranges not fitted (I-V)",
                   _ranges([(lo, hi) for lo, hi, _ in self.dark.misfit_ranges]))]
@@ -139,6 +139,10 @@ class MeasuredPartsPanel(Panel):
             ax.plot(grid, np.abs(self.dark.current(grid, t)), "-", lw=0.9, color=f"C{k}")
         if temps[0] is not None:
             ax.legend(fontsize="x-small")
+
+
+def _pm(value, sigma):
+    return f"{format_eng(value, '')} +- {format_eng(sigma, '')}"
 
 
 def _ranges(ranges):
