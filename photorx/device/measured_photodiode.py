@@ -281,7 +281,8 @@ def _table(value, reader, kind):
 
 def photodiode_from_measurements(cv, responsivity, iv=None, series_resistance=10.0,
                                  package_capacitance=0.0, bandwidth=None, temperature=None,
-                                 band_gap=None, parts=("diffusion", "generation", "shunt")):
+                                 band_gap=None, parts=("diffusion", "generation", "shunt"),
+                                 smooth_cv=False):
     """Build a :class:`MeasuredPhotodiode` from measured tables (see
     :meth:`Photodiode.from_measurements`).
 
@@ -306,6 +307,12 @@ def photodiode_from_measurements(cv, responsivity, iv=None, series_resistance=10
         Band gap [eV] of the dark-current temperature laws (default 1.12, Si).
     parts : sequence of str, optional
         Dark-current parts to fit (see :func:`~photorx.device.dark_fit.fit_dark_current`).
+    smooth_cv : bool, optional
+        Replace the measured ln C by a cubic smoothing spline through it against
+        ln(1 + (V - V_min)/1 V) (smoothing by generalised cross-validation,
+        :func:`scipy.interpolate.make_smoothing_spline`) before interpolating, so that measurement noise does not make C(V), and every
+        figure that depends on it, wiggle between points (default False: through the
+        points as measured).
 
     Returns
     -------
@@ -326,9 +333,19 @@ def photodiode_from_measurements(cv, responsivity, iv=None, series_resistance=10
             raise DesignError.out_of_range("temperature", t_cv, "K",
                                            f"one of the C-V temperatures {temps.tolist()}")
     t_diode = float(temperature if temperature is not None else (t_cv or 300.0))
-    table = TabulatedJunction(cv["reverse_bias"].to_numpy(float),
-                              cv["capacitance"].to_numpy(float),
-                              t_cv if t_cv is not None else t_diode)
+    bias = cv["reverse_bias"].to_numpy(float)
+    cap = cv["capacitance"].to_numpy(float)
+    if smooth_cv:
+        from scipy.interpolate import make_smoothing_spline
+
+        order = np.argsort(bias)
+        bias, cap = bias[order], cap[order]
+        # in ln C against ln(1 + (V - V_min)/1 V) a depletion capacitance is close to a
+        # straight line, which the spline's cross-validation smooths far better than the
+        # strongly bent ln C(V) near zero bias
+        x = np.log1p(bias - bias[0])
+        cap = np.exp(make_smoothing_spline(x, np.log(cap))(x))
+    table = TabulatedJunction(bias, cap, t_cv if t_cv is not None else t_diode)
     kw = {}
     if iv is not None:
         iv = _table(iv, read_iv, "iv")

@@ -583,7 +583,7 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
     @classmethod
     def from_measurements(cls, cv, responsivity, iv=None, series_resistance=10.0,
                           package_capacitance=0.0, bandwidth=None, temperature=None,
-                          band_gap=None):
+                          band_gap=None, smooth_cv=False):
         """Photodiode from measured C-V and dark I-V tables (a ``MeasuredPhotodiode``).
 
         Parameters
@@ -608,6 +608,9 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
             Temperature of the diode [K]; default the C-V temperature or 300 K.
         band_gap : float, optional
             Band gap [eV] of the dark-current temperature laws (default 1.12, Si).
+        smooth_cv : bool, optional
+            Smooth the measured ln C with a cross-validated spline before interpolating
+            (default False: through the measured points).
 
         Returns
         -------
@@ -621,4 +624,4 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
                                             series_resistance=series_resistance,
                                             package_capacitance=package_capacitance,
                                             bandwidth=bandwidth, temperature=temperature,
-                                            band_gap=band_gap)
+                                            band_gap=band_gap, smooth_cv=smooth_cv)
