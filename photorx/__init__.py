@@ -58,6 +58,14 @@ _EXPORTS = {
     "optimum_gain_closed_form": "photorx.analysis.apd_optimum",
     "OptimumGain": "photorx.analysis.apd_optimum",
     "gain_axis": "photorx.analysis.apd_optimum",
+    "read_cv": "photorx.device.measurements",
+    "read_iv": "photorx.device.measurements",
+    "doping_profile": "photorx.device.cv_profile",
+    "fit_junction": "photorx.device.junction_fit",
+    "JunctionFit": "photorx.device.junction_fit",
+    "fit_dark_current": "photorx.device.dark_fit",
+    "DarkCurrentFit": "photorx.device.dark_fit",
+    "demo_measurements": "photorx.device.measurements",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]

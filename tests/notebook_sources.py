@@ -194,6 +194,49 @@ from -40 to 85 degC (233 to 358 K):"""),
         ("code", """temperatures = [233.15, 253.15, 273.15, 298.15, 323.15, 358.15]
 prx.bias_for_constant_gain(apd, 50.0, temperatures)"""),
     ],
+    "08_measured_parts.ipynb": [
+        ("markdown", """# 8. Real parts in: measured C-V and I-V
+
+A designer often has a diode on the bench rather than its doping levels. This notebook
+reads a C-V and a dark I-V measurement (CSV files with the units in the header), fits
+photorx's junction models to them with uncertainties and residuals, extracts the doping
+profile from the slope of 1/C^2 (W = eps A / C), fits the dark current's diffusion,
+generation and shunt parts over three temperatures, and builds a receiver on the measured
+diode.
+
+The data shipped with photorx for this are **synthetic**: photorx's own model of an
+invented silicon p-i-n diode plus random noise (see the comment lines of the files). Use
+your own files the same way.
+
+Bench work on real parts: limit the current of high-voltage bias supplies, protect the
+diode and the amplifier input against electrostatic discharge, and respect laser eye
+safety (IEC 60825-1); results are model estimates to verify on hardware."""),
+        ("code", _SETUP + """
+
+cv, iv = prx.demo_measurements()
+print(cv.attrs["source"], len(cv), "points;", iv.attrs["source"], len(iv), "points")
+panel = pw.measured_panel(cv, iv)
+panel"""),
+        ("markdown", """The same from code: a p-i-n fit with the noise of the data as sigma, its
+parameters with one standard deviation, and the doping profile (the i-layer level, then
+the n+ contact at the i-layer thickness):"""),
+        ("code", """from photorx.device.measurements import DEMO_AREA
+
+fit = prx.fit_junction(cv, "pin", material="Si", area=DEMO_AREA,
+                       sigma=0.002 * cv["capacitance"] + 2e-15)
+profile = prx.doping_profile(cv, area=DEMO_AREA, material="Si")
+fit.parameters, fit.uncertainties, fit.reduced_chi_square, profile["doping"].median()"""),
+        ("markdown", """A photodiode built from the measured tables works wherever a modelled
+one does. Its capacitance and dark current are the measured ones, so a bias outside the
+measured range is refused rather than extrapolated:"""),
+        ("code", """import dataclasses
+
+diode = prx.Photodiode.from_measurements(cv=cv, iv=iv, responsivity=0.55)
+rx = dataclasses.replace(prx.demo_receiver(), photodiode=diode, wavelength=850e-9,
+                         reverse_bias=10.0)
+prx.sweep(rx, reverse_bias=[2.0, 5.0, 10.0, 15.0])[
+    ["reverse_bias", "capacitance", "dark_current", "bandwidth", "input_noise_rms"]]"""),
+    ],
 }
 
 

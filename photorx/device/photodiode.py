@@ -579,3 +579,49 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
             raise DesignError(msg, parameter=names.get(exc.parameter, exc.parameter)) from None
 
 
+
+    @classmethod
+    def from_measurements(cls, cv, responsivity, iv=None, series_resistance=10.0,
+                          package_capacitance=0.0, bandwidth=None, temperature=None,
+                          band_gap=None, smooth_cv=False):
+        """Photodiode from measured C-V and dark I-V tables (a ``MeasuredPhotodiode``).
+
+        Parameters
+        ----------
+        cv : pandas.DataFrame, str or os.PathLike
+            Measured C-V: a :func:`~photorx.device.measurements.read_cv` table or a CSV
+            path. The capacitance is interpolated within its bias range; a bias outside it
+            is a DesignError.
+        responsivity : float or table
+            [A/W], a number or a table (wavelengths [m], responsivities [A/W]).
+        iv : pandas.DataFrame, str or os.PathLike, optional
+            Measured dark I-V (:func:`~photorx.device.measurements.read_iv`), one or more
+            temperatures; the diffusion + generation + shunt model is fitted to it and
+            used within its bias (and temperature) range. Default none: no dark current.
+        series_resistance : float, optional
+            [ohm] (default 10).
+        package_capacitance : float, optional
+            [F] added to the measured capacitance (default 0).
+        bandwidth : float, optional
+            Intrinsic (transit) 3-dB bandwidth [Hz]; default no intrinsic limit.
+        temperature : float, optional
+            Temperature of the diode [K]; default the C-V temperature or 300 K.
+        band_gap : float, optional
+            Band gap [eV] of the dark-current temperature laws (default 1.12, Si).
+        smooth_cv : bool, optional
+            Smooth the measured ln C with a cross-validated spline before interpolating
+            (default False: through the measured points).
+
+        Returns
+        -------
+        MeasuredPhotodiode
+            Works wherever a Photodiode does (Receiver, sweep, budget); its ``dark_fit``
+            holds the I-V fit with residuals and uncertainties.
+        """
+        from .measured_photodiode import photodiode_from_measurements
+
+        return photodiode_from_measurements(cv, responsivity, iv=iv,
+                                            series_resistance=series_resistance,
+                                            package_capacitance=package_capacitance,
+                                            bandwidth=bandwidth, temperature=temperature,
+                                            band_gap=band_gap, smooth_cv=smooth_cv)

@@ -22,6 +22,7 @@ builder                    what it shows
 :func:`closed_forms_panel` sympy derivations rendered, numeric checks beside them
 :func:`avalanche_panel`    APD gain and excess noise against bias, SNR or sensitivity against
                            gain with the optimum, temperature-compensated bias
+:func:`measured_panel`     measured C-V fit with residuals, doping profile, dark-current fit
 =========================  ==================================================================
 
 Every builder takes an optional receiver (a :class:`~photorx.Receiver`, or the name or path
@@ -46,6 +47,7 @@ from .widgets_device import JunctionPanel, PhotodiodePanel, junction_panel, phot
 from .widgets_receiver import TradeoffPanel, tradeoff_panel
 from .widgets_symbolic import ClosedFormsPanel, closed_forms_panel
 from .widgets_apd import AvalanchePanel, avalanche_panel
+from .widgets_measured import MeasuredPartsPanel, measured_panel
 
 __all__ = [
     "Panel",
@@ -63,6 +65,8 @@ __all__ = [
     "closed_forms_panel",
     "AvalanchePanel",
     "avalanche_panel",
+    "MeasuredPartsPanel",
+    "measured_panel",
     "PANELS",
 ]
 
