@@ -52,6 +52,9 @@ _EXPORTS = {
     "load_design": "photorx.designfile",
     "save_design": "photorx.designfile",
     "demo_receiver": "photorx.designfile",
+    "Eye": "photorx.analysis.digital_eye",
+    "prbs": "photorx.analysis.digital_patterns",
+    "bandwidth_ratio_study": "photorx.analysis.digital",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]
