@@ -102,7 +102,7 @@ def chain_response(rx):
 def _time_scales(poles, rx, photodiode):
     """(fastest, slowest) time constants of the chain [s] for the correction window."""
     mag = np.sort(np.abs(poles))
-    fast = 1.0 / mag[min(2, mag.size - 1)]
+    fast = 1.0 / mag[min(1, mag.size - 1)]  # far poles (Rs Cd) barely shape the waveform
     slow = 1.0 / np.min(-np.real(poles))
     if photodiode is not None:
         pd_ = rx.photodiode_at_temperature()
@@ -145,7 +145,7 @@ def _response_in_time(rx, t, width):
     t_max = float(np.max(t)) if t.size else 0.0
     window = max(t_max, 0.0) + 40.0 * slow + (width or 0.0)
     dt = fast / 8.0 if width is None else min(fast / 8.0, width / 32.0)
-    n = int(min(2 ** 21, max(2 ** 10, 2 ** np.ceil(np.log2(window / dt)))))
+    n = int(min(2 ** 18, max(2 ** 10, 2 ** np.ceil(np.log2(window / dt)))))
     dt = window / n
     # one "symbol" of length dt per sample: a rectangle of width dt approximates the
     # impulse, a pulse of `width` is the NRZ symbol of the window's grid
