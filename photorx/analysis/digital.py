@@ -20,7 +20,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from .._validate import require_in_range
 from ..circuit.filters import filter_response
 from ..circuit.tia import transimpedance
 from ..errors import DesignError
@@ -61,7 +60,9 @@ def check_bit_rate(bit_rate, name="bit_rate"):
     except (TypeError, ValueError):
         raise DesignError(f"{name} = {bit_rate!r} is not a number; valid range: 1 to 1e12 bit/s",
                           parameter=name) from None
-    return float(require_in_range(name, value, "bit/s", *_BIT_RATE_RANGE))
+    if not _BIT_RATE_RANGE[0] <= value <= _BIT_RATE_RANGE[1]:  # also NaN
+        raise DesignError.out_of_range(name, value, "bit/s", "1 bit/s to 1e12 bit/s")
+    return value
 
 
 # ------------------------------------------------------------------------------ the chain
@@ -275,8 +276,13 @@ def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_p
     currents = level_currents(rx.optical_power, rx.extinction_ratio, resp_a, dark, n_levels)
     sigmas = _sigmas(currents, circuit_rms, enbw)
     q_value = float(q_from_ber(rx.target_ber))
+    best = int(np.argmax(vertical_opening(traces, levels, n_levels)))
+    # centre the window on the best decision phase (the pulse peak was only a first guess)
+    roll = best - m // 2
+    traces = np.roll(traces.reshape(-1), -roll).reshape(traces.shape)
+    cursors = np.roll(cursors.reshape(-1), -roll).reshape(cursors.shape)
+    shift, best = shift + roll, m // 2
     opening_phase = vertical_opening(traces, levels, n_levels)
-    best = int(np.argmax(opening_phase))
     height_phase = height_at_ber(traces, levels, n_levels, currents, sigmas, q_value)
     ideal = levels / (n_levels - 1)
     sens = statistical_sensitivity(traces[:, best], levels, n_levels, rx.target_ber, resp_a,
