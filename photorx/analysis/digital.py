@@ -53,6 +53,10 @@ def check_bit_rate(bit_rate, name="bit_rate"):
     if bit_rate is None:
         raise DesignError(f"{name} is not set: the eye needs a bit rate; valid range: "
                           "1 bit/s to 1e12 bit/s", parameter=name)
+    if isinstance(bit_rate, (str, bytes)):  # text is the command line's to parse (units)
+        raise DesignError(f"{name} = {bit_rate!r} is not a number; valid range: 1 bit/s to "
+                          "1e12 bit/s (write 10e9 or parse '10 Gbit/s' with photorx.units)",
+                          parameter=name)
     if isinstance(bit_rate, bool) or np.ndim(bit_rate) != 0:
         raise DesignError.out_of_range(name, bit_rate, "bit/s", "one number, 1 to 1e12")
     try:
