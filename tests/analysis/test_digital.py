@@ -373,3 +373,52 @@ def test_openings_and_penalties_are_bounded(ratio, q_extra):
     best = np.max(wc)
     if best > 0:
         assert -10 * np.log10(best) >= -1e-9
+
+
+def test_pattern_response_is_the_superposition_of_exact_pulses(rational_rx):
+    """The FFT pattern engine against the sum of exact (partial-fraction) pulse responses,
+    one per bit of the repeated pattern: y(t) = sum_k a_k sum_n p(t - kT - nNT)."""
+    from photorx.analysis.digital import chain_response
+
+    rx = rational_rx
+    period, m = 1.0 / rx.bit_rate, 16
+    a = pattern_symbols("prbs7")
+    wave = periodic_response(chain_response(rx), a, period, m)
+    t = np.arange(a.size * m) * period / m
+    ones = np.nonzero(a)[0]
+    total = np.zeros_like(t)
+    for n in range(2):  # the pulse has decayed (1e-12) after one 127-bit period
+        for k in ones:
+            total += rx.pulse_response(t - k * period + n * a.size * period)
+    # band-limited samples of a pulse with kinks: about 1e-4 of the peak
+    np.testing.assert_allclose(wave, total, atol=3e-4 * np.max(total))
+
+
+def test_gaussian_eye_height_of_an_ideal_eye():
+    """No ISI: height = (I1 - I0) - Q (sigma1 + sigma0), Q from scipy's erfcinv."""
+    from photorx.analysis.digital_eye import height_at_ber
+
+    levels = np.array([0, 1, 1, 0])
+    traces = np.repeat(levels.astype(float)[:, None], 8, axis=1)
+    cur, sig = np.array([1e-6, 9e-6]), np.array([2e-7, 4e-7])
+    q_val = np.sqrt(2) * special.erfcinv(2e-12)
+    h = height_at_ber(traces, levels, 2, cur, sig, q_val)
+    np.testing.assert_allclose(h, 8e-6 - q_val * 6e-7, rtol=1e-12)
+
+
+@given(cf=st.floats(20e-15, 400e-15), rate=st.floats(0.3e9, 3e9))
+@settings(max_examples=6)
+def test_receiver_eye_invariants(link, cf, rate):
+    """On the 1310 nm demo at any Cf and bit rate: the openings are at most ideal, the
+    worst-case pattern is no better than PRBS7 and its penalty is >= 0 (Casper et al. 2002)."""
+    rx = dataclasses.replace(link, tia=dataclasses.replace(link.tia, cf=cf), bit_rate=rate)
+    if not rx.evaluate().stable:
+        with pytest.raises(prx.DesignError):
+            rx.eye(samples_per_symbol=16)
+        return
+    eye = rx.eye(samples_per_symbol=16)
+    assert eye.worst_case_opening <= eye.opening + 1e-9
+    assert eye.opening <= 1.0 + 1e-3  # peaking rings past the 7-bit words by less than this
+    assert eye.worst_case_opening <= 1.0 + 1e-9
+    assert eye.worst_case_penalty_db >= -1e-9 or not np.isfinite(eye.worst_case_penalty_db)
+    assert eye.height >= 0 and 0 <= eye.width <= 1.0 / rate
