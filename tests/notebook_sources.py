@@ -143,9 +143,9 @@ bandwidth is short and the eye starts to close."""),
         ("code", """import dataclasses
 
 fast = dataclasses.replace(rx, bit_rate=2.5e9)
-eye = fast.eye(pattern="prbs9")
-eye.plot()
-eye"""),
+eye = fast.eye()
+print(eye)
+eye.plot()"""),
         ("markdown", """How the eye closes as the bias falls: towards zero bias (and into forward bias)
 the junction capacitance grows, the loop slows and the opening shrinks; the ISI penalty
 rises by dB before the noise changes much. The same figures are columns of every sweep of a
@@ -153,7 +153,7 @@ design with a bit rate."""),
         ("code", """table = prx.sweep(fast, reverse_bias=[-0.3, 0.0, 0.5, 1.0, 3.3])
 table[["reverse_bias", "capacitance", "bandwidth", "eye_opening", "isi_penalty_db",
        "sensitivity_isi_dbm"]]"""),
-        ("code", """dataclasses.replace(fast, reverse_bias=-0.3).eye(pattern="prbs9").plot()"""),
+        ("code", """dataclasses.replace(fast, reverse_bias=-0.3).eye().plot()"""),
     ],
     "06_closed_forms.ipynb": [
         ("markdown", """# 6. Closed forms

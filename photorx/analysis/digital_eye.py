@@ -336,7 +336,8 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
 
     Notes
     -----
-    :func:`ber_of_eye` falls with the power; bisection in ln P to 1e-9 relative.
+    :func:`ber_of_eye` falls with the power; ln BER is bracketed by decades of P and the
+    root refined by false position (Illinois) to |ln BER - ln target| < 1e-9.
     """
     r = np.asarray(responsivity, dtype=float)
     shape = np.broadcast_shapes(np.shape(samples)[:-1], r.shape, np.shape(circuit_rms),
@@ -346,22 +347,42 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
         cur = level_currents(power, extinction_ratio, r, dark_current, n_levels)
         return ber_of_eye(samples, levels, n_levels, cur, _sigmas(cur, circuit_rms, noise_bandwidth))
 
-    hi = np.full(shape, 1e-9)
-    for _ in range(14):  # up to 1e-9 x 10^14 = 100 kW: beyond that the eye is closed
-        short = ber(hi) > target_ber
+    ln_target = np.log(target_ber)
+
+    def g(ln_p):  # ln BER - ln target: smooth and falling in ln P
+        return np.log(np.maximum(ber(np.exp(ln_p)), 1e-300)) - ln_target
+
+    ln_lo = np.full(shape, np.log(1e-30))
+    ln_hi = np.full(shape, np.log(1e-9))
+    g_hi = g(ln_hi)
+    for _ in range(14):  # decades up to 1e-9 x 10^14 = 100 kW: beyond that the eye is closed
+        short = g_hi > 0
         if not np.any(short):
             break
-        hi = np.where(short, hi * 10.0, hi)
-    closed = ber(hi) > target_ber
-    lo = np.full(shape, 1e-30)
-    ln_lo, ln_hi = np.log(lo), np.log(hi)
-    for _ in range(80):
-        mid = 0.5 * (ln_lo + ln_hi)
-        above = ber(np.exp(mid)) > target_ber
-        ln_lo, ln_hi = np.where(above, mid, ln_lo), np.where(above, ln_hi, mid)
-        if np.all(ln_hi - ln_lo < 1e-9):
+        ln_lo = np.where(short, ln_hi, ln_lo)
+        ln_hi = np.where(short, ln_hi + np.log(10.0), ln_hi)
+        g_hi = np.where(short, g(ln_hi), g_hi)
+    closed = g_hi > 0
+    g_lo = g(ln_lo)
+    # Illinois false position on the bracket (Dowell and Jarratt 1971), then bisection
+    # steps until the bracket is below 1e-10 in ln P
+    x = ln_hi
+    last = np.zeros(shape, dtype=np.int8)
+    for _ in range(60):
+        denom = np.where(g_lo != g_hi, g_lo - g_hi, 1.0)
+        x = np.clip(ln_lo + g_lo * (ln_hi - ln_lo) / denom, ln_lo, ln_hi)
+        wide = (ln_hi - ln_lo) > 0.5  # far from the root (ln BER saturates): bisect instead
+        x = np.where(wide, 0.5 * (ln_lo + ln_hi), x)
+        gx = g(x)
+        above = gx > 0
+        g_hi = np.where(above & (last == 1), 0.5 * g_hi, g_hi)
+        g_lo = np.where(~above & (last == -1), 0.5 * g_lo, g_lo)
+        ln_lo, g_lo = np.where(above, x, ln_lo), np.where(above, gx, g_lo)
+        ln_hi, g_hi = np.where(above, ln_hi, x), np.where(above, g_hi, gx)
+        last = np.where(above, 1, -1).astype(np.int8)
+        if np.all((np.abs(gx) < 1e-9) | (ln_hi - ln_lo < 1e-10) | closed):
             break
-    return np.where(closed, np.inf, np.exp(0.5 * (ln_lo + ln_hi)))
+    return np.where(closed, np.inf, np.exp(x))
 
 
 def personick_integrals(response, bit_rate, n_points=4001):

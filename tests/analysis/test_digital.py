@@ -384,12 +384,16 @@ def test_pattern_response_is_the_superposition_of_exact_pulses(rational_rx):
     period, m = 1.0 / rx.bit_rate, 16
     a = pattern_symbols("prbs7")
     wave = periodic_response(chain_response(rx), a, period, m)
-    t = np.arange(a.size * m) * period / m
-    ones = np.nonzero(a)[0]
-    total = np.zeros_like(t)
-    for n in range(2):  # the pulse has decayed (1e-12) after one 127-bit period
-        for k in ones:
-            total += rx.pulse_response(t - k * period + n * a.size * period)
+    n_samples = a.size * m
+    # the exact pulse once on every sample offset t - kT + nNT (n = 0, 1: the pulse has
+    # decayed below 1e-12 after one 127-bit period)
+    offsets = np.arange(-n_samples, 2 * n_samples)
+    pulse = rx.pulse_response(offsets * period / m)
+    j = np.arange(n_samples)
+    total = np.zeros(n_samples)
+    for n in range(2):
+        for k in np.nonzero(a)[0]:
+            total += pulse[j - k * m + n * n_samples + n_samples]
     # band-limited samples of a pulse with kinks: about 1e-4 of the peak
     np.testing.assert_allclose(wave, total, atol=3e-4 * np.max(total))
 
