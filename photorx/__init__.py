@@ -66,6 +66,9 @@ _EXPORTS = {
     "fit_dark_current": "photorx.device.dark_fit",
     "DarkCurrentFit": "photorx.device.dark_fit",
     "demo_measurements": "photorx.device.measurements",
+    "Eye": "photorx.analysis.digital_eye",
+    "prbs": "photorx.analysis.digital_patterns",
+    "bandwidth_ratio_study": "photorx.analysis.digital",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]

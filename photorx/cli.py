@@ -428,6 +428,66 @@ def _cmd_demos(args) -> int:
     return EXIT_OK
 
 
+_EYE_IMAGE_FORMATS = ("png", "svg", "pdf")
+
+
+def _cmd_eye(args) -> int:
+    """Eye figures of a design at a bit rate; the density eye to an image with --output."""
+    from .units import format_eng
+
+    rx = _load(args.design)
+    rate = _quantity(args.bit_rate, "bit_rate") if args.bit_rate is not None else rx.bit_rate
+    if rate is None:
+        raise DesignError("bit_rate is not set in the design: give --bit-rate (e.g. 10G); "
+                          "valid range: 1 bit/s to 1e12 bit/s", parameter="bit_rate")
+    if args.output not in (None, "-"):
+        suffix = Path(args.output).suffix.lower().lstrip(".")
+        if suffix not in _EYE_IMAGE_FORMATS:
+            raise UsageError(f"photorx eye: --output {args.output}: the image type comes from "
+                             f"the suffix; valid: {', '.join('.' + s for s in _EYE_IMAGE_FORMATS)}")
+    eye = rx.eye(bit_rate=rate, pattern=args.pattern, modulation=args.modulation)
+    rows = [("bit rate", format_eng(eye.bit_rate, "bit/s")),
+            ("pattern", f"{eye.modulation.upper()} {eye.pattern.upper()}"),
+            ("vertical eye opening (fraction of ideal)", f"{eye.opening:.4f}"),
+            ("worst-case pattern opening", f"{eye.worst_case_opening:.4f}"),
+            (f"eye height at BER {eye.target_ber:g}", format_eng(eye.height, "V")),
+            (f"eye width at BER {eye.target_ber:g}", format_eng(eye.width, "s")),
+            ("ISI jitter, peak to peak", format_eng(eye.jitter_pp, "s")),
+            ("sensitivity, noise only", f"{10 * np.log10(eye.sensitivity_noise_only / 1e-3):.2f} dBm"),
+            ("sensitivity with ISI", f"{eye.sensitivity_dbm:.2f} dBm"),
+            ("ISI power penalty", f"{eye.isi_penalty_db:.3f} dB"),
+            ("worst-case ISI penalty", f"{eye.worst_case_penalty_db:.3f} dB"),
+            ("Personick I2, I3", f"{eye.personick_i2:.4f}, {eye.personick_i3:.4f}")]
+    width = max(len(k) for k, _ in rows)
+    sys.stdout.write("".join(f"{k:<{width}}  {v}\n" for k, v in rows))
+    if args.output not in (None, "-"):
+        import io
+
+        from ._files import atomic_write_bytes
+
+        buffer = io.BytesIO()
+        eye.plot().savefig(buffer, format=Path(args.output).suffix.lower().lstrip("."), dpi=120)
+        atomic_write_bytes(args.output, buffer.getvalue())  # never a partly written image
+        print(f"wrote {args.output}", file=sys.stderr)
+    return EXIT_OK
+
+
+def _add_eye_parser(sub, design_help) -> None:
+    p = sub.add_parser("eye", help="eye diagram, ISI penalty and sensitivity at a bit rate",
+                       description="Eye figures of a design for a PRBS pattern at a bit rate "
+                                   "(pulse response of the whole chain and Gaussian noise), "
+                                   "and the density eye as an image.")
+    p.add_argument("design", nargs="?", help=design_help)
+    p.add_argument("--bit-rate", metavar="RATE",
+                   help="bit rate, e.g. 10G or '2.5 Gbit/s' (default: the design's)")
+    p.add_argument("--pattern", default="prbs7",
+                   help="prbs7 (default), prbs9, prbs10, prbs11 or prbs15")
+    p.add_argument("--modulation", default="nrz", choices=["nrz", "pam4"],
+                   help="nrz (default) or pam4 (two bits per symbol)")
+    p.add_argument("-o", "--output", help="image file for the eye (.png, .svg or .pdf)")
+    p.set_defaults(func=_cmd_eye)
+
+
 # ------------------------------------------------------------------------------------------
 # parser
 # ------------------------------------------------------------------------------------------
@@ -513,6 +573,7 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("demos", help="list the shipped demo designs",
                        description="List the demo designs shipped with photorx.")
     p.set_defaults(func=_cmd_demos)
+    _add_eye_parser(sub, design_help)
     return parser
 
 

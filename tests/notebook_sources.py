@@ -131,6 +131,29 @@ panel"""),
 the panel; the optimum is marked on the plots and listed under them."""),
         ("code", """result = panel.run_optimizer()
 result.parameters, result.success"""),
+        ("markdown", """## The eye at the bit rate
+
+A data receiver is judged by its eye: the output for a PRBS pattern, built by superposing
+the pulse response of the whole chain (the photodiode's transit and diffusion response,
+the closed loop, the post filter), with each level's Gaussian noise from the noise budget.
+`rx.eye()` gives the vertical opening (1 without intersymbol interference), the height and
+width left at the target BER, the ISI jitter and the ISI power penalty: the sensitivity
+with ISI and noise over the noise-only sensitivity. At twice the demo's bit rate the
+bandwidth is short and the eye starts to close."""),
+        ("code", """import dataclasses
+
+fast = dataclasses.replace(rx, bit_rate=2.5e9)
+eye = fast.eye()
+print(eye)
+eye.plot()"""),
+        ("markdown", """How the eye closes as the bias falls: towards zero bias (and into forward bias)
+the junction capacitance grows, the loop slows and the opening shrinks; the ISI penalty
+rises by dB before the noise changes much. The same figures are columns of every sweep of a
+design with a bit rate."""),
+        ("code", """table = prx.sweep(fast, reverse_bias=[-0.3, 0.0, 0.5, 1.0, 3.3])
+table[["reverse_bias", "capacitance", "bandwidth", "eye_opening", "isi_penalty_db",
+       "sensitivity_isi_dbm"]]"""),
+        ("code", """dataclasses.replace(fast, reverse_bias=-0.3).eye().plot()"""),
     ],
     "06_closed_forms.ipynb": [
         ("markdown", """# 6. Closed forms

@@ -488,6 +488,9 @@ def evaluate_receiver(rx):
     noise, by_source, mean_square, spot = _noise(p)
     values = {**op, **speed, **_stability(p), **noise, **_sensitivity(p, noise), **_checks(p, op, speed),
               **_multiplication(p, mean_square)}
+    from .digital import digital_figures  # ISI figures at the bit rate; NaN (no work) without one
+
+    values.update(digital_figures(p, noise, values))
     warnings = tuple(text for name, text in _WARNINGS if not np.all(values[name]))
     return ReceiverResult(values=values, noise_by_source=by_source, warnings=warnings,
                           noise_mean_square=mean_square, noise_spot_density=spot)

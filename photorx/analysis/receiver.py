@@ -211,3 +211,55 @@ class Receiver:
         from .checks import receiver_checks
 
         return receiver_checks(self)
+
+    # -- time domain (photorx.analysis.digital) -----------------------------------------
+    def pulse_response(self, t, bit_rate=None):
+        """Output for a 1 A photocurrent pulse lasting one bit [V per A = ohm] (scalar designs).
+
+        Parameters
+        ----------
+        t : array_like
+            Times after the pulse starts [s], finite.
+        bit_rate : float, optional
+            Bit rate [bit/s], 1 to 1e12; default the receiver's ``bit_rate``.
+
+        See :func:`photorx.analysis.digital.pulse_response`.
+        """
+        from .digital import pulse_response
+
+        return pulse_response(self, t, bit_rate=bit_rate)
+
+    def impulse_response(self, t):
+        """Impulse response of the chain, photocurrent to output [ohm/s] (scalar designs).
+
+        Parameters
+        ----------
+        t : array_like
+            Times [s], finite; the area over all t is Zt(0).
+
+        See :func:`photorx.analysis.digital.impulse_response`.
+        """
+        from .digital import impulse_response
+
+        return impulse_response(self, t)
+
+    def eye(self, bit_rate=None, pattern="prbs7", modulation="nrz", samples_per_symbol=32):
+        """The eye for a PRBS pattern: an :class:`~photorx.analysis.digital_eye.Eye`.
+
+        Parameters
+        ----------
+        bit_rate : float, optional
+            [bit/s], 1 to 1e12; default the receiver's ``bit_rate``.
+        pattern : str
+            ``"prbs7"`` (default), ``"prbs9"``, ``"prbs10"``, ``"prbs11"`` or ``"prbs15"``.
+        modulation : str
+            ``"nrz"`` (default) or ``"pam4"`` (bit_rate / 2 symbols per second).
+        samples_per_symbol : int
+            Phases per symbol, 8 to 256 (default 32).
+
+        See :func:`photorx.analysis.digital.receiver_eye`.
+        """
+        from .digital import receiver_eye
+
+        return receiver_eye(self, bit_rate=bit_rate, pattern=pattern, modulation=modulation,
+                            samples_per_symbol=samples_per_symbol)

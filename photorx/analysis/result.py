@@ -82,6 +82,12 @@ FIGURES = {
     "target_ber": ("", "sensitivity", "target bit-error ratio"),
     "sensitivity": ("W", "sensitivity", "average optical power for the target BER"),
     "sensitivity_dbm": ("dBm", "sensitivity", "sensitivity for the target BER"),
+    # digital receivers in the time domain (photorx.analysis.digital; NaN without a bit rate)
+    "eye_opening": ("", "sensitivity", "vertical eye opening at the bit rate (PRBS7, fraction of ideal)"),
+    "worst_case_eye_opening": ("", "sensitivity", "eye opening for the worst-case pattern (peak distortion)"),
+    "sensitivity_isi": ("W", "sensitivity", "average optical power for the target BER with ISI (PRBS7)"),
+    "sensitivity_isi_dbm": ("dBm", "sensitivity", "sensitivity with ISI and noise (PRBS7 statistical eye)"),
+    "isi_penalty_db": ("dB", "sensitivity", "ISI power penalty: sensitivity with ISI over noise only"),
     # checks
     "bias_power": ("W", "checks", "power from the bias supply, bias x diode current"),
     "bias_below_breakdown": ("", "checks", "reverse bias below the breakdown estimate"),
@@ -102,7 +108,9 @@ FIGURES = {
 APD_FIGURES = ("gain", "excess_noise_factor", "k_effective", "multiplied_shot_noise_share")
 
 #: Figures of a digital receiver only: an analog design (no bit rate) does not show them.
-BER_FIGURES = ("bit_rate", "target_ber", "sensitivity", "sensitivity_dbm", "bandwidth_for_bit_rate")
+BER_FIGURES = ("bit_rate", "target_ber", "sensitivity", "sensitivity_dbm", "bandwidth_for_bit_rate",
+               "eye_opening", "worst_case_eye_opening", "sensitivity_isi", "sensitivity_isi_dbm",
+               "isi_penalty_db")
 
 _TABLE_ORDER = ("operating point", "speed", "stability", "noise", "sensitivity", "checks")
 

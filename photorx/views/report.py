@@ -190,6 +190,8 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
                          f"<figcaption>{html.escape(caption)}</figcaption></figure>")
         else:
             parts.append(f"<p><em>{html.escape(caption)}</em></p>")
+    if getattr(rx, "bit_rate", None) is not None:  # a digital receiver: its eye at the bit rate
+        parts += eye_section(rx, fmt)
     parts.append(cautions_html(2))
     return html_page(title, "\n".join(parts) + "\n")
 
@@ -210,3 +212,43 @@ def write_report(rx, path, title: str = "photorx receiver report", **options) ->
         ``bias_points`` and ``fmt``, passed on to :func:`build_report`.
     """
     return atomic_write_text(path, build_report(rx, title=title, **options))
+
+
+def eye_section(rx, fmt: str = "png") -> list:
+    """HTML parts of the report's eye section: figures of the PRBS7 eye and the density eye.
+
+    Parameters
+    ----------
+    rx : Receiver
+        A design with a bit rate.
+    fmt : {"png", "svg"}
+        Image format of the embedded eye.
+    """
+    from . import plots
+    from ..units import display_value
+
+    parts = ["<h2>Eye at the bit rate</h2>"]
+    try:
+        eye = rx.eye()
+    except DesignError as exc:
+        return parts + [f"<p><em>not available: {html.escape(str(exc))}</em></p>"]
+    rows = [("vertical eye opening (fraction of ideal)", f"{eye.opening:.4f}"),
+            ("worst-case pattern opening (peak distortion)", f"{eye.worst_case_opening:.4f}"),
+            (f"eye height at BER {eye.target_ber:g}", display_value(eye.height, "V")),
+            (f"eye width at BER {eye.target_ber:g}", display_value(eye.width, "s")),
+            ("ISI jitter, peak to peak", display_value(eye.jitter_pp, "s")),
+            ("sensitivity, noise only",
+             f"{10 * np.log10(eye.sensitivity_noise_only / 1e-3):.2f} dBm"),
+            ("sensitivity with ISI and noise", f"{eye.sensitivity_dbm:.2f} dBm"),
+            ("ISI power penalty", f"{eye.isi_penalty_db:.3f} dB"),
+            ("Personick I2 (noise bandwidth / bit rate)", f"{eye.personick_i2:.4f}")]
+    parts.append("<table><tr><th>figure</th><th>value</th></tr>" + "".join(
+        f"<tr><td>{html.escape(k)}</td><td>{html.escape(v)}</td></tr>" for k, v in rows)
+        + "</table>")
+    uri = plots.figure_to_base64(eye.plot(), fmt)
+    parts.append(f'<figure><img alt="eye diagram" src="{uri}"><figcaption>Density eye of '
+                 f"{eye.modulation.upper()} {eye.pattern.upper()} at "
+                 f"{html.escape(display_value(eye.bit_rate, 'bit/s'))}: the pulse response of "
+                 "the whole chain (photodiode, amplifier, filter) with each level's Gaussian "
+                 "noise; the dotted line is the decision instant.</figcaption></figure>")
+    return parts

@@ -117,3 +117,16 @@ def test_failed_checks_come_first(rx, page):
     section = text[text.index("Failed checks"):text.index("<h2>Design</h2>")]
     assert "phase margin" in section and "45 deg" in section
     assert section.count("<li>") == len(weak.checks().query("not ok"))
+
+
+def test_eye_section_for_a_digital_design_only(rx, page):
+    """The demo has a bit rate: its eye figures (from Receiver.eye, checked in
+    tests/analysis/test_digital.py) and the density eye are in the page; an analog design
+    (no bit rate) has no eye section."""
+    import dataclasses
+
+    eye = rx.eye()
+    section = page[page.index("<h2>Eye at the bit rate</h2>"):]
+    assert f"{eye.isi_penalty_db:.3f} dB" in section and 'alt="eye diagram"' in section
+    analog = report.build_report(dataclasses.replace(rx, bit_rate=None), bias_points=5)
+    assert "Eye at the bit rate" not in analog
