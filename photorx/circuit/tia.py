@@ -314,7 +314,9 @@ class Tia:
         """
         from .metrics import analyze_tia
 
-        return analyze_tia(self, net, **options)
+        metrics = analyze_tia(self, net, **options)
+        object.__setattr__(metrics, "_stage", (self, net))  # for metrics.plot(); not a field
+        return metrics
 
     def step_response(self, net, t=None, n: int = 400):
         """Output after a photocurrent step, relative to its final value: ``(t [s], y)``.

@@ -121,7 +121,7 @@ def plot_step(t, response, ax=None, unit="V", title="Step response", final=None)
     return fig
 
 
-def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by source"):
+def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by source", logy=False):
     """Stacked noise power density by source against frequency.
 
     Parameters
@@ -138,6 +138,8 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
         input-referred densities).
     title : str, optional
         Axes title.
+    logy : bool, optional
+        Logarithmic power axis, from a thousandth of the smallest total (default linear).
 
     Returns
     -------
@@ -152,6 +154,10 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
     prefix, scale = _squared_prefix(np.sum(powers, axis=0) if powers else np.zeros(1))
     a.stackplot(f, *[p / scale for p in powers], labels=[str(k) for k, _ in items], alpha=0.85)
     a.set_xscale("log")
+    total = np.sum(powers, axis=0) / scale if powers else np.zeros(1)
+    if logy and np.any(total > 0):
+        a.set_yscale("log")
+        a.set_ylim(1e-3 * np.min(total[total > 0]), 2.0 * np.max(total))
     a.set_xlabel("frequency")
     a.set_ylabel(f"noise power density [{prefix}{unit}$^2$/Hz]")
     _eng(a.xaxis, "Hz")
