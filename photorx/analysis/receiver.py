@@ -200,3 +200,10 @@ class Receiver:
         from .checks import receiver_checks
 
         return receiver_checks(self)
+
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (and the closed form)."""
+        from ..views.rich import closed_form_latex, parameter_table_html
+
+        latex = closed_form_latex(self)
+        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")

@@ -359,3 +359,16 @@ class Tia:
         from ..analysis.noise_spectrum import tia_noise
 
         return tia_noise(self, net, temperature=temperature, **options)
+
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (and the closed form)."""
+        from ..views.rich import closed_form_latex, parameter_table_html
+
+        latex = closed_form_latex(self)
+        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")
+
+    def _repr_latex_(self):
+        """Jupyter display of the model's closed form with this object's values."""
+        from ..views.rich import closed_form_latex
+
+        return closed_form_latex(self)

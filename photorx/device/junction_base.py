@@ -152,3 +152,16 @@ class JunctionBase:
     def _scalar(self, x):
         return x if np.ndim(x) else float(x)
 
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (and the closed form)."""
+        from ..views.rich import closed_form_latex, parameter_table_html
+
+        latex = closed_form_latex(self)
+        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")
+
+    def _repr_latex_(self):
+        """Jupyter display of the model's closed form with this object's values."""
+        from ..views.rich import closed_form_latex
+
+        return closed_form_latex(self)
+

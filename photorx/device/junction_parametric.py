@@ -203,6 +203,19 @@ class ParametricJunction:
         return self.capacitance(v_r) + diffusion_capacitance(i_forward, transit_time, ideality,
                                                              temperature)
 
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (and the closed form)."""
+        from ..views.rich import closed_form_latex, parameter_table_html
+
+        latex = closed_form_latex(self)
+        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")
+
+    def _repr_latex_(self):
+        """Jupyter display of the model's closed form with this object's values."""
+        from ..views.rich import closed_form_latex
+
+        return closed_form_latex(self)
+
 
 class ParametricFit(NamedTuple):
     """Result of :func:`fit_parametric_junction`; unpacks as ``(junction, residual)``.
