@@ -378,11 +378,18 @@ def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
             match = _HEADER_UNIT.fullmatch(name)
             if unit is None and match:  # "output rms [V]": the unit is in the header
                 name, unit = match.group(1), match.group(2)
+            spot = table.attrs.get("f [Hz]")
+            if name == "input density" and _is_number(spot):  # a spot density: say where
+                name = f"input density at {format_eng(float(spot), 'Hz')}"
             shown[name] = [display_value(v, unit or "") for v in table[col].tolist()]
     return shown
 
 
 _HEADER_UNIT = re.compile(r"(.*\S)\s*\[([^\[\]]+)\]")
+#: A cell that is a number, optionally with one unit word ("1.2 GHz", "-3 dB", "62.5 deg"):
+#: right-aligned. Text that merely starts with a digit ("-3 dB bandwidth", "10-90 % rise
+#: time") stays left-aligned.
+_NUMERIC_CELL = re.compile(r"^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?( [^\s\d][^\s]*)?$")
 
 
 def _html_table(shown: pd.DataFrame) -> str:
@@ -390,7 +397,7 @@ def _html_table(shown: pd.DataFrame) -> str:
     rows = []
     for row in shown.values.tolist():
         cells = "".join(
-            f'<td class="num">{html.escape(c)}</td>' if re.match(r"^[-+]?[\d.]", c)
+            f'<td class="num">{html.escape(c)}</td>' if _NUMERIC_CELL.match(c)
             else f"<td>{html.escape(c)}</td>" for c in row)
         rows.append(f"<tr>{cells}</tr>")
     return (f'<table class="photorx-budget">\n<thead><tr>{head}</tr></thead>\n<tbody>\n'
