@@ -74,7 +74,7 @@ def plot_bode(f, loop_gain=None, closed_loop=None, ax=None, closed_loop_unit="oh
     ax_ph.axhline(-180.0, color="0.6", lw=0.8, ls="--")
     ax_mag.set_ylabel("magnitude [dB]")
     ax_ph.set_ylabel("phase [deg]")
-    ax_ph.set_xlabel("frequency")
+    ax_ph.set_xlabel("frequency [Hz]")
     _eng(ax_ph.xaxis, "Hz")
     ax_mag.legend(loc="best", fontsize="small")
     ax_mag.set_title(title)
@@ -111,8 +111,8 @@ def plot_step(t, response, ax=None, unit="V", title="Step response", final=None)
     if final is not None:
         for level, style in ((1.0, "--"), (0.1, ":"), (0.9, ":")):
             a.axhline(level * final, color="0.6", lw=0.8, ls=style)
-    a.set_xlabel("time")
-    a.set_ylabel("output" + (f" [{unit}]" if unit else " (normalised)"))
+    a.set_xlabel("time [s]")
+    a.set_ylabel("output" + (f" [{unit}]" if unit else " (normalised to the final value)"))
     _eng(a.xaxis, "s")
     if unit:
         _eng(a.yaxis, unit)
@@ -158,7 +158,7 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
     if logy and np.any(total > 0):
         a.set_yscale("log")
         a.set_ylim(1e-3 * np.min(total[total > 0]), 2.0 * np.max(total))
-    a.set_xlabel("frequency")
+    a.set_xlabel("frequency [Hz]")
     a.set_ylabel(f"noise power density [{prefix}{unit}$^2$/Hz]")
     _eng(a.xaxis, "Hz")
     a.legend(loc="upper left", fontsize="small")
@@ -262,7 +262,7 @@ def plot_bias_tradeoff(bias, series, ax=None, mark=None, title="Bias trade-off")
         if mark is not None:
             a.axvline(mark, color="C3", lw=0.8, ls="--")
         a.grid(True, which="both", alpha=0.3)
-    axes[-1].set_xlabel("reverse bias")
+    axes[-1].set_xlabel("reverse bias [V]")
     _eng(axes[-1].xaxis, "V")
     axes[0].set_title(title)
     return fig
