@@ -177,6 +177,19 @@ def parameter_table_html(obj, title: str | None = None) -> str:
 
 
 # -- closed forms ----------------------------------------------------------------------------
+_CLOSED_FORMS = ("AbruptJunction", "LinearlyGradedJunction", "ParametricJunction", "OpAmp",
+                 "Tia")
+_MODEL_FIELDS = {"AbruptJunction": ("na", "nd", "area", "temperature"),
+                 "LinearlyGradedJunction": ("gradient", "area", "temperature"),
+                 "ParametricJunction": ("cj0", "vj", "m"), "OpAmp": ("gbw", "dc_gain"),
+                 "Tia": ("rf", "cf")}
+
+
+def _scalar_model(obj) -> bool:
+    """True when the model's parameters are single numbers (one design, one formula)."""
+    return all(np.ndim(getattr(obj, name)) == 0 for name in _MODEL_FIELDS[type(obj).__name__])
+
+
 def closed_form(obj):
     """The textbook closed form of a model with the object's values, as a sympy equation.
 
@@ -198,6 +211,9 @@ def closed_form(obj):
         ``lhs = rhs`` in the symbol ``V_R`` [V] (junctions) or ``s`` [rad/s]; None for a
         model without a closed form here (or one holding arrays).
     """
+    kind = type(obj).__name__
+    if kind not in _CLOSED_FORMS or not _scalar_model(obj):
+        return None
     import sympy as sp
 
     from ..constants import q
@@ -208,7 +224,6 @@ def closed_form(obj):
             raise ValueError
         return sp.Float(float(a), digits)
 
-    kind = type(obj).__name__
     vr, s = sp.Symbol("V_R"), sp.Symbol("s")
     try:
         if kind == "AbruptJunction":
@@ -276,9 +291,9 @@ def closed_form_latex(obj) -> str | None:
     str or None
         None for a model without a closed form here, or one holding arrays.
     """
-    if closed_form(obj) is None:
-        return None
     kind = type(obj).__name__
+    if kind not in _CLOSED_FORMS or not _scalar_model(obj):
+        return None
     if kind == "AbruptJunction":
         body = (r"C(V_R) = A\sqrt{\frac{q\,\varepsilon_s}{2\,(V_{bi}+V_R)}\,"
                 r"\frac{N_A N_D}{N_A+N_D}}" + _where([
