@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..units import format_eng
 from .plots import _eng, _new_axes, plot_bode, plot_noise_stack
 
 __all__ = ["plot_receiver_result", "plot_tia_metrics", "plot_noise_spectrum", "plot_sweep",
@@ -41,7 +42,10 @@ def _bars(ax, labels, values, unit, title):
     pairs = [(lab, float(v)) for lab, v in zip(labels, values)
              if np.isfinite(float(v)) and float(v) > 0]
     y = np.arange(len(pairs))
-    ax.barh(y, [v for _, v in pairs], color="C0", alpha=0.85)
+    bars = ax.barh(y, [v for _, v in pairs], color="C0", alpha=0.85)
+    ax.bar_label(bars, labels=[format_eng(v, unit) for _, v in pairs], padding=3,
+                 fontsize="small")
+    ax.margins(x=0.25)  # room for the value labels
     ax.set_yticks(y, [lab for lab, _ in pairs])
     ax.invert_yaxis()
     if pairs:
@@ -79,7 +83,7 @@ def plot_receiver_result(result, ax=None):
     from ..analysis.noise import SOURCE_LABELS
 
     _single(result, "ReceiverResult")
-    fig, (a_speed, a_noise, a_power) = _new_axes(ax, 3, figsize=(7.2, 7.4), sharex=False)
+    fig, (a_speed, a_noise, a_power) = _new_axes(ax, 3, figsize=(9.0, 7.6), sharex=False)
     values = result.values
     speed = [(lab, values[k]) for k, lab in GLANCE_SPEED if k in values]
     _bars(a_speed, *zip(*speed), "Hz", "Speed: bandwidth of each part")
@@ -87,7 +91,7 @@ def plot_receiver_result(result, ax=None):
     noise = sorted(result.noise_by_source.items(), key=lambda kv: -float(kv[1]))
     _bars(a_noise, [SOURCE_LABELS.get(k, k) for k, _ in noise], [v for _, v in noise], "A",
           f"Noise: input-referred rms current by source (total "
-          f"{float(values['input_noise_rms']):.3g} A)")
+          f"{format_eng(float(values['input_noise_rms']), 'A')})")
     a_noise.set_xlabel("input-referred noise current [A rms]")
     power = [(lab, values[k]) for k, lab in GLANCE_POWER
              if k in values and k in result._shown()]
@@ -145,7 +149,7 @@ def plot_tia_metrics(metrics, f=None, ax=None):
     if np.isfinite(fc) and fc > 0:
         for a in (ax_mag, ax_ph):
             a.axvline(fc, color="C3", lw=0.8, ls=":")
-        ax_mag.plot([fc], [0.0], "o", color="C3", label=f"crossover {fc:.3g} Hz")
+        ax_mag.plot([fc], [0.0], "o", color="C3", label=f"crossover {format_eng(fc, 'Hz')}")
         if np.isfinite(pm):
             ax_ph.annotate("", xy=(fc, -180.0 + pm), xytext=(fc, -180.0),
                            arrowprops=dict(arrowstyle="<->", color="C3"))
@@ -155,7 +159,7 @@ def plot_tia_metrics(metrics, f=None, ax=None):
     bw = float(metrics.bandwidth)
     if np.isfinite(bw) and bw > 0:
         z0 = 20 * np.log10(abs(float(metrics.dc_transimpedance)))
-        ax_mag.plot([bw], [z0 - 3.0], "s", color="C1", label=f"-3 dB bandwidth {bw:.3g} Hz")
+        ax_mag.plot([bw], [z0 - 3.0], "s", color="C1", label=f"-3 dB bandwidth {format_eng(bw, 'Hz')}")
     ax_mag.legend(loc="best", fontsize="small")
     ax_mag.set_ylabel("magnitude [dB] (T; Zt re 1 ohm)")
     ax_ph.set_xlabel("frequency [Hz]")
@@ -199,6 +203,9 @@ def plot_noise_spectrum(spectrum, f=None, ax=None, referred="output"):
     a = fig.axes[0] if ax is None else ax
     a.set_xlabel("frequency [Hz]")
     a.set_xlim(f[0], f[-1])
+    if ax is None:  # a new figure: the legend beside the axes, not over the layers
+        fig.set_size_inches(9.0, 4.2)
+        a.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize="small")
     return fig
 
 

@@ -389,7 +389,7 @@ _HEADER_UNIT = re.compile(r"(.*\S)\s*\[([^\[\]]+)\]")
 #: A cell that is a number, optionally with one unit word ("1.2 GHz", "-3 dB", "62.5 deg"):
 #: right-aligned. Text that merely starts with a digit ("-3 dB bandwidth", "10-90 % rise
 #: time") stays left-aligned.
-_NUMERIC_CELL = re.compile(r"^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?( [^\s\d][^\s]*)?$")
+_NUMERIC_CELL = re.compile(r"^([<>] )?[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?( [^\s\d][^\s]*)?$")
 
 
 def _html_table(shown: pd.DataFrame) -> str:
