@@ -53,8 +53,11 @@ plot_sweep(df, x="reverse_bias", y=["capacitance", "depletion_width", "dark_curr
         ("markdown", """**A closed form.** For a one-sided abrupt silicon junction the depletion
 approximation gives C = A sqrt(q eps N_eff / (2 (V_bi + V_R))) (Sze and Ng, 3rd ed., 2007,
 eq. 2.12); the object shows its parameters and the formula with its numbers."""),
-        ("code", """abrupt = prx.AbruptJunction(prx.material("Si"), na=1e25, nd=1e21, area=1e-6)
-abrupt"""),
+        ("code", """from IPython.display import Latex, display
+
+abrupt = prx.AbruptJunction(prx.material("Si"), na=1e25, nd=1e21, area=1e-6)
+display(abrupt)
+Latex(abrupt._repr_latex_())"""),
         ("markdown", """**The panel.** Change the junction type, material, dopings, i-layer
 thickness, area or temperature; the table lists the built-in potential, the breakdown
 estimate and the fitted parameters. A saved notebook shows the panel's figure as an image."""),

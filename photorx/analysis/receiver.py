@@ -202,8 +202,8 @@ class Receiver:
         return receiver_checks(self)
 
     def _repr_html_(self):
-        """Jupyter display: a compact parameter table with units (and the closed form)."""
-        from ..views.rich import closed_form_latex, parameter_table_html
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
 
-        latex = closed_form_latex(self)
-        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")
+        return parameter_table_html(self)

@@ -220,11 +220,11 @@ class OpAmp:
         return current_noise_density(f, self.current_noise, self.current_noise_corner)
 
     def _repr_html_(self):
-        """Jupyter display: a compact parameter table with units (and the closed form)."""
-        from ..views.rich import closed_form_latex, parameter_table_html
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
 
-        latex = closed_form_latex(self)
-        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")
+        return parameter_table_html(self)
 
     def _repr_latex_(self):
         """Jupyter display of the model's closed form with this object's values."""

@@ -579,10 +579,10 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
             raise DesignError(msg, parameter=names.get(exc.parameter, exc.parameter)) from None
 
     def _repr_html_(self):
-        """Jupyter display: a compact parameter table with units (and the closed form)."""
-        from ..views.rich import closed_form_latex, parameter_table_html
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
 
-        latex = closed_form_latex(self)
-        return parameter_table_html(self) + (f"<p>{latex}</p>" if latex else "")
+        return parameter_table_html(self)
 
 

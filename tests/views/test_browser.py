@@ -99,9 +99,17 @@ def test_exported_notebook_in_the_browser(browser, tmp_path):
     from nbclient import NotebookClient
     from nbconvert import HTMLExporter
 
+    from ipykernel.kernelspec import write_kernel_spec
+    from jupyter_client.kernelspec import KernelSpecManager
+    from jupyter_client.manager import KernelManager
+
     root = Path(__file__).resolve().parents[2] / "notebooks"
     nb = nbformat.read(root / "03_amplifier_loop.ipynb", as_version=4)
-    NotebookClient(nb, timeout=300, kernel_name="python3",
+    # a kernel of this interpreter, not a "python3" kernel installed elsewhere
+    write_kernel_spec(path=str(tmp_path / "kernels" / "python3"))
+    km = KernelManager(kernel_name="python3",
+                       kernel_spec_manager=KernelSpecManager(kernel_dirs=[str(tmp_path / "kernels")]))
+    NotebookClient(nb, km=km, timeout=300,
                    resources={"metadata": {"path": str(tmp_path)}}).execute()
     nb.metadata.pop("widgets", None)  # saved without widget state
     body, _ = HTMLExporter().from_notebook_node(nb)
