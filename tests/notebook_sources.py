@@ -172,7 +172,8 @@ result.plot()"""),
         ("markdown", """**Noise against Rf.** A larger Rf adds less current noise but narrows the
 bandwidth; the SNR at the operating power shows the balance."""),
         ("code", """rf = prx.sweep(rx, rf=np.geomspace(1e3, 20e3, 21))
-plot_sweep(rf, x="rf", y=["input_noise_rms", "bandwidth", "snr_db"], title="Feedback resistor sweep")"""),
+plot_sweep(rf, x="rf", y=["input_noise_rms", "bandwidth", "snr_db"],
+           title="Feedback resistor sweep")"""),
         ("markdown", """**The panel.** Change the bias, Rf, the optical power and the post filter;
 the table lists every source's share of the total."""),
         ("code", """panel = pw.noise_panel(rx)

@@ -130,7 +130,8 @@ def plot_tia_metrics(metrics, f=None, ax=None):
     """
     stage = getattr(metrics, "_stage", None)
     if stage is None:
-        raise ValueError("TiaMetrics.plot() needs the stage: make the metrics with Tia.analyze(net)")
+        raise ValueError("TiaMetrics.plot() needs the stage: make the metrics with "
+                         "Tia.analyze(net)")
     if np.ndim(metrics.crossover) or np.ndim(metrics.bandwidth):
         raise ValueError("TiaMetrics.plot() draws one design; these metrics hold arrays")
     tia, net = stage
@@ -159,7 +160,8 @@ def plot_tia_metrics(metrics, f=None, ax=None):
     bw = float(metrics.bandwidth)
     if np.isfinite(bw) and bw > 0:
         z0 = 20 * np.log10(abs(float(metrics.dc_transimpedance)))
-        ax_mag.plot([bw], [z0 - 3.0], "s", color="C1", label=f"-3 dB bandwidth {format_eng(bw, 'Hz')}")
+        ax_mag.plot([bw], [z0 - 3.0], "s", color="C1",
+                    label=f"-3 dB bandwidth {format_eng(bw, 'Hz')}")
     ax_mag.legend(loc="best", fontsize="small")
     ax_mag.set_ylabel("magnitude [dB] (T; Zt re 1 ohm)")
     ax_ph.set_xlabel("frequency [Hz]")
@@ -240,7 +242,8 @@ def plot_sweep(df, x, y, units=None, ax=None, title=None):
     ys = [y] if isinstance(y, str) else list(y)
     missing = [c for c in [x, *ys] if c not in df.columns]
     if missing:
-        raise KeyError(f"no column {missing} in the sweep; columns: {', '.join(map(str, df.columns))}")
+        raise KeyError(f"no column {missing} in the sweep; columns: "
+                       f"{', '.join(map(str, df.columns))}")
     known = {**dict(df.attrs.get("units", {})), **dict(units or {})}
     fig, axes = _new_axes(ax, len(ys), figsize=(6.4, 1.9 * len(ys) + 0.8))
     xv = df[x].to_numpy(dtype=float)

@@ -52,7 +52,8 @@ body { font-family: system-ui, sans-serif; margin: 2em auto; max-width: 60em; co
 table.photorx-budget { border-collapse: collapse; margin: 0.5em 0 1.5em 0; }
 table.photorx-budget th, table.photorx-budget td { border-bottom: 1px solid #ccc;
   padding: 0.2em 0.8em; text-align: left; }
-table.photorx-budget td.num { text-align: right; font-variant-numeric: tabular-nums; }
+table.photorx-budget td.num, table.photorx-budget th.num { text-align: right;
+  font-variant-numeric: tabular-nums; }
 section.cautions { border-left: 4px solid #c60; padding-left: 1em; }
 """
 
@@ -393,7 +394,11 @@ _NUMERIC_CELL = re.compile(r"^([<>] )?[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?( [^\
 
 
 def _html_table(shown: pd.DataFrame) -> str:
-    head = "".join(f"<th>{html.escape(str(c))}</th>" for c in shown.columns)
+    # a header sits over its cells: right-aligned over a column of numbers
+    numeric = [sum(bool(_NUMERIC_CELL.match(c)) for c in shown[col]) * 2 > len(shown)
+               for col in shown.columns]
+    head = "".join(f'<th class="num">{html.escape(str(c))}</th>' if num
+                   else f"<th>{html.escape(str(c))}</th>" for c, num in zip(shown.columns, numeric))
     rows = []
     for row in shown.values.tolist():
         cells = "".join(

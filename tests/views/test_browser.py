@@ -107,8 +107,8 @@ def test_exported_notebook_in_the_browser(browser, tmp_path):
     nb = nbformat.read(root / "03_amplifier_loop.ipynb", as_version=4)
     # a kernel of this interpreter, not a "python3" kernel installed elsewhere
     write_kernel_spec(path=str(tmp_path / "kernels" / "python3"))
-    km = KernelManager(kernel_name="python3",
-                       kernel_spec_manager=KernelSpecManager(kernel_dirs=[str(tmp_path / "kernels")]))
+    specs = KernelSpecManager(kernel_dirs=[str(tmp_path / "kernels")])
+    km = KernelManager(kernel_name="python3", kernel_spec_manager=specs)
     NotebookClient(nb, km=km, timeout=300,
                    resources={"metadata": {"path": str(tmp_path)}}).execute()
     nb.metadata.pop("widgets", None)  # saved without widget state

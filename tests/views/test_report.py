@@ -153,7 +153,9 @@ def test_budget_alignment_text_left_numbers_right(page):
     assert "10-90 % rise time of the stage" in left
     assert {"3.3 V", "1310 nm", "63 deg"} <= right
     # the spot density column says where it is taken (ENBW/10 of the demo, about 96 MHz)
-    assert re.search(r"<th>input density at 9\d\.?\d* MHz</th>", page)
+    assert re.search(r'<th class="num">input density at 9\d\.?\d* MHz</th>', page)
+    # headers over numbers are right-aligned with them, over text left-aligned
+    assert '<th class="num">value</th>' in page and "<th>quantity</th>" in page
 
 
 def test_every_report_plot_has_labelled_axes_with_units(rx, monkeypatch):

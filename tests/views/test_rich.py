@@ -115,7 +115,8 @@ def test_junction_closed_forms_match_the_engine():
     np.testing.assert_allclose(_evaluate(graded, v), graded.capacitance(v), rtol=2e-3)
     spice = prx.ParametricJunction(cj0=1.2e-12, vj=0.7, m=0.45)
     np.testing.assert_allclose(_evaluate(spice, v), spice.capacitance(v), rtol=2e-3)
-    assert "N_A N_D" in abrupt._repr_latex_() and r"10^{19}\ \mathrm{cm^{-3}}" in abrupt._repr_latex_()
+    latex = abrupt._repr_latex_()
+    assert "N_A N_D" in latex and r"10^{19}\ \mathrm{cm^{-3}}" in latex
     assert "C_{j0} = 1.2\\ \\mathrm{pF}" in spice._repr_latex_()
     # no closed form for the p-i-n model here (punch-through is piecewise)
     assert prx.demo_receiver().photodiode.junction._repr_latex_() is None
