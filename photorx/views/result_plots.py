@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..errors import DesignError
 from ..units import format_eng
 from .plots import _eng, _new_axes, plot_bode, plot_noise_stack
 
@@ -33,8 +34,9 @@ GLANCE_POWER = (("min_detectable_power", "SNR = 1 (noise floor)"),
 
 def _single(result, name):
     if result.size != 1:
-        raise ValueError(f"{name}.plot() draws one design point, this result holds "
-                         f"{result.size}; draw a sweep with photorx.views.plot_sweep")
+        raise DesignError(f"{name}.plot() draws one design point, this result holds "
+                          f"{result.size}; draw a sweep with photorx.views.plot_sweep",
+                          parameter="result")
 
 
 def _bars(ax, labels, values, unit, title):
@@ -77,7 +79,7 @@ def plot_receiver_result(result, ax=None):
 
     Raises
     ------
-    ValueError
+    photorx.DesignError
         If ``result`` holds more than one design point.
     """
     from ..analysis.noise import SOURCE_LABELS
@@ -236,14 +238,14 @@ def plot_sweep(df, x, y, units=None, ax=None, title=None):
 
     Raises
     ------
-    KeyError
-        If ``x`` or a ``y`` column is missing from ``df``.
+    photorx.DesignError
+        If ``x`` or a ``y`` column is missing from ``df`` (the message lists the columns).
     """
     ys = [y] if isinstance(y, str) else list(y)
     missing = [c for c in [x, *ys] if c not in df.columns]
     if missing:
-        raise KeyError(f"no column {missing} in the sweep; columns: "
-                       f"{', '.join(map(str, df.columns))}")
+        raise DesignError(f"plot_sweep: no column {', '.join(map(repr, missing))} in the "
+                          f"sweep; columns: {', '.join(map(str, df.columns))}", parameter="y")
     known = {**dict(df.attrs.get("units", {})), **dict(units or {})}
     fig, axes = _new_axes(ax, len(ys), figsize=(6.4, 1.9 * len(ys) + 0.8))
     xv = df[x].to_numpy(dtype=float)
