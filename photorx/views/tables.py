@@ -54,6 +54,7 @@ table.photorx-budget th, table.photorx-budget td { border-bottom: 1px solid #ccc
   padding: 0.2em 0.8em; text-align: left; }
 table.photorx-budget td.num, table.photorx-budget th.num { text-align: right;
   font-variant-numeric: tabular-nums; }
+table.photorx-budget td.num { white-space: nowrap; }
 section.cautions { border-left: 4px solid #c60; padding-left: 1em; }
 """
 
