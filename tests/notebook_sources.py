@@ -52,12 +52,16 @@ plot_sweep(df, x="reverse_bias", y=["capacitance", "depletion_width", "dark_curr
            title="Demo p-i-n junction against reverse bias")"""),
         ("markdown", """**A closed form.** For a one-sided abrupt silicon junction the depletion
 approximation gives C = A sqrt(q eps N_eff / (2 (V_bi + V_R))) (Sze and Ng, 3rd ed., 2007,
-eq. 2.12); the object shows its parameters and the formula with its numbers."""),
+eq. 2.12); the object shows its parameters and the formula with its numbers, and its
+capacitance against bias follows the square-root law."""),
         ("code", """from IPython.display import Latex, display
+from photorx.views.plots import plot_curve
 
 abrupt = prx.AbruptJunction(prx.material("Si"), na=1e25, nd=1e21, area=1e-6)
-display(abrupt)
-Latex(abrupt._repr_latex_())"""),
+display(abrupt, Latex(abrupt._repr_latex_()))
+v = np.linspace(0.0, 10.0, 101)
+plot_curve(v, abrupt.capacitance(v), xlabel="reverse bias [V]", ylabel="capacitance [F]",
+           xunit="V", yunit="F", title="Abrupt Si junction: C falls as 1/sqrt(Vbi + V_R)")"""),
         ("markdown", """**The panel.** Change the junction type, material, dopings, i-layer
 thickness, area or temperature; the table lists the built-in potential, the breakdown
 estimate and the fitted parameters. A saved notebook shows the panel's figure as an image."""),

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..errors import DesignError
 from ..units import format_eng
-from .plots import _eng, _new_axes, plot_bode, plot_noise_stack
+from .plots import _eng, _light_log_ticks, _new_axes, plot_bode, plot_noise_stack
 
 __all__ = ["plot_receiver_result", "plot_tia_metrics", "plot_noise_spectrum", "plot_sweep",
            "GLANCE_SPEED", "GLANCE_POWER"]
@@ -100,6 +100,7 @@ def plot_receiver_result(result, ax=None):
     _bars(a_power, *zip(*power), "W", "Sensitivity: optical power levels")
     a_power.set_xlabel("average optical power [W]")
     fig.suptitle("Receiver at a glance")
+    _light_log_ticks(fig)
     return fig
 
 
@@ -167,6 +168,7 @@ def plot_tia_metrics(metrics, f=None, ax=None):
     ax_mag.legend(loc="best", fontsize="small")
     ax_mag.set_ylabel("magnitude [dB] (T; Zt re 1 ohm)")
     ax_ph.set_xlabel("frequency [Hz]")
+    _light_log_ticks(fig)
     return fig
 
 
@@ -210,6 +212,7 @@ def plot_noise_spectrum(spectrum, f=None, ax=None, referred="output"):
     if ax is None:  # a new figure: the legend beside the axes, not over the layers
         fig.set_size_inches(9.0, 4.2)
         a.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize="small")
+    _light_log_ticks(fig)
     return fig
 
 
