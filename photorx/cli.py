@@ -323,10 +323,14 @@ def _cmd_sweep(args) -> int:
                               f"{', '.join(frame.columns)}", parameter="columns")
         keep = list(dict.fromkeys([c.replace("__", ".") for c in axes] + wanted))
         frame = frame[[c for c in keep if c in frame.columns]]
-    # figures that do not exist (no post filter, no phase crossover) read "none", as in the
-    # budget exports (pandas: read_csv(..., na_values=["none"]))
-    frame = frame.replace([np.inf, -np.inf], np.nan)
-    _write_or_print(frame.to_csv(index=False, lineterminator="\n", na_rep="none"), args.output)
+    # headers carry the SI unit ("bandwidth [Hz]"); figures that do not exist (no post
+    # filter, no phase crossover) read "none", as in the budget exports
+    # (photorx.views.read_sweep_csv reads both back)
+    from .analysis.sweep import column_units
+    from .views.sweep_units import sweep_csv_text
+
+    frame.attrs["units"] = column_units(frame.columns)
+    _write_or_print(sweep_csv_text(frame), args.output)
     return EXIT_OK
 
 
@@ -517,10 +521,11 @@ def build_parser() -> argparse.ArgumentParser:
                                    "and write one CSV row per point. Axes: START:STOP:N, "
                                    "START:STOP:N:log or a comma list; values in SI or with "
                                    "units ('1 kohm:100 kohm:21:log').",
-                       epilog="The CSV columns hold SI values without prefixes: V, m, W, K, "
-                              "F, A, ohm, Hz, s, W/rtHz (NEP), A/rtHz (densities); "
-                              "phase_margin in deg, *_db and snr_db in dB, sensitivity_dbm "
-                              "in dBm, noise_* are input-referred rms currents in A. "
+                       epilog="Each CSV header names its column's SI unit, "
+                              "'bandwidth [Hz]', 'nep [W/rtHz]' (bare for ratios, flags and "
+                              "text); values are SI numbers without prefixes, 'none' where a "
+                              "figure does not exist; noise_* are input-referred rms "
+                              "currents in A. Read back with photorx.views.read_sweep_csv. "
                               "Negative values may follow the option directly "
                               "(--temperature -20degC:60degC:9).")
     p.add_argument("design", nargs="?", help=design_help)

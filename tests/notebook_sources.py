@@ -1,7 +1,9 @@
 """Source of the notebooks in notebooks/: run ``python tests/notebook_sources.py`` to rewrite them.
 
-The notebooks are thin: a short explanation of the stage, then a panel of
-:mod:`photorx.views.widgets` built on a demo design. They are stored with outputs cleared;
+Each stage notebook is a worked study: a short explanation, two or three computed cells
+whose plots display statically (a saved or exported notebook shows them without a kernel),
+then a panel of :mod:`photorx.views.widgets` built on a demo design (the panel also
+carries a static image of its figure). They are stored with outputs cleared;
 tests/test_notebooks.py checks that and executes each one. Not collected by pytest.
 """
 
@@ -32,13 +34,38 @@ In forward bias the stored minority carriers add a diffusion capacitance that so
 the depletion capacitance. Circuit simulators describe the junction by three numbers, Cj0,
 Vj and m in Cj0 / (1 + V_R/Vj)^m; the panel fits them to the physical model.
 
-The panel starts from the junction of the demo design (an invented InGaAs p-i-n diode).
-Change the junction type, material, dopings, i-layer thickness, area or temperature; the
-table lists the built-in potential, the breakdown estimate and the fitted parameters."""),
+This study starts from the junction of the demo design (an invented InGaAs p-i-n diode):
+its parameters, then its capacitance and depletion width against bias, then an abrupt
+silicon junction with its textbook closed form, and finally the interactive panel."""),
         ("code", _SETUP + """
+import numpy as np
+from photorx.views import plot_sweep
 
 rx = prx.demo_receiver()
-panel = pw.junction_panel(rx)
+rx.photodiode.junction"""),
+        ("markdown", """**Capacitance against bias.** The receiver is evaluated over a bias sweep in
+one vectorised call; every column keeps its SI unit (`df.attrs["units"]`), so the panels are
+labelled without further work. The p-i-n capacitance flattens once the i-layer is depleted;
+the dark current rises with the depleted volume."""),
+        ("code", """df = prx.sweep(rx, reverse_bias=np.linspace(0.0, 10.0, 41))
+plot_sweep(df, x="reverse_bias", y=["capacitance", "depletion_width", "dark_current"],
+           title="Demo p-i-n junction against reverse bias")"""),
+        ("markdown", """**A closed form.** For a one-sided abrupt silicon junction the depletion
+approximation gives C = A sqrt(q eps N_eff / (2 (V_bi + V_R))) (Sze and Ng, 3rd ed., 2007,
+eq. 2.12); the object shows its parameters and the formula with its numbers, and its
+capacitance against bias follows the square-root law."""),
+        ("code", """from IPython.display import Latex, display
+from photorx.views.plots import plot_curve
+
+abrupt = prx.AbruptJunction(prx.material("Si"), na=1e25, nd=1e21, area=1e-6)
+display(abrupt, Latex(abrupt._repr_latex_()))
+v = np.linspace(0.0, 10.0, 101)
+plot_curve(v, abrupt.capacitance(v), xlabel="reverse bias [V]", ylabel="capacitance [F]",
+           xunit="V", yunit="F", title="Abrupt Si junction: C falls as 1/sqrt(Vbi + V_R)")"""),
+        ("markdown", """**The panel.** Change the junction type, material, dopings, i-layer
+thickness, area or temperature; the table lists the built-in potential, the breakdown
+estimate and the fitted parameters. A saved notebook shows the panel's figure as an image."""),
+        ("code", """panel = pw.junction_panel(rx)
 panel"""),
         ("markdown", """The controls can also be driven from code, for example to compare the
 three junction types at the same area; the fitted parametric junction is kept on the panel:"""),
@@ -57,12 +84,29 @@ capacitance with its load. The dark current has a diffusion part, a generation p
 grows with the depleted volume, and surface leakage; all of them rise steeply with
 temperature.
 
-This notebook uses the invented silicon p-i-n receiver at 850 nm. Move the bias,
-wavelength, temperature and load to see each figure change."""),
+This study uses the invented silicon p-i-n receiver at 850 nm: its photodiode, the
+spectral response, the speed and dark current against bias, then the interactive panel."""),
         ("code", _SETUP + """
+import numpy as np
+from photorx.views import plot_sweep
 
 rx = prx.load_design("si-pin-850")
-panel = pw.photodiode_panel(rx)
+rx.photodiode"""),
+        ("markdown", """**Spectral response.** Silicon absorbs weakly towards its band edge near
+1.1 um, so the quantum efficiency and the responsivity fall off there; at short wavelengths
+the light is absorbed close to the surface."""),
+        ("code", """spectrum = prx.sweep(rx, wavelength=np.linspace(400e-9, 1100e-9, 36))
+plot_sweep(spectrum, x="wavelength", y=["responsivity", "quantum_efficiency"],
+           title="Spectral response at the operating bias")"""),
+        ("markdown", """**Speed and dark current against bias.** Once the i-layer is depleted the
+capacitance stops falling; the photodiode's own bandwidth and the receiver's bandwidth
+follow."""),
+        ("code", """bias = prx.sweep(rx, reverse_bias=np.linspace(0.0, 20.0, 41))
+plot_sweep(bias, x="reverse_bias", y=["capacitance", "photodiode_bandwidth", "bandwidth",
+                                      "dark_current"], title="Against reverse bias")"""),
+        ("markdown", """**The panel.** Move the bias, wavelength, temperature and load to see each
+figure change. High bias voltages need current limiting; see the cautions in the README."""),
+        ("code", """panel = pw.photodiode_panel(rx)
 panel"""),
     ],
     "03_amplifier_loop.ipynb": [
@@ -74,14 +118,28 @@ so the loop gain T = A beta reaches 0 dB with an extra lag: without a feedback c
 the loop rings or oscillates. A small Cf across Rf puts a pole in the noise gain and
 restores the phase margin, at the price of some bandwidth.
 
-The Bode plot shows the open-loop gain, the noise gain and the loop gain; the closed-loop
-response, the step response and the margins follow each change of Rf, Cf, the amplifier's
-gain-bandwidth product and the reverse bias (which sets the diode capacitance). The
-*design Cf* button chooses Cf on the full model for the target you pick."""),
+This study draws the demo design's loop (Bode plot with the crossover and the phase margin
+marked), sweeps Cf to show the trade between margin and bandwidth, and ends with the
+interactive panel, whose *design Cf* button chooses Cf on the full model."""),
         ("code", _SETUP + """
+import numpy as np
+from photorx.views import plot_sweep
 
 rx = prx.demo_receiver()
-panel = pw.loop_panel(rx)
+rx.tia"""),
+        ("markdown", """**The loop at the operating point.** `Tia.analyze` returns the figures of
+merit; their `.plot()` draws the loop gain and the closed-loop transimpedance."""),
+        ("code", """metrics = rx.tia.analyze(rx.equivalent_circuit())
+metrics.plot()"""),
+        ("markdown", """**Cf against margin and bandwidth.** More Cf buys phase margin (less peaking
+and overshoot) and costs bandwidth."""),
+        ("code", """loop = prx.sweep(rx, cf=np.geomspace(20e-15, 200e-15, 25))
+plot_sweep(loop, x="cf", y=["phase_margin", "peaking_db", "bandwidth"],
+           title="Feedback capacitor sweep")"""),
+        ("markdown", """**The panel.** The Bode plot shows the open-loop gain, the noise gain and
+the loop gain; the closed-loop response, the step response and the margins follow each
+change of Rf, Cf, the gain-bandwidth product and the reverse bias."""),
+        ("code", """panel = pw.loop_panel(rx)
 panel"""),
         ("markdown", """The same design step from code: choose Cf for a 60 degree phase margin and
 read the loop figures."""),
@@ -100,12 +158,29 @@ powers add: the stacked plot shows which one dominates where. Integrated over th
 response of the stage and its post filter, they give the input-referred noise current,
 the noise-equivalent power and the signal-to-noise ratio.
 
-Change the bias, Rf, the optical power and the post filter; the table lists every source's
-share of the total."""),
+This study draws the demo design's noise spectrum from the lower limit of the noise
+integration, the receiver at a glance, and the noise against Rf, then the interactive
+panel."""),
         ("code", _SETUP + """
+import numpy as np
+from photorx.views import plot_sweep
 
 rx = prx.demo_receiver()
-panel = pw.noise_panel(rx)
+noise = rx.noise()
+noise.plot()"""),
+        ("markdown", """**The receiver at a glance.** The bandwidth of each part of the chain, the
+input-referred noise of each source and the optical power levels, all from one
+evaluation."""),
+        ("code", """result = rx.evaluate()
+result.plot()"""),
+        ("markdown", """**Noise against Rf.** A larger Rf adds less current noise but narrows the
+bandwidth; the SNR at the operating power shows the balance."""),
+        ("code", """rf = prx.sweep(rx, rf=np.geomspace(1e3, 20e3, 21))
+plot_sweep(rf, x="rf", y=["input_noise_rms", "bandwidth", "snr_db"],
+           title="Feedback resistor sweep")"""),
+        ("markdown", """**The panel.** Change the bias, Rf, the optical power and the post filter;
+the table lists every source's share of the total."""),
+        ("code", """panel = pw.noise_panel(rx)
 panel"""),
     ],
     "05_bias_tradeoff.ipynb": [

@@ -17,6 +17,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from photorx.views import read_sweep_csv  # noqa: E402
 from photorx import __version__
 from photorx.cli import main, parse_axis, parse_constraint
 from photorx.errors import DesignError
@@ -231,8 +232,12 @@ def test_sweep_to_csv(capsys, tmp_path):
     code, _, err = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--rf", "1 kohm,3 kohm",
                        "--columns", "bandwidth,phase_margin", "-o", str(target), "--quiet")
     assert code == 0 and "sweep [" not in err
-    df = pd.read_csv(target)
+    assert target.read_text().splitlines()[0] == \
+        "reverse_bias [V],rf [ohm],bandwidth [Hz],phase_margin [deg]"  # units in the headers
+    df = read_sweep_csv(target)
     assert list(df.columns) == ["reverse_bias", "rf", "bandwidth", "phase_margin"]
+    assert df.attrs["units"] == {"reverse_bias": "V", "rf": "ohm", "bandwidth": "Hz",
+                                 "phase_margin": "deg"}
     assert len(df) == 12
     np.testing.assert_allclose(sorted(set(df["reverse_bias"])), np.linspace(0, 5, 6), rtol=0)
     assert set(df["rf"]) == {1e3, 3e3}
@@ -242,7 +247,7 @@ def test_sweep_progress_and_stdout(capsys):
     code, out, err = run(capsys, "sweep", "--axis", "cf=20e-15:80e-15:4", "--columns",
                          "phase_margin", "--progress-threshold", "1")
     assert code == 0 and "sweep [" in err and "4/4 points" in err
-    df = pd.read_csv(__import__("io").StringIO(out))
+    df = read_sweep_csv(out)
     assert len(df) == 4 and "cf" in df.columns
 
 
@@ -298,7 +303,7 @@ def test_negative_values_follow_options(capsys):
     code, out, err = run(capsys, "sweep", "--temperature", "-10 degC,20 degC", "--columns",
                          "dark_current", "-q")
     assert code == 0, err
-    frame = pd.read_csv(__import__("io").StringIO(out))
+    frame = read_sweep_csv(out)
     # degC to K: T[K] = T[degC] + 273.15 (SI brochure, 9th ed., 2019, sec. 2.3.1)
     np.testing.assert_allclose(frame["temperature"], [263.15, 293.15], rtol=0, atol=1e-12)
     code, _, err = run(capsys, "sweep", "--rf", "-1k:2k:3")
@@ -466,7 +471,7 @@ def test_sweep_max_points_raises_or_lowers_the_cap(capsys):
     assert code == 2 and "more than --max-points 5" in err
     code, out, _ = run(capsys, "sweep", "--reverse-bias", "0:5:6", "--max-points", "6",
                        "--columns", "bandwidth", "-q")
-    assert code == 0 and len(pd.read_csv(__import__("io").StringIO(out))) == 6
+    assert code == 0 and len(read_sweep_csv(out)) == 6
 
 
 def test_sweep_progress_bar_is_tqdm(capsys, monkeypatch):

@@ -20,6 +20,9 @@ from notebook_sources import NOTEBOOKS, build  # noqa: E402  (tests/ is on sys.p
 
 NOTEBOOK_DIR = Path(__file__).resolve().parents[1] / "notebooks"
 EXPECTED = sorted(NOTEBOOKS)
+#: The stage notebooks written as worked studies (computed cells with plots, then the panel).
+STUDIES = ("01_junction.ipynb", "02_photodiode.ipynb", "03_amplifier_loop.ipynb",
+           "04_noise.ipynb")
 WIDGET_MIME = "application/vnd.jupyter.widget-view+json"
 ERROR_STYLE = "color:#b00020"  # how photorx.views.widgets_base marks an error message
 
@@ -74,7 +77,7 @@ def test_stored_with_outputs_cleared_and_in_step_with_source(name):
     fresh = build(name)
     assert [(c.cell_type, c.source) for c in nb.cells] == \
         [(c.cell_type, c.source) for c in fresh.cells]
-    # thin notebooks: an explanation first, every panel built by photorx.views.widgets
+    # an explanation first, every panel built by photorx.views.widgets, no code defined
     assert nb.cells[0].cell_type == "markdown" and len(nb.cells[0].source) > 400
     code = "\n".join(c.source for c in nb.cells if c.cell_type == "code")
     assert "pw." in code and "_panel(" in code
@@ -102,6 +105,15 @@ def test_notebook_executes_without_error(name, kernel_dirs, tmp_path):
     assert "Traceback" not in stderr and "Error" not in stderr, stderr
     # the panel was displayed as a widget, and its message area shows no error
     assert any(WIDGET_MIME in o.get("data", {}) for o in outs), name
+    # a saved notebook shows figures without a kernel: the panel carries a static image
+    # beside its widget view, and each stage study draws at least two plots of its own
+    panel_images = [o for o in outs if WIDGET_MIME in o.get("data", {})
+                    and "image/png" in o["data"]]
+    assert panel_images, name
+    if name in STUDIES:
+        static = [o for o in outs if "image/png" in o.get("data", {})
+                  and WIDGET_MIME not in o["data"]]
+        assert len(static) >= 2, (name, len(static))
     state = done.metadata["widgets"]["application/vnd.jupyter.widget-state+json"]["state"]
     texts = [m["state"].get("value") or "" for m in state.values()
              if m.get("model_name") in ("HTMLModel", "HTMLMathModel")]

@@ -392,40 +392,25 @@ class NoiseSpectrum:
 
     # -- display --------------------------------------------------------------------------
     def plot(self, ax=None, f=None, referred="output"):
-        """Stacked noise power density by source (powers add) versus frequency.
+        """Stacked noise power density by source (powers add) versus frequency, log axes.
 
         Parameters
         ----------
         ax : matplotlib.axes.Axes, optional
+            Axes to draw into; by default a new Figure is made.
         f : array_like, optional
-            Frequency grid [Hz]; default from the band start to 100 x ENBW.
+            Frequency grid [Hz]; default from the integration's lower limit ``f_lo`` to
+            100 x ENBW.
         referred : {"output", "input", "input_midband"}
+            Where the densities are referred (default ``"output"``, V^2/Hz; else A^2/Hz).
 
         Returns
         -------
-        matplotlib.axes.Axes
+        matplotlib.figure.Figure
         """
-        import matplotlib.pyplot as plt
+        from ..views.result_plots import plot_noise_spectrum
 
-        if ax is None:
-            _, ax = plt.subplots()
-        if f is None:
-            lo = max(self.f_lo, 1e-3 * self.enbw() * 1e-3)
-            f = np.logspace(np.log10(lo), np.log10(100.0 * self.enbw()), 400)
-        dens = self.by_source(f, referred)
-        keep = [k for k, v in dens.items() if np.any(v > 0)]
-        ax.stackplot(
-            f, *[dens[k] ** 2 for k in keep], labels=[SOURCE_LABELS.get(k, k) for k in keep]
-        )
-        ax.set_xscale("log")
-        ax.set_xlabel("frequency [Hz]")
-        ax.set_ylabel(
-            "output noise PSD [V$^2$/Hz]"
-            if referred == "output"
-            else "input-referred noise PSD [A$^2$/Hz]"
-        )
-        ax.legend(loc="best", fontsize="small")
-        return ax
+        return plot_noise_spectrum(self, f=f, ax=ax, referred=referred)
 
     def _repr_html_(self):
         df = self.budget()

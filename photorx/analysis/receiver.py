@@ -263,3 +263,10 @@ class Receiver:
 
         return receiver_eye(self, bit_rate=bit_rate, pattern=pattern, modulation=modulation,
                             samples_per_symbol=samples_per_symbol)
+
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
+
+        return parameter_table_html(self)

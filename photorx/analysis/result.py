@@ -246,3 +246,21 @@ class ReceiverResult:
             f"<tr><td>{FIGURES[k][2]}</td><td>{display_value(frame[k].iloc[0], FIGURES[k][0])}</td></tr>"
             for k in self._shown() if k in frame)
         return f"<table><tr><th>figure</th><th>value</th></tr>{rows}</table>"
+
+    def plot(self, ax=None):
+        """The receiver at a glance: speed limits, noise by source, optical power levels.
+
+        See :func:`photorx.views.result_plots.plot_receiver_result`.
+
+        Parameters
+        ----------
+        ax : sequence of three matplotlib.axes.Axes, optional
+            Axes for the speed, noise and power panels; by default a new Figure.
+
+        Returns
+        -------
+        matplotlib.figure.Figure
+        """
+        from ..views.result_plots import plot_receiver_result
+
+        return plot_receiver_result(self, ax=ax)

@@ -17,7 +17,7 @@ import pandas as pd
 from ..errors import DesignError
 from .parameters import resolve_parameter, with_parameters
 
-__all__ = ["sweep", "grid"]
+__all__ = ["sweep", "grid", "column_units"]
 
 #: Grids larger than this are evaluated in chunks (memory: each point carries a frequency grid).
 #: Each chunk pays the fixed cost of one evaluation (some 20 ms of Python and small-array
@@ -93,7 +93,9 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     -------
     pandas.DataFrame
         One row per grid point: the swept parameters first, then every scalar figure of
-        :class:`~photorx.analysis.receiver.ReceiverResult`.
+        :class:`~photorx.analysis.receiver.ReceiverResult`. ``attrs["units"]`` maps every
+        column to its SI unit (``""`` for numbers without one and for text), see
+        :func:`column_units`.
 
     Examples
     --------
@@ -148,7 +150,9 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
             progress(min(start + size, total), total)
     for column, labels in text_labels.items():  # categorical: one small integer per row
         columns[column] = pd.Categorical.from_codes(columns[column], categories=list(labels))
-    return pd.DataFrame(columns, copy=False)
+    frame = pd.DataFrame(columns, copy=False)
+    frame.attrs["units"] = column_units(frame.columns)
+    return frame
 
 
 def sweep_points(receiver, points) -> pd.DataFrame:
@@ -164,3 +168,41 @@ def sweep_points(receiver, points) -> pd.DataFrame:
 
 def _n_points(axes) -> int:  # pragma: no cover - helper for callers sizing progress bars
     return math.prod(len(np.atleast_1d(v)) for v in axes.values())
+
+
+
+def column_units(columns) -> dict:
+    """SI unit of each sweep column: a receiver figure, a noise source or a design parameter.
+
+    Figures take their unit from :data:`~photorx.analysis.result.FIGURES`, ``noise_<source>``
+    columns are input-referred rms currents [A], swept parameters (dotted paths allowed)
+    take the unit of their design-file key; anything else is ``""``.
+
+    Parameters
+    ----------
+    columns : iterable of str
+        Column names of a sweep table.
+
+    Returns
+    -------
+    dict of str to str
+        Column -> unit (pint syntax, e.g. ``"Hz"``, ``"A/rtHz"``, ``"m^2"``).
+    """
+    from ..designschema import SCHEMA
+    from .result import FIGURES
+
+    parameters = {}
+    for key in SCHEMA:
+        if key.unit is not None:
+            parameters.setdefault(key.arg, key.unit)
+    units = {}
+    for column in columns:
+        name = str(column)
+        leaf = name.split(".")[-1]
+        if name in FIGURES:
+            units[name] = FIGURES[name][0]
+        elif name.startswith("noise_"):
+            units[name] = "A"
+        else:
+            units[name] = parameters.get(leaf, FIGURES.get(leaf, ("",))[0])
+    return units

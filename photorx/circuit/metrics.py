@@ -397,6 +397,27 @@ class TiaMetrics:
         return ("<table><thead><tr><th>figure</th><th>value</th></tr></thead><tbody>"
                 + "".join(rows) + "</tbody></table>")
 
+    def plot(self, ax=None, f=None):
+        """Bode plot of the loop gain and closed loop, crossover and phase margin marked.
+
+        Needs the stage: metrics made by :meth:`photorx.Tia.analyze` remember it. See
+        :func:`photorx.views.result_plots.plot_tia_metrics`.
+
+        Parameters
+        ----------
+        ax : pair of matplotlib.axes.Axes, optional
+            (magnitude axes, phase axes); by default a new Figure.
+        f : array_like, optional
+            Frequency grid [Hz]; default seven decades up to 30 x the crossover.
+
+        Returns
+        -------
+        matplotlib.figure.Figure
+        """
+        from ..views.result_plots import plot_tia_metrics
+
+        return plot_tia_metrics(self, f=f, ax=ax)
+
 
 def analyze_tia(tia, net, settling_tolerance=0.01):
     """Figures of merit of ``tia`` loaded by the photodiode circuit ``net``.

@@ -314,7 +314,9 @@ class Tia:
         """
         from .metrics import analyze_tia
 
-        return analyze_tia(self, net, **options)
+        metrics = analyze_tia(self, net, **options)
+        object.__setattr__(metrics, "_stage", (self, net))  # for metrics.plot(); not a field
+        return metrics
 
     def step_response(self, net, t=None, n: int = 400):
         """Output after a photocurrent step, relative to its final value: ``(t [s], y)``.
@@ -357,3 +359,16 @@ class Tia:
         from ..analysis.noise_spectrum import tia_noise
 
         return tia_noise(self, net, temperature=temperature, **options)
+
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
+
+        return parameter_table_html(self)
+
+    def _repr_latex_(self):
+        """Jupyter display of the model's closed form with this object's values."""
+        from ..views.rich import closed_form_latex
+
+        return closed_form_latex(self)

@@ -152,3 +152,16 @@ class JunctionBase:
     def _scalar(self, x):
         return x if np.ndim(x) else float(x)
 
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
+
+        return parameter_table_html(self)
+
+    def _repr_latex_(self):
+        """Jupyter display of the model's closed form with this object's values."""
+        from ..views.rich import closed_form_latex
+
+        return closed_form_latex(self)
+

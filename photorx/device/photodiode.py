@@ -578,6 +578,13 @@ class Photodiode(OpticsRoutes, DarkCurrentRoutes, SpeedRoutes):
                 msg = msg.replace(old, new)
             raise DesignError(msg, parameter=names.get(exc.parameter, exc.parameter)) from None
 
+    def _repr_html_(self):
+        """Jupyter display: a compact parameter table with units (the closed form, where
+        there is one, is the LaTeX display)."""
+        from ..views.rich import parameter_table_html
+
+        return parameter_table_html(self)
+
 
 
     @classmethod

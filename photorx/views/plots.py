@@ -37,6 +37,20 @@ def _eng(axis, unit: str):
     axis.set_major_formatter(EngFormatter(unit=unit, sep=" "))
 
 
+def _light_log_ticks(fig):
+    """Minor ticks at 2 and 5 of each decade on every log axis of ``fig``.
+
+    The default eight minor ticks a decade cost most of the drawing time of a many-decade
+    plot (seconds for a Bode plot) and show little more; matplotlib's LogLocator.
+    """
+    from matplotlib.ticker import LogLocator
+
+    for ax in fig.axes:
+        for axis, scale in ((ax.xaxis, ax.get_xscale()), (ax.yaxis, ax.get_yscale())):
+            if scale == "log":
+                axis.set_minor_locator(LogLocator(base=10.0, subs=(2.0, 5.0)))
+
+
 def plot_bode(f, loop_gain=None, closed_loop=None, ax=None, closed_loop_unit="ohm",
               title="Loop gain and closed-loop response"):
     """Bode plot of the loop gain and/or the closed-loop response.
@@ -74,12 +88,13 @@ def plot_bode(f, loop_gain=None, closed_loop=None, ax=None, closed_loop_unit="oh
     ax_ph.axhline(-180.0, color="0.6", lw=0.8, ls="--")
     ax_mag.set_ylabel("magnitude [dB]")
     ax_ph.set_ylabel("phase [deg]")
-    ax_ph.set_xlabel("frequency")
+    ax_ph.set_xlabel("frequency [Hz]")
     _eng(ax_ph.xaxis, "Hz")
     ax_mag.legend(loc="best", fontsize="small")
     ax_mag.set_title(title)
     for a in (ax_mag, ax_ph):
         a.grid(True, which="both", alpha=0.3)
+    _light_log_ticks(fig)
     return fig
 
 
@@ -111,8 +126,8 @@ def plot_step(t, response, ax=None, unit="V", title="Step response", final=None)
     if final is not None:
         for level, style in ((1.0, "--"), (0.1, ":"), (0.9, ":")):
             a.axhline(level * final, color="0.6", lw=0.8, ls=style)
-    a.set_xlabel("time")
-    a.set_ylabel("output" + (f" [{unit}]" if unit else " (normalised)"))
+    a.set_xlabel("time [s]")
+    a.set_ylabel("output" + (f" [{unit}]" if unit else " (normalised to the final value)"))
     _eng(a.xaxis, "s")
     if unit:
         _eng(a.yaxis, unit)
@@ -121,7 +136,7 @@ def plot_step(t, response, ax=None, unit="V", title="Step response", final=None)
     return fig
 
 
-def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by source"):
+def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by source", logy=False):
     """Stacked noise power density by source against frequency.
 
     Parameters
@@ -138,6 +153,8 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
         input-referred densities).
     title : str, optional
         Axes title.
+    logy : bool, optional
+        Logarithmic power axis, from a hundredth of the median total (default linear).
 
     Returns
     -------
@@ -152,12 +169,19 @@ def plot_noise_stack(f, densities, ax=None, unit="V", title="Output noise by sou
     prefix, scale = _squared_prefix(np.sum(powers, axis=0) if powers else np.zeros(1))
     a.stackplot(f, *[p / scale for p in powers], labels=[str(k) for k, _ in items], alpha=0.85)
     a.set_xscale("log")
-    a.set_xlabel("frequency")
+    total = np.sum(powers, axis=0) / scale if powers else np.zeros(1)
+    if logy and np.any(total > 0):
+        # down to a hundredth of the typical (median) level: the layers that matter stay
+        # readable, the roll-off far above the band leaves the axes
+        a.set_yscale("log")
+        a.set_ylim(1e-2 * np.median(total[total > 0]), 2.0 * np.max(total))
+    a.set_xlabel("frequency [Hz]")
     a.set_ylabel(f"noise power density [{prefix}{unit}$^2$/Hz]")
     _eng(a.xaxis, "Hz")
     a.legend(loc="upper left", fontsize="small")
     a.set_title(title)
     a.grid(True, which="both", alpha=0.3)
+    _light_log_ticks(fig)
     return fig
 
 
@@ -217,6 +241,7 @@ def plot_curve(x, y, ax=None, xlabel="", ylabel="", xunit="", yunit="", mark=Non
     if title:
         a.set_title(title)
     a.grid(True, which="both", alpha=0.3)
+    _light_log_ticks(fig)
     return fig
 
 
@@ -256,9 +281,10 @@ def plot_bias_tradeoff(bias, series, ax=None, mark=None, title="Bias trade-off")
         if mark is not None:
             a.axvline(mark, color="C3", lw=0.8, ls="--")
         a.grid(True, which="both", alpha=0.3)
-    axes[-1].set_xlabel("reverse bias")
+    axes[-1].set_xlabel("reverse bias [V]")
     _eng(axes[-1].xaxis, "V")
     axes[0].set_title(title)
+    _light_log_ticks(fig)
     return fig
 
 

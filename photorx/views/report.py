@@ -19,7 +19,7 @@ from .cautions import cautions_html
 from .report_apd import apd_section
 from .tables import html_page
 
-__all__ = ["build_report", "write_report", "report_figures"]
+__all__ = ["build_report", "write_report", "report_figures", "SECTIONS"]
 
 
 def _scalar(value) -> float:
@@ -104,15 +104,15 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
     if cap is not None:
         at = float(np.interp(v0, bias, cap))
         add("Operating point: capacitance against bias",
-            lambda: plots.plot_curve(bias, cap, xlabel="reverse bias", ylabel="capacitance",
-                                     xunit="V", yunit="F", mark=(v0, at),
+            lambda: plots.plot_curve(bias, cap, xlabel="reverse bias [V]",
+                                     ylabel="capacitance [F]", xunit="V", yunit="F", mark=(v0, at),
                                      title="Photodiode capacitance"),
             "Total photodiode capacitance; the dot is the operating bias.")
     add("Loop gain and closed-loop response",
-        lambda: plots.plot_bode(f, loop_gain=rx.tia.loop_gain(f, net),
-                                closed_loop=rx.tia.transimpedance(f, net)),
-        "Loop gain T = A*beta (its 0 dB crossing sets the phase margin) and the closed-loop "
-        "transimpedance in dB re 1 ohm.")
+        lambda: rx.tia.analyze(net).plot(f=f),
+        "Loop gain T = A*beta (its 0 dB crossing, marked, sets the phase margin, drawn as the "
+        "gap to -180 deg) and the closed-loop transimpedance in dB re 1 ohm with its -3 dB "
+        "bandwidth.")
 
     def make_step():
         t, y = _step_response(rx, net)
@@ -123,23 +123,17 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
         "value; dotted lines at 10 % and 90 %.")
 
     ns = _noise(rx, net)
-    fn = f[f >= _scalar(getattr(rx, "noise_band_low", 1.0))]
-
-    def make_noise():
-        from ..analysis.noise import SOURCE_LABELS
-
-        dens = {SOURCE_LABELS.get(k, k): v for k, v in ns.by_source(fn).items()
-                if np.any(np.asarray(v) > 0)}  # sources that contribute nothing are left out
-        return plots.plot_noise_stack(fn, dens, unit="V")
-    add("Output noise density by source", make_noise,
-        "Noise power density of each source at the output (stacked: uncorrelated powers add).")
+    add("Output noise density by source", lambda: ns.plot(),
+        f"Noise power density of each source at the output (stacked: uncorrelated powers "
+        f"add), from {ns.f_lo:g} Hz, the lower limit of the noise integration, to 100 times "
+        f"the equivalent noise bandwidth.")
 
     series = [(label, col(name), unit, log) for label, name, unit, log in (
-        ("bandwidth", "bandwidth", "Hz", False),
-        ("phase margin", "phase_margin", "deg", False),
-        ("input noise", "input_noise_rms", "A", True),
-        ("NEP", "nep", "W/rtHz", True),
-        ("dark current", "dark_current", "A", True)) if col(name) is not None]
+        ("bandwidth [Hz]", "bandwidth", "Hz", False),
+        ("phase margin [deg]", "phase_margin", "deg", False),
+        ("input noise [A rms]", "input_noise_rms", "A", True),
+        ("NEP [W/rtHz]", "nep", "W/rtHz", True),
+        ("dark current [A]", "dark_current", "A", True)) if col(name) is not None]
     if series:
         add("Bias trade-off", lambda: plots.plot_bias_tradeoff(bias, series, mark=v0),
             "Figures of the whole receiver against reverse bias; the dashed line is the "
@@ -147,9 +141,110 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
     return out
 
 
+def section_failed_checks(rx, context) -> str:
+    """The checks that fail, in words, first (the full table is in the budget)."""
+    from ..analysis.checks import check_warning, failed_checks
+
+    failed = failed_checks(rx.checks())
+    if not len(failed):
+        return ""
+    items = "".join(f"<li>{html.escape(check_warning(row))}</li>" for _, row in failed.iterrows())
+    return f'<section class="failed-checks"><h2>Failed checks</h2><ul>{items}</ul></section>'
+
+
+def section_design(rx, context) -> str:
+    """The design as a parameter table with units (the design file is in the appendix)."""
+    from .rich import parameter_table_html
+
+    return ("<h2>Design</h2>\n<p>The parameters of the design, in the units of the design "
+            "file; the file itself is in the appendix.</p>\n"
+            + parameter_table_html(rx, title="Design parameters"))
+
+
+def section_schematic(rx, context) -> str:
+    """The transimpedance stage drawn as a circuit with its component values."""
+    from .plots import figure_to_base64
+    from .schematic import draw_tia_schematic
+
+    title = "Transimpedance stage"
+    try:
+        uri = figure_to_base64(draw_tia_schematic(rx), context.get("fmt", "png"))
+    except DesignError as exc:
+        return f"<h3>{title}</h3><p><em>not available: {html.escape(str(exc))}</em></p>"
+    return (f'<h3>{title}</h3>\n<figure><img alt="schematic of the transimpedance stage" '
+            f'src="{uri}"><figcaption>The photodiode (its capacitance Cd and shunt resistance '
+            "Rsh at the operating bias) reverse-biased by VR into the summing node; Rf and Cf "
+            "in the feedback; the amplifier's gain-bandwidth product, DC gain and input "
+            "capacitance.</figcaption></figure>")
+
+
+def section_budget(rx, context) -> str:
+    """The budget tables."""
+    return "<h2>Budget</h2>\n" + rx.budget()._html_tables(3)
+
+
+def section_plots(rx, context) -> str:
+    """Every plot of :func:`report_figures`, with its caption."""
+    parts = ["<h2>Plots</h2>"]
+    for fig_title, uri, caption in report_figures(rx, context.get("bias_points", 41),
+                                                  context.get("fmt", "png")):
+        parts.append(f"<h3>{html.escape(fig_title)}</h3>")
+        if uri is not None:
+            parts.append(f'<figure><img alt="{html.escape(fig_title)}" src="{uri}">'
+                         f"<figcaption>{html.escape(caption)}</figcaption></figure>")
+        else:
+            parts.append(f"<p><em>{html.escape(caption)}</em></p>")
+    return "\n".join(parts)
+
+
+def section_cautions(rx, context) -> str:
+    """Laser eye safety, bias supplies, ESD; local codes and licensed practice."""
+    return cautions_html(2)
+
+
+def section_design_file(rx, context) -> str:
+    """Appendix: the design file (TOML), collapsed."""
+    from ..designfile import dumps_design
+
+    try:
+        text = dumps_design(rx)
+    except DesignError as exc:
+        text = f"(design not expressible as a design file: {exc})"
+    return ('<h2>Appendix</h2>\n<details class="design-file"><summary>Design file (TOML): '
+            "load it with photorx.load_design or the photorx command</summary>\n"
+            f"<pre>{html.escape(text)}</pre>\n</details>")
+
+
+def section_avalanche(rx, context) -> str:
+    """Gain, k, F, optimum gain and compensated bias; empty unless the photodiode multiplies."""
+    return apd_section(rx, context["fmt"])
+
+
+def section_eye(rx, context) -> str:
+    """The eye at the bit rate; empty for an analog receiver (no bit rate)."""
+    if getattr(rx, "bit_rate", None) is None:
+        return ""
+    return "\n".join(eye_section(rx, context["fmt"]))
+
+
+#: The report's sections in order: each ``section(rx, context) -> HTML`` (``context``
+#: holds the options ``bias_points`` and ``fmt``); add a section by inserting its function.
+SECTIONS = [section_failed_checks, section_design, section_schematic, section_budget,
+            section_avalanche, section_plots, section_eye, section_cautions, section_design_file]
+
+_STYLE = """<style>
+table.photorx-parameters td, table.photorx-parameters th { padding: 0.15em 0.8em;
+  border-bottom: 1px solid #eee; }
+details.design-file pre { font-size: 0.9em; background: #f6f6f6; padding: 0.8em; }
+figure img { max-width: 100%; }
+</style>"""
+
+
 def build_report(rx, title: str = "photorx receiver report", bias_points: int = 41,
                  fmt: str = "png") -> str:
     """The report as one HTML document (plots embedded, no external files).
+
+    The page is the title and a short note, then each function of :data:`SECTIONS`.
 
     Parameters
     ----------
@@ -162,37 +257,11 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
     fmt : {"png", "svg"}
         Image format of the embedded plots.
     """
-    from ..designfile import dumps_design
-
-    budget = rx.budget()
-    parts = [f"<h1>{html.escape(title)}</h1>",
+    context = {"bias_points": bias_points, "fmt": fmt}
+    parts = [_STYLE, f"<h1>{html.escape(title)}</h1>",
              "<p>Computed by photorx from the design below. Every figure is a model estimate "
              "to be verified on hardware; see the cautions at the end.</p>"]
-    try:
-        design_text = dumps_design(rx)
-    except DesignError as exc:
-        design_text = f"(design not expressible as a design file: {exc})"
-    from ..analysis.checks import check_warning, failed_checks
-
-    failed = failed_checks(rx.checks())
-    if len(failed):  # the checks that fail come first, in words (full table in the budget)
-        parts += ['<section class="failed-checks"><h2>Failed checks</h2><ul>']
-        parts += [f"<li>{html.escape(check_warning(row))}</li>" for _, row in failed.iterrows()]
-        parts += ["</ul></section>"]
-    parts += ["<h2>Design</h2>", f"<pre>{html.escape(design_text)}</pre>"]
-    parts += ["<h2>Budget</h2>", budget._html_tables(3)]
-    parts.append(apd_section(rx, fmt))  # empty unless the photodiode multiplies
-    parts.append("<h2>Plots</h2>")
-    for fig_title, uri, caption in report_figures(rx, bias_points, fmt):
-        parts.append(f"<h3>{html.escape(fig_title)}</h3>")
-        if uri is not None:
-            parts.append(f'<figure><img alt="{html.escape(fig_title)}" src="{uri}">'
-                         f"<figcaption>{html.escape(caption)}</figcaption></figure>")
-        else:
-            parts.append(f"<p><em>{html.escape(caption)}</em></p>")
-    if getattr(rx, "bit_rate", None) is not None:  # a digital receiver: its eye at the bit rate
-        parts += eye_section(rx, fmt)
-    parts.append(cautions_html(2))
+    parts += [text for text in (section(rx, context) for section in SECTIONS) if text]
     return html_page(title, "\n".join(parts) + "\n")
 
 

@@ -52,7 +52,9 @@ body { font-family: system-ui, sans-serif; margin: 2em auto; max-width: 60em; co
 table.photorx-budget { border-collapse: collapse; margin: 0.5em 0 1.5em 0; }
 table.photorx-budget th, table.photorx-budget td { border-bottom: 1px solid #ccc;
   padding: 0.2em 0.8em; text-align: left; }
-table.photorx-budget td.num { text-align: right; font-variant-numeric: tabular-nums; }
+table.photorx-budget td.num, table.photorx-budget th.num { text-align: right;
+  font-variant-numeric: tabular-nums; }
+table.photorx-budget td.num { white-space: nowrap; }
 section.cautions { border-left: 4px solid #c60; padding-left: 1em; }
 """
 
@@ -378,19 +380,30 @@ def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
             match = _HEADER_UNIT.fullmatch(name)
             if unit is None and match:  # "output rms [V]": the unit is in the header
                 name, unit = match.group(1), match.group(2)
+            spot = table.attrs.get("f [Hz]")
+            if name == "input density" and _is_number(spot):  # a spot density: say where
+                name = f"input density at {format_eng(float(spot), 'Hz')}"
             shown[name] = [display_value(v, unit or "") for v in table[col].tolist()]
     return shown
 
 
 _HEADER_UNIT = re.compile(r"(.*\S)\s*\[([^\[\]]+)\]")
+#: A cell that is a number, optionally with one unit word ("1.2 GHz", "-3 dB", "62.5 deg"):
+#: right-aligned. Text that merely starts with a digit ("-3 dB bandwidth", "10-90 % rise
+#: time") stays left-aligned.
+_NUMERIC_CELL = re.compile(r"^([<>] )?[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?( [^\s\d][^\s]*)?$")
 
 
 def _html_table(shown: pd.DataFrame) -> str:
-    head = "".join(f"<th>{html.escape(str(c))}</th>" for c in shown.columns)
+    # a header sits over its cells: right-aligned over a column of numbers
+    numeric = [sum(bool(_NUMERIC_CELL.match(c)) for c in shown[col]) * 2 > len(shown)
+               for col in shown.columns]
+    head = "".join(f'<th class="num">{html.escape(str(c))}</th>' if num
+                   else f"<th>{html.escape(str(c))}</th>" for c, num in zip(shown.columns, numeric))
     rows = []
     for row in shown.values.tolist():
         cells = "".join(
-            f'<td class="num">{html.escape(c)}</td>' if re.match(r"^[-+]?[\d.]", c)
+            f'<td class="num">{html.escape(c)}</td>' if _NUMERIC_CELL.match(c)
             else f"<td>{html.escape(c)}</td>" for c in row)
         rows.append(f"<tr>{cells}</tr>")
     return (f'<table class="photorx-budget">\n<thead><tr>{head}</tr></thead>\n<tbody>\n'

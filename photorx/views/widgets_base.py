@@ -506,7 +506,17 @@ class Panel:
 
     # -- display -----------------------------------------------------------------------------
     def _repr_mimebundle_(self, **kwargs):
-        return self.widget._repr_mimebundle_(**kwargs)
+        # the live widget view, and beside it a static PNG of the current figure: a frontend
+        # with a kernel shows the widget, a saved notebook read without one (an exported
+        # page, a viewer) shows the figure instead of a blank panel
+        import base64
+
+        bundle = dict(self.widget._repr_mimebundle_(**kwargs))
+        if not self.image.value:
+            self.render()
+        if self.image.value:
+            bundle["image/png"] = base64.b64encode(bytes(self.image.value)).decode("ascii")
+        return bundle
 
     def __repr__(self):
         return f"<{type(self).__name__}: {self.title}>"

@@ -433,8 +433,8 @@ def test_views(spectrum):
     assert "<table" in spectrum._repr_html_()
     frame = spectrum.to_frame(np.logspace(3, 8, 6))
     assert frame.shape == (6, len(spectrum.sources) + 1)
-    ax = spectrum.plot()
-    assert ax.get_xscale() == "log"
+    ax = spectrum.plot().axes[0]  # the Figure (tests/views/test_result_plots.py checks it)
+    assert ax.get_xscale() == "log" and ax.get_yscale() == "log"
 
 
 def test_scalar_and_array_frequency(spectrum):

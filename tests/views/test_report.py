@@ -130,3 +130,64 @@ def test_eye_section_for_a_digital_design_only(rx, page):
     assert f"{eye.isi_penalty_db:.3f} dB" in section and 'alt="eye diagram"' in section
     analog = report.build_report(dataclasses.replace(rx, bit_rate=None), bias_points=5)
     assert "Eye at the bit rate" not in analog
+
+
+# -- issue 17: the design as a table, a schematic, aligned tables, labelled plots ------------
+def test_design_table_schematic_and_appendix(rx, page):
+    design = page[page.index("<h2>Design</h2>"):page.index("<h2>Budget</h2>")]
+    assert 'class="photorx-parameters"' in design and "<pre>" not in design
+    assert ">rf</td>" in design and ">kohm</td>" in design
+    assert 'alt="schematic of the transimpedance stage"' in design
+    # the TOML only as a collapsed appendix, after the cautions
+    appendix = page[page.index("<h2>Appendix</h2>"):]
+    assert appendix.count("<details") == 1 and "[feedback]" in appendix
+    assert page.index("IEC 60825-1") < page.index("<h2>Appendix</h2>")
+
+
+def test_schematic_shows_the_component_values(rx):
+    from photorx.units import format_eng
+    from photorx.views.schematic import draw_tia_schematic, schematic_labels
+
+    fig = draw_tia_schematic(rx)
+    texts = [t.get_text() for t in fig.axes[0].texts]
+    assert sorted(texts) == sorted(schematic_labels(rx).values())
+    joined = "\n".join(texts)
+    net = rx.equivalent_circuit()
+    for value in ("3 k\u03a9", format_eng(rx.tia.cf, "F"), format_eng(net.capacitance, "F"),
+                  format_eng(rx.reverse_bias, "V"), format_eng(rx.tia.amp.gbw, "Hz")):
+        assert value in joined, value
+
+
+def test_budget_alignment_text_left_numbers_right(page):
+    cells = re.findall(r'<td( class="num")?>([^<]*)</td>', page)
+    right = {c for k, c in cells if k}
+    left = {c for k, c in cells if not k}
+    assert "-3 dB bandwidth of the whole chain" in left
+    assert "10-90 % rise time of the stage" in left
+    assert {"3.3 V", "1310 nm", "63 deg"} <= right
+    # the spot density column says where it is taken (ENBW/10 of the demo, about 96 MHz)
+    assert re.search(r'<th class="num">input density at 9\d\.?\d* MHz</th>', page)
+    # headers over numbers are right-aligned with them, over text left-aligned
+    assert '<th class="num">value</th>' in page and "<th>quantity</th>" in page
+
+
+def test_every_report_plot_has_labelled_axes_with_units(rx, monkeypatch):
+    from photorx.views import plots
+
+    drawn = []
+    real = plots.figure_to_base64
+
+    def keep(fig, fmt="png", dpi=110):
+        drawn.append(fig)
+        return real(fig, fmt, dpi=40)
+
+    monkeypatch.setattr(plots, "figure_to_base64", keep)
+    figures = report.report_figures(rx, bias_points=5)
+    assert len(drawn) == len(figures) == 5
+    for fig in drawn:
+        for ax in fig.axes:
+            shared_x = ax.get_xlabel() == "" and ax is not fig.axes[-1]
+            assert shared_x or re.search(r"\[[^\]]+\]", ax.get_xlabel()), ax.get_xlabel()
+            assert re.search(r"\[[^\]]+\]|normalised", ax.get_ylabel()), ax.get_ylabel()
+    noise = drawn[[t for t, _, _ in figures].index("Output noise density by source")]
+    assert noise.axes[0].get_xlim()[0] == pytest.approx(rx.noise_band_low)

@@ -46,6 +46,8 @@ def test_every_panel_builds_headless_with_controls_figure_and_message(name, rx, 
     assert panel.update() is True
     bundle = panel._repr_mimebundle_()
     assert "application/vnd.jupyter.widget-view+json" in bundle
+    # the static figure beside the live view, for a notebook read without a kernel
+    assert __import__("base64").b64decode(bundle["image/png"]) == bytes(panel.image.value)
 
 
 def test_builders_default_to_the_demo_design():
