@@ -73,11 +73,11 @@ def test_cli_budget_of_the_apd_demo(capsys):
 
 
 def test_cli_sweep_in_gain(tmp_path):
-    import pandas as pd
+    from photorx.views import read_sweep_csv
 
     out = tmp_path / "gain.csv"
     assert main(["sweep", "si-apd-850", "--axis", "gain=2:50:3:log", "--output", str(out)]) == 0
-    frame = pd.read_csv(out)
+    frame = read_sweep_csv(out)  # unit-suffixed headers read back to bare names
     # each gain becomes the bias that gives it (McIntyre gain rises monotonically to breakdown)
     assert list(frame["gain"].round(6)) == pytest.approx([2.0, 10.0, 50.0], rel=1e-6)
     assert frame["reverse_bias"].is_monotonic_increasing
