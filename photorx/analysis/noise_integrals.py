@@ -32,7 +32,7 @@ _DEFAULTS = dict(poles=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0, i
                  stage2_corner=0.0)
 
 
-def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=16, top_factor=1e3,
+def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4,
                 filter_kind=None, filter_order=4, filter_cutoff=np.inf, **params):
     """Mean-square output noise by source [V^2] and the chain's ENBW [Hz], for many designs.
 
