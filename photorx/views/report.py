@@ -293,8 +293,11 @@ def eye_section(rx, fmt: str = "png") -> list:
     fmt : {"png", "svg"}
         Image format of the embedded eye.
     """
+    import pandas as pd
+
     from . import plots
     from ..units import display_value
+    from .tables import _html_table
 
     parts = ["<h2>Eye at the bit rate</h2>"]
     try:
@@ -311,9 +314,8 @@ def eye_section(rx, fmt: str = "png") -> list:
             ("sensitivity with ISI and noise", f"{eye.sensitivity_dbm:.2f} dBm"),
             ("ISI power penalty", f"{eye.isi_penalty_db:.3f} dB"),
             ("Personick I2 (noise bandwidth / bit rate)", f"{eye.personick_i2:.4f}")]
-    parts.append("<table><tr><th>figure</th><th>value</th></tr>" + "".join(
-        f"<tr><td>{html.escape(k)}</td><td>{html.escape(v)}</td></tr>" for k, v in rows)
-        + "</table>")
+    # the budget's table style: text left, numbers right-aligned under their header
+    parts.append(_html_table(pd.DataFrame(rows, columns=["figure", "value"])))
     uri = plots.figure_to_base64(eye.plot(), fmt)
     parts.append(f'<figure><img alt="eye diagram" src="{uri}"><figcaption>Density eye of '
                  f"{eye.modulation.upper()} {eye.pattern.upper()} at "
