@@ -52,6 +52,8 @@ _EXPORTS = {
     "load_design": "photorx.designfile",
     "save_design": "photorx.designfile",
     "demo_receiver": "photorx.designfile",
+    "tolerance_study": "photorx.analysis.tolerance",
+    "ToleranceResult": "photorx.analysis.tolerance_result",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]
