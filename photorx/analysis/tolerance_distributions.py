@@ -189,6 +189,9 @@ def parse_tolerance(parameter: str, spec, nominal: float) -> Tolerance:
                                                "below 100 %, e.g. '1 %'")
             _need_nominal(where, spec, nominal)
             ends = sorted((nominal * (1 - half / 100), nominal * (1 + half / 100)))
+            if not ends[0] < ends[1]:  # narrower than the floating-point spacing
+                raise DesignError.out_of_range(where, spec, "", "a half width wider than "
+                                               "the rounding of the nominal, e.g. '1 %'")
             return Tolerance(parameter, "uniform", nominal, low=ends[0], high=ends[1], text=spec)
         parts = [p.strip() for p in spec.split(":")]
         if len(parts) < 2 or parts[0].lower() not in KINDS:
