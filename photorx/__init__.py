@@ -54,6 +54,7 @@ _EXPORTS = {
     "demo_receiver": "photorx.designfile",
     "tolerance_study": "photorx.analysis.tolerance",
     "ToleranceResult": "photorx.analysis.tolerance_result",
+    "load_study": "photorx.designfile",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]

@@ -27,7 +27,7 @@ from .sweep import CHUNK, evaluate_points
 from .tolerance_distributions import parse_tolerance, parameter_unit
 from .tolerance_result import ToleranceResult
 
-__all__ = ["tolerance_study", "ToleranceResult"]
+__all__ = ["tolerance_study", "parse_study", "ToleranceResult"]
 
 #: Largest number of units a study draws.
 MAX_SAMPLES = 10**8
@@ -115,6 +115,60 @@ def tolerance_study(receiver, tolerances, specs, n=10_000, temperatures=None, se
     if scheduler not in SCHEDULERS:
         raise DesignError(f"scheduler = {scheduler!r} is invalid; valid: {', '.join(SCHEDULERS)}",
                           parameter="scheduler")
+    tols, paths, cons, corners = parse_study(receiver, tolerances, specs, temperatures)
+    nominal = evaluate_points(receiver, {})
+    nominal_frame = pd.DataFrame({k: np.atleast_1d(v) for k, v in nominal.items()})
+    for c in cons:
+        _column(nominal_frame, c["figure"])  # names the figure if unknown or not numeric
+    keep = list(dict.fromkeys(_keep(figures, nominal_frame) + [c["figure"] for c in cons]
+                              + ["stable", "temperature"]))
+
+    drawn = {t.parameter: t.sample(n, seed) for t in tols}
+    columns = {paths[name].replace(".", "__"): values for name, values in drawn.items()}
+    size = _chunk_size(chunk_size, 1 if corners is None else len(corners))
+    raw = _run(receiver, columns, corners, keep, size, n, client, scheduler, progress)
+    frame = _frame(raw, drawn, corners, n, keep)
+    result = ToleranceResult(samples=frame, tolerances=tuple(tols), specs=tuple(cons), n=n,
+                             temperatures=corners, seed=int(seed), chunk_size=size,
+                             nominal={k: np.atleast_1d(v)[0] for k, v in nominal.items()},
+                             require_stable=bool(require_stable))
+    # each row's verdict at its corner: every spec met (and the loop stable when required)
+    ok = (result.margins.to_numpy() >= 0).all(axis=1)
+    if require_stable:
+        ok &= frame["stable"].to_numpy(dtype=bool)
+    frame["pass"] = ok
+    frame.attrs["units"]["pass"] = ""
+    return result
+
+
+def parse_study(receiver, tolerances, specs, temperatures=None) -> tuple:
+    """Check and parse a study's tolerances, specs and temperatures without evaluating.
+
+    Parameters
+    ----------
+    receiver : Receiver
+        The nominal design (parameter names resolve against it).
+    tolerances : dict
+        As :func:`tolerance_study` takes them.
+    specs : dict or sequence of str
+        As :func:`tolerance_study` takes them.
+    temperatures : sequence or tuple, optional
+        As :func:`tolerance_study` takes them.
+
+    Returns
+    -------
+    tuple
+        ``(tolerances, paths, specs, corners)``: the list of
+        :class:`~photorx.analysis.tolerance_distributions.Tolerance`, their dotted paths
+        by name, the specs as optimize constraints, the temperature corners [K] or None.
+
+    Raises
+    ------
+    DesignError
+        As :func:`tolerance_study`.
+    """
+    from .result import FIGURES
+
     if not isinstance(tolerances, dict) or not tolerances:
         raise DesignError("tolerances must be a non-empty dict, e.g. {'rf': '1 %'}",
                           parameter="tolerances")
@@ -134,22 +188,11 @@ def tolerance_study(receiver, tolerances, specs, n=10_000, temperatures=None, se
         raise DesignError(f"two tolerances name the same parameter: {', '.join(paths)}",
                           parameter="tolerances")
     cons = _specs(specs)
-    nominal = evaluate_points(receiver, {})
-    nominal_frame = pd.DataFrame({k: np.atleast_1d(v) for k, v in nominal.items()})
     for c in cons:
-        _column(nominal_frame, c["figure"])  # names the figure if unknown or not numeric
-    keep = list(dict.fromkeys(_keep(figures, nominal_frame) + [c["figure"] for c in cons]
-                              + ["stable", "temperature"]))
-
-    drawn = {t.parameter: t.sample(n, seed) for t in tols}
-    columns = {paths[name].replace(".", "__"): values for name, values in drawn.items()}
-    size = _chunk_size(chunk_size, 1 if corners is None else len(corners))
-    raw = _run(receiver, columns, corners, keep, size, n, client, scheduler, progress)
-    frame = _frame(raw, drawn, corners, n, keep)
-    return ToleranceResult(samples=frame, tolerances=tuple(tols), specs=tuple(cons), n=n,
-                           temperatures=corners, seed=int(seed), chunk_size=size,
-                           nominal={k: np.atleast_1d(v)[0] for k, v in nominal.items()},
-                           require_stable=bool(require_stable))
+        if c["figure"] not in FIGURES and not c["figure"].startswith("noise_"):
+            raise DesignError(f"unknown receiver figure {c['figure']!r} in the specs; known: "
+                              f"{', '.join(FIGURES)}", parameter=c["figure"])
+    return tols, paths, cons, corners
 
 
 def _count(n) -> int:
