@@ -414,7 +414,17 @@ def _cmd_report(args) -> int:
     rx = _load(args.design)
     title = (args.title or design_name(args.design)
              or (Path(args.design).stem if args.design else "photorx receiver report"))
-    path = write_report(rx, args.output, title=title)
+    study = None
+    if args.tolerance:  # the design file's [tolerances] and [specs]
+        from .analysis.tolerance import tolerance_study
+        from .designfile import load_study
+
+        _, tolerances, specs = load_study(args.design)
+        if not tolerances or not specs:
+            raise UsageError("photorx report: --tolerance needs [tolerances] and [specs] "
+                             "sections in the design file (see 'photorx template')")
+        study = tolerance_study(rx, tolerances, specs, n=args.tolerance, figures=[])
+    path = write_report(rx, args.output, title=title, study=study)
     print(f"wrote {path}", file=sys.stderr)
     _warn_failed_checks(rx)
     return EXIT_OK
@@ -563,6 +573,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", default="photorx-report.html",
                    help="HTML file (default: photorx-report.html)")
     p.add_argument("--title", help="report title")
+    p.add_argument("--tolerance", type=_at_least(1), metavar="N",
+                   help="add a yield section: N units drawn from the design file's "
+                        "[tolerances], checked against its [specs]")
     p.set_defaults(func=_cmd_report)
 
     p = sub.add_parser("tolerance", help="Monte Carlo yield over tolerances and temperatures",

@@ -69,3 +69,18 @@ def test_tolerance_errors_are_one_line(capsys, argv, word):
     assert code == 2
     lines = [ln for ln in err.splitlines() if ln.strip()]
     assert len(lines) == 1 and word in lines[0] and "Traceback" not in err
+
+
+def test_report_gains_a_yield_section(capsys, tmp_path):
+    text = design_template() + '\n[tolerances]\ncf = "10 %"\n\n[specs]\nbandwidth = ">= 900 MHz"\n'
+    design = tmp_path / "d.toml"
+    design.write_text(text, encoding="utf-8")
+    page = tmp_path / "r.html"
+    code, out, err = run(capsys, "report", str(design), "--tolerance", "40", "-o", str(page))
+    assert code == 0, err
+    html = page.read_text(encoding="utf-8")
+    assert "Yield over tolerances" in html and "bandwidth &gt;= 900 MHz" in html
+    assert html.count("<img") >= 2
+    # without the option, no yield section
+    code, out, err = run(capsys, "report", str(design), "-o", str(page))
+    assert code == 0 and "Yield over tolerances" not in page.read_text(encoding="utf-8")

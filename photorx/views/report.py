@@ -147,7 +147,7 @@ def report_figures(rx, bias_points: int = 41, fmt: str = "png") -> list:
 
 
 def build_report(rx, title: str = "photorx receiver report", bias_points: int = 41,
-                 fmt: str = "png") -> str:
+                 fmt: str = "png", study=None) -> str:
     """The report as one HTML document (plots embedded, no external files).
 
     Parameters
@@ -160,6 +160,9 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
         Points of the bias trade-off sweep.
     fmt : {"png", "svg"}
         Image format of the embedded plots.
+    study : ToleranceResult, optional
+        A tolerance study of the design; adds a yield section (pass fractions, drivers,
+        corner yields and the histograms). Default None: no such section.
     """
     from ..designfile import dumps_design
 
@@ -188,8 +191,27 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
                          f"<figcaption>{html.escape(caption)}</figcaption></figure>")
         else:
             parts.append(f"<p><em>{html.escape(caption)}</em></p>")
+    if study is not None:
+        parts += _yield_section(study, fmt)
     parts.append(cautions_html(2))
     return html_page(title, "\n".join(parts) + "\n")
+
+
+def _yield_section(study, fmt: str) -> list:
+    """The report's yield section: the study's tables and its histograms."""
+    from . import plots
+    from .tolerance_view import tolerance_html
+
+    tols = ", ".join(f"{t.parameter} {t.describe()}" for t in study.tolerances)
+    parts = ['<section class="yield"><h2>Yield over tolerances</h2>',
+             f"<p>Monte Carlo over {html.escape(tols)} (seed {study.seed}); a unit passes "
+             "when it meets every spec at every temperature corner. Intervals are Wilson "
+             "95 % intervals.</p>", tolerance_html(study, level=3)]
+    uri = plots.figure_to_base64(study.plot(), fmt)
+    parts.append(f'<figure><img alt="tolerance study" src="{uri}"><figcaption>Spec figures '
+                 "over the units (dashed: spec limit, dotted: nominal design) and the yield "
+                 "at each temperature corner.</figcaption></figure></section>")
+    return parts
 
 
 def write_report(rx, path, title: str = "photorx receiver report", **options) -> Path:
@@ -205,6 +227,7 @@ def write_report(rx, path, title: str = "photorx receiver report", **options) ->
     title : str
         Page title; default ``"photorx receiver report"``.
     **options
-        ``bias_points`` and ``fmt``, passed on to :func:`build_report`.
+        ``bias_points``, ``fmt`` and ``study`` (a tolerance study: adds the yield
+        section), passed on to :func:`build_report`.
     """
     return atomic_write_text(path, build_report(rx, title=title, **options))
