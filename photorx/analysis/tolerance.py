@@ -174,6 +174,9 @@ def parse_study(receiver, tolerances, specs, temperatures=None) -> tuple:
                           parameter="tolerances")
     corners, temperature_spec = _temperatures(temperatures)
     items = dict(tolerances)
+    if corners is not None and any(_path(receiver, k) == "temperature" for k in items):
+        raise DesignError("temperature has a tolerance and temperature corners; give one "
+                          "(a distribution can go to temperatures=)", parameter="temperature")
     if temperature_spec is not None:
         if any(_path(receiver, k) == "temperature" for k in items):
             raise DesignError("temperature has a tolerance and a temperatures= distribution; "
@@ -229,8 +232,9 @@ def _temperatures(temperatures):
                                          and isinstance(temperatures[0], str)
                                          and temperatures[0].strip().lower()
                                          in ("uniform", "normal", "lognormal")):
-        if isinstance(temperatures, str) and "," in temperatures:
-            temperatures = temperatures.split(",")
+        if isinstance(temperatures, str) and ("," in temperatures or not (
+                ":" in temperatures or "%" in temperatures)):
+            temperatures = temperatures.split(",")  # "-40 degC,85 degC" or one corner
         else:
             return None, temperatures
     try:

@@ -230,6 +230,18 @@ class ToleranceResult:
         order = np.argsort(-np.nan_to_num(np.abs(frame["rho"].to_numpy(dtype=float))), kind="stable")
         return frame.iloc[order]
 
+    @cached_property
+    def spec_drivers(self) -> pd.DataFrame:
+        """Spearman correlation of every tolerance (rows) with every spec's unit margin
+        (columns; the margin's smallest value over corners): which tolerance moves which
+        spec. Positive: a larger value gives more margin."""
+        shape = (self.n, self._corners)
+        table = {label: {tol.parameter: _spearman(self._parameter_values(tol),
+                                                  col.to_numpy().reshape(shape).min(axis=1))
+                         for tol in self.tolerances}
+                 for label, col in self.margins.items()}
+        return pd.DataFrame(table)
+
     def worst_samples(self, count: int = 5) -> pd.DataFrame:
         """The ``count`` rows of least margin of every spec (spec, rank, margin, the row).
 

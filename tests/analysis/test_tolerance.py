@@ -118,6 +118,9 @@ def test_drivers_rank_the_dominant_tolerance_first(rx, nominal):
                 {"dc_transimpedance": (">=", nominal.dc_transimpedance)}, n=400)
     assert dc.drivers.index[0] == "rf"
     assert abs(dc.drivers.loc["cf", "rho"]) < 0.2
+    # per spec: a larger Rf gives more DC transimpedance margin, Cf none
+    per = dc.spec_drivers.iloc[:, 0]
+    assert per["rf"] > 0.95 and abs(per["cf"]) < 0.2
 
 
 def test_temperature_corners_evaluate_every_unit_at_every_corner(rx):
@@ -199,6 +202,7 @@ def test_bad_distributions_and_specs_name_parameter_value_and_range(rx, toleranc
     (dict(temperatures=[-5.0]), ["temperatures", "> 0 K"]),
     (dict(seed=-1), ["seed", ">= 0"]),
     (dict(chunk_size=0), ["chunk_size", ">= 1"]),
+    (dict(temperatures="nonsense"), ["temperatures", "nonsense"]),
 ])
 def test_bad_study_settings_are_design_errors(rx, kw, words):
     with pytest.raises(prx.DesignError) as info:
