@@ -69,6 +69,9 @@ _EXPORTS = {
     "Eye": "photorx.analysis.digital_eye",
     "prbs": "photorx.analysis.digital_patterns",
     "bandwidth_ratio_study": "photorx.analysis.digital",
+    "tolerance_study": "photorx.analysis.tolerance",
+    "ToleranceResult": "photorx.analysis.tolerance_result",
+    "load_study": "photorx.designfile",
 }
 
 __all__ = sorted(_EXPORTS) + ["__version__"]

@@ -418,9 +418,74 @@ def _cmd_report(args) -> int:
     rx = _load(args.design)
     title = (args.title or design_name(args.design)
              or (Path(args.design).stem if args.design else "photorx receiver report"))
-    path = write_report(rx, args.output, title=title)
+    study = None
+    if args.tolerance:  # the design file's [tolerances] and [specs]
+        from .analysis.tolerance import tolerance_study
+        from .designfile import load_study
+
+        _, tolerances, specs = load_study(args.design)
+        if not tolerances or not specs:
+            raise UsageError("photorx report: --tolerance needs [tolerances] and [specs] "
+                             "sections in the design file (see 'photorx template')")
+        study = tolerance_study(rx, tolerances, specs, n=args.tolerance, figures=[])
+    path = write_report(rx, args.output, title=title, study=study)
     print(f"wrote {path}", file=sys.stderr)
     _warn_failed_checks(rx)
+    return EXIT_OK
+
+
+def _cmd_tolerance(args) -> int:
+    """Monte Carlo yield over tolerances (``--tol``, ``[tolerances]``) and specs."""
+    from .analysis.tolerance import tolerance_study
+    from .designfile import load_study
+    from .units import format_eng
+
+    rx, tolerances, specs = load_study(args.design)
+    for item in args.tol or ():
+        name, sep, spec = item.partition("=")
+        if not sep or not name.strip() or not spec.strip():
+            raise DesignError(f"--tol {item!r}: write NAME=TOLERANCE, e.g. rf=1% or "
+                              "cf=normal:2%", parameter="tol")
+        tolerances[name.strip().replace("-", "_")] = spec.strip()
+    for text in args.spec or ():
+        figure, condition = parse_constraint(text)
+        specs[figure] = condition
+    if not tolerances or not specs:
+        raise UsageError("photorx tolerance: give at least one --tol NAME=TOLERANCE and one "
+                         "--spec FIGURE>=VALUE (or [tolerances] and [specs] in the design "
+                         "file; see 'photorx template')")
+    temperatures = (None if args.temperature is None
+                    else parse_axis("temperature", args.temperature))
+    figures = ([] if args.figures is None else None if args.figures.strip() == "all"
+               else [f.strip() for f in args.figures.split(",") if f.strip()])
+    study = tolerance_study(rx, tolerances, specs, n=args.n, temperatures=temperatures,
+                            seed=args.seed, chunk_size=args.chunk_size, figures=figures,
+                            progress=not args.quiet)
+    low, high = study.yield_interval
+    lines = [f"yield: {100 * study.yield_fraction:.2f} % (95 % Wilson interval "
+             f"{100 * low:.2f} .. {100 * high:.2f} %) of {study.n} units"
+             + ("" if study.temperatures is None else
+                f" at {len(study.temperatures)} temperature corners"),
+             "pass fraction per spec:"]
+    for label, row in study.by_spec.iterrows():
+        lines.append(f"  {label}: {100 * row.pass_fraction:.2f} % ({row.failures} failing)")
+    lines.append("drivers (Spearman rank correlation of each tolerance with "
+                 + ("failure" if study.drivers["measure"].iloc[0] == "failure"
+                    else "the worst spec margin; no unit fails") + "):")
+    for name, row in study.drivers.iterrows():
+        rho = "n/a" if not np.isfinite(row.rho) else f"{row.rho:+.3f}"
+        lines.append(f"  {name}: rho {rho}, share {100 * np.nan_to_num(row.share):.0f} % "
+                     f"({row.tolerance})")
+    if study.by_temperature is not None:
+        lines.append("yield by temperature:")
+        for t, row in study.by_temperature.iterrows():
+            lines.append(f"  {format_eng(t - 273.15, 'degC')} ({format_eng(t, 'K')}): "
+                         f"{100 * row['yield']:.2f} %")
+    print("\n".join(lines))
+    if args.output:
+        frame = study.samples.replace([np.inf, -np.inf], np.nan)
+        _write_or_print(frame.to_csv(index=False, lineterminator="\n", na_rep="none"),
+                        args.output)
     return EXIT_OK
 
 
@@ -573,7 +638,41 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", default="photorx-report.html",
                    help="HTML file (default: photorx-report.html)")
     p.add_argument("--title", help="report title")
+    p.add_argument("--tolerance", type=_at_least(1), metavar="N",
+                   help="add a yield section: N units drawn from the design file's "
+                        "[tolerances], checked against its [specs]")
     p.set_defaults(func=_cmd_report)
+
+    p = sub.add_parser("tolerance", help="Monte Carlo yield over tolerances and temperatures",
+                       description="Draw built units from component tolerances, evaluate each "
+                                   "at every temperature corner and report the yield against "
+                                   "the specs, the pass fraction of each spec and the "
+                                   "tolerances that drive the failures. Tolerances and specs "
+                                   "add to the design file's [tolerances] and [specs].",
+                       epilog="TOLERANCE: 'P%%' (uniform within +-P %% of nominal), "
+                              "'normal:SIGMA' (relative, e.g. normal:2%%), "
+                              "'uniform:LOW:HIGH' (with units), 'lognormal:SIGMA' (of ln "
+                              "value). The CSV holds one row per unit and corner: sample, "
+                              "the sampled parameters, the spec figures (SI) and pass.")
+    p.add_argument("design", nargs="?", help=design_help)
+    p.add_argument("--n", type=_at_least(1), default=10_000, metavar="N",
+                   help="built units to draw (default: 10,000)")
+    p.add_argument("--tol", action="append", metavar="NAME=TOLERANCE",
+                   help="a parameter's tolerance, repeatable (e.g. rf=1%%, cf=normal:2%%)")
+    p.add_argument("--spec", action="append", metavar="FIGURE>=VALUE",
+                   help="a spec every unit must meet, repeatable (e.g. 'bandwidth>=900 MHz')")
+    p.add_argument("--temperature", metavar="SPEC",
+                   help="temperature corners, a comma list or START:STOP:N "
+                        "(e.g. -40degC,25degC,85degC); default: the design's temperature")
+    p.add_argument("--seed", type=_at_least(0), default=0, help="random seed (default: 0)")
+    p.add_argument("--chunk-size", type=_at_least(1), default=None, metavar="UNITS",
+                   help="units per dask task (default: about 1024 design points per task)")
+    p.add_argument("--figures", metavar="LIST",
+                   help="figures to write besides the spec figures, comma-separated, or 'all'")
+    p.add_argument("-o", "--output", help="CSV file of every unit and corner")
+    p.add_argument("-q", "--quiet", action="store_true",
+                   help="no progress bar (shown on studies that run longer than a second)")
+    p.set_defaults(func=_cmd_tolerance)
 
     p = sub.add_parser("demos", help="list the shipped demo designs",
                        description="List the demo designs shipped with photorx.")

@@ -48,7 +48,7 @@ __all__ = [
     "SCHEMA", "Key", "SECTIONS", "REQUIRED", "OMIT", "DEMO_DESIGNS", "DEFAULT_DESIGN",
     "load_design", "save_design", "loads_design", "dumps_design", "demo_receiver",
     "demo_design_path", "design_name", "read_design", "design_template", "write_template",
-    "format_quantity",
+    "format_quantity", "load_study",
 ]
 
 DEMO_DESIGNS = {
@@ -224,7 +224,69 @@ def loads_design(text: str, name: str = ""):
         raise DesignError(f"{where}{place}not a valid TOML file ({type(exc).__name__}: "
                           f"{str(exc)[:80]})", parameter=long.group(1) if long else None
                           ) from None
-    return _build(read_design(doc, name), where)
+    spec = read_design(doc, name)
+    rx = _build(spec, where)
+    _study_settings(spec, rx, where)  # a bad [tolerances] or [specs] entry fails the load
+    return rx
+
+
+def _study_settings(spec: dict, rx, where: str = "") -> tuple[dict, dict]:
+    """The file's ``[tolerances]`` and ``[specs]``, checked against the built receiver."""
+    from .analysis.tolerance import parse_study
+
+    tolerances = dict(spec.get("tolerances", {}))
+    specs = {k: (v if isinstance(v, str) else list(v) if isinstance(v, list) else str(v))
+             for k, v in spec.get("specs", {}).items()}
+    for section, table in (("tolerances", tolerances), ("specs", specs)):
+        for key, value in table.items():
+            one = ({key: tuple(value) if isinstance(value, list) else value}, {"bandwidth": ">= 0"}
+                   ) if section == "tolerances" else ({"rf": "1 %"}, {key: value})
+            try:
+                parse_study(rx, *one)
+            except DesignError as exc:
+                raise DesignError(f"{where}[{section}] {key}: {exc}",
+                                  parameter=f"[{section}] {key}") from None
+    return ({k: tuple(v) if isinstance(v, list) else v for k, v in tolerances.items()}, specs)
+
+
+def load_study(path=None) -> tuple:
+    """Read a design file with its tolerance study: the receiver, tolerances and specs.
+
+    Parameters
+    ----------
+    path : str or path-like, optional
+        As :func:`load_design`.
+
+    Returns
+    -------
+    tuple
+        ``(receiver, tolerances, specs)``; the dicts hold the ``[tolerances]`` and
+        ``[specs]`` sections as :func:`~photorx.analysis.tolerance.tolerance_study` takes
+        them (empty when the file has none).
+    """
+    text, name = _design_text(path)
+    where = f"{name}: "
+    _check_nesting(text, where)
+    rx = loads_design(text, name=name)
+    spec = read_design(tomllib.loads(text), name)
+    return (rx, *_study_settings(spec, rx, where))
+
+
+def _design_text(path=None) -> tuple[str, str]:
+    """(text, name) of a design file or shipped demo; errors as :func:`load_design`."""
+    if path is None or str(path) in DEMO_DESIGNS:
+        p = demo_design_path(path or DEFAULT_DESIGN)
+        return p.read_text(encoding="utf-8"), p.name
+    p = Path(path)
+    try:
+        return p.read_text(encoding="utf-8"), str(p)
+    except FileNotFoundError:
+        demos = "" if p.suffix else f" or demo name (demos: {', '.join(DEMO_DESIGNS)})"
+        raise DesignError(f"{p}: no such design file{demos}") from None
+    except IsADirectoryError:
+        raise DesignError(f"{p}: is a directory, not a design file") from None
+    except (OSError, UnicodeDecodeError) as exc:
+        raise DesignError(f"{p}: cannot read design file ({exc})") from None
 
 
 def load_design(path=None):
@@ -242,20 +304,8 @@ def load_design(path=None):
         Missing or unreadable file, invalid TOML, unknown or missing keys, wrong
         dimensions or out-of-range values; the message names the file and the key.
     """
-    if path is None or str(path) in DEMO_DESIGNS:
-        p = demo_design_path(path or DEFAULT_DESIGN)
-        return loads_design(p.read_text(encoding="utf-8"), name=p.name)
-    p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        demos = "" if p.suffix else f" or demo name (demos: {', '.join(DEMO_DESIGNS)})"
-        raise DesignError(f"{p}: no such design file{demos}") from None
-    except IsADirectoryError:
-        raise DesignError(f"{p}: is a directory, not a design file") from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DesignError(f"{p}: cannot read design file ({exc})") from None
-    return loads_design(text, name=str(p))
+    text, name = _design_text(path)
+    return loads_design(text, name=name)
 
 
 def demo_design_path(name: str = DEFAULT_DESIGN) -> Path:
@@ -579,7 +629,30 @@ def design_template() -> str:
                                            width=88, initial_indent="#   ",
                                            subsequent_indent="#       ")
         lines.append("")
+    lines += _STUDY_TEMPLATE
     return "\n".join(lines)
+
+
+#: The template's commented ``[tolerances]`` and ``[specs]`` sections (read by
+#: ``photorx tolerance`` and :func:`load_study`).
+_STUDY_TEMPLATE = [
+    "# [tolerances]  # optional section: component tolerances for 'photorx tolerance'",
+    "# Design parameter (a field name such as rf, cf, gbw, area, reverse_bias, or a dotted",
+    "# path in quotes) = its distribution over built units: \"P %\" is uniform within +-P %",
+    "# of the nominal; \"normal:SIGMA\" (relative sigma, e.g. \"normal:2 %\", at most 30 %);",
+    "# \"uniform:LOW:HIGH\" (ends with units); \"lognormal:SIGMA\" (sigma of ln value, <= 1).",
+    "# rf = \"1 %\"",
+    "# cf = \"normal:5 %\"",
+    "# \"tia.amp.gbw\" = \"lognormal:0.2\"",
+    "",
+    "# [specs]  # optional section: what every built unit must meet",
+    "# Receiver figure = condition, \">= VALUE\" or \"<= VALUE\" with the figure's unit (a list",
+    "# for both bounds); a unit passes when it meets every spec at every temperature corner.",
+    "# bandwidth = \">= 900 MHz\"",
+    "# phase_margin = \">= 45\"",
+    "# input_noise_rms = [\">= 1 pA\", \"<= 200 nA\"]",
+    "",
+]
 
 
 def _example(key: Key) -> str:

@@ -20,7 +20,8 @@ from dataclasses import dataclass
 from .errors import DesignError
 from .units import _dimension_name, format_eng, parse_quantity
 
-__all__ = ["Key", "SCHEMA", "SECTIONS", "REQUIRED", "OMIT", "read_design", "section_keys"]
+__all__ = ["Key", "SCHEMA", "SECTIONS", "STUDY_SECTIONS", "REQUIRED", "OMIT", "read_design",
+           "section_keys"]
 
 REQUIRED = "<required>"
 #: Default of keys whose absence leaves the constructor's own default in force; such keys
@@ -297,6 +298,11 @@ SECTIONS = {
     "analysis": False,
 }
 
+#: Optional sections of a tolerance study, read as free tables (parameter or figure -> text):
+#: ``[tolerances]`` maps a design parameter to its distribution, ``[specs]`` a receiver
+#: figure to its condition; :func:`photorx.designfile.load_study` checks their content.
+STUDY_SECTIONS = ("tolerances", "specs")
+
 #: Selector key of sections whose keys depend on a model choice.
 _SELECTOR = {"photodiode.junction": "model", "photodiode": "kind"}
 
@@ -320,6 +326,9 @@ def _flatten(doc: dict, source: str) -> dict[str, dict]:
         values = {}
         for key, value in table.items():
             sub = f"{path}.{key}" if path else key
+            if not path and key in STUDY_SECTIONS:
+                out[key] = _study_table(key, value, source)
+                continue
             if isinstance(value, dict):
                 if sub not in SECTIONS:
                     raise DesignError(f"{source}unknown section [{sub}]; known sections: "
@@ -336,6 +345,26 @@ def _flatten(doc: dict, source: str) -> dict[str, dict]:
 
     walk(doc, "")
     return out
+
+
+def _study_table(section: str, table, source: str) -> dict:
+    """A ``[tolerances]`` or ``[specs]`` table: text values or short lists, no sub-tables."""
+    if not isinstance(table, dict):
+        raise DesignError(f"{source}[{section}] must be a section (a table), not "
+                          f"{_shown(table)}", parameter=section)
+    for key, value in table.items():
+        where = f"[{section}] {key}"
+        if isinstance(value, dict):
+            raise DesignError(f"{source}{where}: a table where a distribution or condition "
+                              "belongs; write a dotted name in quotes, e.g. "
+                              "\"tia.amp.gbw\" = \"5 %\"", parameter=where)
+        items = value if isinstance(value, list) else [value]
+        if not items or len(items) > 4 or not all(
+                isinstance(v, (str, int, float)) and not isinstance(v, bool) for v in items):
+            raise DesignError(f"{source}{where} = {_shown(value)}: expected text such as "
+                              + ("'1 %' or 'normal:2 %'" if section == "tolerances"
+                                 else "'>= 900 MHz'"), parameter=where)
+    return dict(table)
 
 
 def _suggest(word: str, options) -> str:
@@ -564,6 +593,9 @@ def read_design(source, name: str = "") -> dict[str, dict]:
             raise DesignError(f"{where}missing section [{section}]", parameter=section)
     spec: dict[str, dict] = {}
     for section, values in sections.items():
+        if section in STUDY_SECTIONS:  # checked against the built receiver by load_study
+            spec[section] = dict(values)
+            continue
         keys = section_keys(section)
         selector = _SELECTOR.get(section)
         chosen = None

@@ -10,6 +10,7 @@ the small numerical noise of found bandwidths) refines it in normalised coordina
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 
 import numpy as np
@@ -20,7 +21,7 @@ from ..errors import DesignError
 from .parameters import get_parameter, resolve_parameter, with_parameters
 from .sweep import grid
 
-__all__ = ["optimize", "OptimizationResult", "MAXIMIZE", "MINIMIZE"]
+__all__ = ["optimize", "OptimizationResult", "MAXIMIZE", "MINIMIZE", "parse_condition"]
 
 #: Figures for which larger is better; an objective named here is maximised.
 MAXIMIZE = {"snr", "snr_db", "bandwidth", "phase_margin", "dynamic_range_db", "gain_margin_db",
@@ -155,6 +156,13 @@ def _constraint(name, op, limit, source="given", absolute=False) -> dict:
 def _parse_constraints(constraints) -> list[dict]:
     out = []
     for name, spec in (constraints or {}).items():
+        if isinstance(spec, str):  # ">= 900 MHz"
+            spec = parse_condition(name, spec)
+        if (isinstance(spec, list) and spec and spec[0] not in _OPS
+                and all(isinstance(s, (str, tuple)) for s in spec)):  # several conditions
+            for item in spec:
+                out += _parse_constraints({name: item})
+            continue
         if isinstance(spec, (tuple, list)) and len(spec) == 2 and spec[0] in _OPS:
             op, limit = spec
         elif isinstance(spec, dict) and set(spec) <= {"min", "max"}:
@@ -164,8 +172,8 @@ def _parse_constraints(constraints) -> list[dict]:
             continue
         else:
             raise DesignError(
-                f"constraint {name!r} = {spec!r} is invalid; write (\">=\", value), (\"<=\", value) "
-                "or {'min': value, 'max': value}", parameter=name)
+                f"constraint {name!r} = {spec!r} is invalid; write '>= value', (\">=\", value), "
+                "(\"<=\", value) or {'min': value, 'max': value}", parameter=name)
         out.append(_constraint(name, op, float(limit)))
     return out
 
@@ -468,3 +476,46 @@ def _column(frame: pd.DataFrame, name: str) -> str:
                           f"constraint; numeric figures: {', '.join(numeric)}", parameter=name)
     return name
 
+
+
+_CONDITION = re.compile(r"^\s*(>=|<=)\s*(\S.*?)\s*$")
+
+
+def parse_condition(figure: str, text: str) -> tuple[str, float]:
+    """``">= 900 MHz"`` -> ``(">=", 9e8)``: a condition on a receiver figure, in SI.
+
+    Parameters
+    ----------
+    figure : str
+        The figure the condition bounds (a name of :data:`~photorx.analysis.result.FIGURES`);
+        a limit written with a unit must carry that figure's unit (degrees, dB and dBm
+        figures take bare numbers).
+    text : str
+        ``">= VALUE"`` or ``"<= VALUE"``; VALUE a number (SI) or a quantity with units.
+
+    Returns
+    -------
+    tuple of (str, float)
+        The relation and the limit [SI unit of the figure].
+
+    Raises
+    ------
+    DesignError
+        Any other text, or a limit of the wrong dimension; the message names the figure.
+    """
+    from ..units import parse_quantity
+    from .result import FIGURES
+
+    m = _CONDITION.match(str(text))
+    if not m:
+        raise DesignError(f"condition on {figure!r} = {text!r} is invalid; write '>= VALUE' or "
+                          "'<= VALUE', e.g. '>= 900 MHz'", parameter=figure)
+    unit = FIGURES.get(figure, (None,))[0]
+    unit = None if unit in (None, "", "deg", "dB", "dBm", "bit/s") else unit.replace("rtHz", "Hz^0.5")
+    try:
+        limit = parse_quantity(m.group(2), unit)
+    except DesignError as exc:
+        raise DesignError(f"condition on {figure!r} = {text!r}: {exc}", parameter=figure) from None
+    if math.isnan(limit):
+        raise DesignError.out_of_range(f"condition on {figure!r}", limit, "", "a number, not NaN")
+    return m.group(1), limit

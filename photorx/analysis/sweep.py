@@ -17,7 +17,7 @@ import pandas as pd
 from ..errors import DesignError
 from .parameters import resolve_parameter, with_parameters
 
-__all__ = ["sweep", "grid", "column_units"]
+__all__ = ["sweep", "grid", "column_units", "evaluate_points"]
 
 #: Grids larger than this are evaluated in chunks (memory: each point carries a frequency grid).
 #: Each chunk pays the fixed cost of one evaluation (some 20 ms of Python and small-array
@@ -123,12 +123,7 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     text_labels: dict[str, dict[str, int]] = {}
     for start in range(0, total, size):
         chunk = {k: v[start:start + size] for k, v in points.items()}
-        rx = with_parameters(receiver, **chunk)
-        result = rx.evaluate()
-        shape = np.shape(result.values["bandwidth"])
-        figures = {k: np.ravel(np.broadcast_to(np.asarray(v), shape))
-                   for k, v in result.to_dict().items()}
-        del result, rx
+        figures = evaluate_points(receiver, chunk)
         # column order as before: a swept figure keeps its place, a new axis column goes
         # in at 1 + its axis index counting a leading "point" column (dropped below)
         order = ["point", *figures]
@@ -153,6 +148,29 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
     frame = pd.DataFrame(columns, copy=False)
     frame.attrs["units"] = column_units(frame.columns)
     return frame
+
+
+def evaluate_points(receiver, columns) -> dict[str, np.ndarray]:
+    """Every scalar figure at explicit design points given as columns, in one vectorised call.
+
+    Parameters
+    ----------
+    receiver : Receiver
+        The base design; parameters not given keep its values.
+    columns : dict
+        Parameter name (as :func:`sweep` accepts it; dotted paths written with ``__``) ->
+        1-D array of its values at the points [SI]; all of one length N.
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        Figure name (every entry of :meth:`ReceiverResult.to_dict`) -> 1-D array of N
+        values (text figures as string arrays).
+    """
+    result = with_parameters(receiver, **columns).evaluate()
+    shape = np.shape(result.values["bandwidth"])
+    return {k: np.ravel(np.broadcast_to(np.asarray(v), shape))
+            for k, v in result.to_dict().items()}
 
 
 def sweep_points(receiver, points) -> pd.DataFrame:

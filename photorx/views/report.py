@@ -227,10 +227,18 @@ def section_eye(rx, context) -> str:
     return "\n".join(eye_section(rx, context["fmt"]))
 
 
+def section_yield(rx, context) -> str:
+    """Yield of a tolerance study (pass fractions, drivers, corners); empty without a study."""
+    study = context.get("study")
+    return "" if study is None else "\n".join(_yield_section(study, context["fmt"]))
+
+
 #: The report's sections in order: each ``section(rx, context) -> HTML`` (``context``
-#: holds the options ``bias_points`` and ``fmt``); add a section by inserting its function.
+#: holds the options ``bias_points``, ``fmt`` and ``study``); add a section by inserting
+#: its function.
 SECTIONS = [section_failed_checks, section_design, section_schematic, section_budget,
-            section_avalanche, section_plots, section_eye, section_cautions, section_design_file]
+            section_avalanche, section_plots, section_eye, section_yield, section_cautions,
+            section_design_file]
 
 _STYLE = """<style>
 table.photorx-parameters td, table.photorx-parameters th { padding: 0.15em 0.8em;
@@ -241,7 +249,7 @@ figure img { max-width: 100%; }
 
 
 def build_report(rx, title: str = "photorx receiver report", bias_points: int = 41,
-                 fmt: str = "png") -> str:
+                 fmt: str = "png", study=None) -> str:
     """The report as one HTML document (plots embedded, no external files).
 
     The page is the title and a short note, then each function of :data:`SECTIONS`.
@@ -256,13 +264,33 @@ def build_report(rx, title: str = "photorx receiver report", bias_points: int = 
         Points of the bias trade-off sweep.
     fmt : {"png", "svg"}
         Image format of the embedded plots.
+    study : ToleranceResult, optional
+        A tolerance study of the design; adds a yield section (pass fractions, drivers,
+        corner yields and the histograms). Default None: no such section.
     """
-    context = {"bias_points": bias_points, "fmt": fmt}
+    context = {"bias_points": bias_points, "fmt": fmt, "study": study}
     parts = [_STYLE, f"<h1>{html.escape(title)}</h1>",
              "<p>Computed by photorx from the design below. Every figure is a model estimate "
              "to be verified on hardware; see the cautions at the end.</p>"]
     parts += [text for text in (section(rx, context) for section in SECTIONS) if text]
     return html_page(title, "\n".join(parts) + "\n")
+
+
+def _yield_section(study, fmt: str) -> list:
+    """The report's yield section: the study's tables and its histograms."""
+    from . import plots
+    from .tolerance_view import tolerance_html
+
+    tols = ", ".join(f"{t.parameter} {t.describe()}" for t in study.tolerances)
+    parts = ['<section class="yield"><h2>Yield over tolerances</h2>',
+             f"<p>Monte Carlo over {html.escape(tols)} (seed {study.seed}); a unit passes "
+             "when it meets every spec at every temperature corner. Intervals are Wilson "
+             "95 % intervals.</p>", tolerance_html(study, level=3)]
+    uri = plots.figure_to_base64(study.plot(), fmt)
+    parts.append(f'<figure><img alt="tolerance study" src="{uri}"><figcaption>Spec figures '
+                 "over the units (dashed: spec limit, dotted: nominal design) and the yield "
+                 "at each temperature corner.</figcaption></figure></section>")
+    return parts
 
 
 def write_report(rx, path, title: str = "photorx receiver report", **options) -> Path:
@@ -278,7 +306,8 @@ def write_report(rx, path, title: str = "photorx receiver report", **options) ->
     title : str
         Page title; default ``"photorx receiver report"``.
     **options
-        ``bias_points`` and ``fmt``, passed on to :func:`build_report`.
+        ``bias_points``, ``fmt`` and ``study`` (a tolerance study: adds the yield
+        section), passed on to :func:`build_report`.
     """
     return atomic_write_text(path, build_report(rx, title=title, **options))
 
