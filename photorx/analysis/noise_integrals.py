@@ -77,6 +77,9 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4
     .. [2] C. D. Motchenbacher and J. A. Connelly, *Low-Noise Electronic System Design*,
        Wiley, 1993, ch. 1 (noise bandwidth).
     """
+    unknown = sorted(set(params) - _KNOWN)
+    if unknown:  # as a signature would: a misspelt keyword must not be ignored
+        raise TypeError(f"chain_noise() got an unexpected keyword argument {unknown[0]!r}")
     full = {**_DEFAULTS, **params}
     filt = dict(filter_kind=filter_kind, filter_order=filter_order, filter_cutoff=filter_cutoff)
     if filter_kind != "brickwall" and np.ndim(f_lo) == 0 and float(f_lo) > 0:
@@ -88,6 +91,7 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4
     return ms, enbw
 
 
+_KNOWN = frozenset(_CIRCUIT) | frozenset(_DEFAULTS)
 _BLOCK = 256  # designs per pass over the noise grid: about 11 MB of transfer functions
 _HALF_GRID_GAIN = 4.0  # assumed error ratio of the half grid to the full grid (2^8 in theory)
 _DENSER = 4  # density factor of the second try for designs the first grid misses
