@@ -51,7 +51,10 @@ def _load():
 
 def _bias_axis(rx, n):
     v0 = float(np.max(rx.reverse_bias))
-    return np.linspace(0.0, max(2.0 * v0, 1.0), n)
+    top = max(2.0 * v0, 1.0)
+    if hasattr(rx.photodiode, "gain"):  # an APD: up to just below its breakdown
+        top = min(top, 0.995 * float(rx.evaluate().breakdown_voltage))
+    return np.linspace(0.0, top, n)
 
 
 def bench_designs(n, repeat):
