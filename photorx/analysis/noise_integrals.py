@@ -85,9 +85,7 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4
     full = {**_DEFAULTS, **params}
     filt = dict(filter_kind=filter_kind, filter_order=filter_order, filter_cutoff=filter_cutoff)
     if filter_kind != "brickwall" and np.ndim(f_lo) == 0 and float(f_lo) > 0:
-        fast = _on_grid_in_blocks(float(f_lo), rtol, points_per_decade, top_factor, full, filt)
-        if fast is not None:
-            return fast
+        return _on_grid_in_blocks(float(f_lo), rtol, points_per_decade, top_factor, full, filt)
     ms = integrated_output_noise(f_lo, np.inf, rtol=rtol, **full, **filt)
     enbw = chain_enbw(**{k: full[k] for k in _CIRCUIT}, **filt, rtol=rtol)
     return ms, enbw
@@ -116,44 +114,39 @@ def _on_grid_in_blocks(f_lo, rtol, per_decade, top_factor, params, filt):
     The sources' densities on the grid are (designs x grid) arrays, about a dozen of them:
     a block of a few hundred designs keeps them within a few megabytes, where a chunk of
     thousands would hold tens of megabytes at once. A design whose grid integral misses the
-    tolerance (or whose grid cannot be built) is integrated again by the adaptive reference,
-    alone: one such design no longer sends its whole chunk down the slow path.
+    tolerance tries a grid ``_DENSER`` times denser; one that misses again (or whose grid
+    cannot be built) is integrated by the adaptive reference, alone: one such design no
+    longer sends its whole chunk down the slow path.
     """
     leaves = list(_leaves(params, filt))
     shape = np.broadcast_shapes(*(np.shape(v) for _, _, v in leaves))
     size = int(np.prod(shape))
     flat = [(k, i, np.broadcast_to(np.asarray(v, dtype=float), shape).reshape(-1))
             for k, i, v in leaves]
-    mean_square, enbw, ok = None, np.empty(size), np.zeros(size, dtype=bool)
+    mean_square, enbw, ok = {}, np.empty(size), np.zeros(size, dtype=bool)
+
+    def store(rows, ms, en):
+        for k, v in ms.items():
+            mean_square.setdefault(k, np.empty(size))[rows] = np.broadcast_to(v, rows.shape)
+        enbw[rows] = en
+
     # a sharply peaked loop (low phase margin) needs a denser grid than a flat one: the
     # designs that miss the tolerance try once more at four times the density
     for density in (per_decade, _DENSER * per_decade):
         todo = np.nonzero(~ok)[0]
         for start in range(0, todo.size, _BLOCK):
             rows = todo[start:start + _BLOCK]
-            block_params, block_filt = _subset(params, filt, flat, rows)
-            part = _on_grid(f_lo, rtol, density, top_factor, block_params, block_filt)
-            if part is None:
-                continue
-            ms, en, good = part
-            if mean_square is None:
-                mean_square = {k: np.empty(size) for k in ms}
-            for k, v in ms.items():
-                mean_square[k][rows] = np.broadcast_to(v, rows.shape)
-            enbw[rows] = en
-            ok[rows] = good
+            part = _on_grid(f_lo, rtol, density, top_factor, *_subset(params, filt, flat, rows))
+            if part is not None:
+                store(rows, *part[:2])
+                ok[rows] = part[2]
         if ok.all():
             break
-    if not ok.all():
+    if not ok.all():  # the adaptive reference, for the designs no grid served
         bad = np.nonzero(~ok)[0]
         sub_params, sub_filt = _subset(params, filt, flat, bad)
-        ms = integrated_output_noise(f_lo, np.inf, rtol=rtol, **sub_params, **sub_filt)
-        en = chain_enbw(**{k: sub_params[k] for k in _CIRCUIT}, **sub_filt, rtol=rtol)
-        if mean_square is None:
-            mean_square = {k: np.empty(size) for k in ms}
-        for k, v in ms.items():
-            mean_square[k][bad] = np.broadcast_to(v, bad.shape)
-        enbw[bad] = en
+        store(bad, integrated_output_noise(f_lo, np.inf, rtol=rtol, **sub_params, **sub_filt),
+              chain_enbw(**{k: sub_params[k] for k in _CIRCUIT}, **sub_filt, rtol=rtol))
     return {k: v.reshape(shape) for k, v in mean_square.items()}, enbw.reshape(shape)
 
 
@@ -192,13 +185,7 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
     span = np.log(top) - np.log(f_lo)  # design shape
     decades = float(np.max(span)) / np.log(10.0)
     n = 16 * int(np.ceil(per_decade * decades / 16.0))
-    best, _ = romberg_weights(n)
-    # error check: the same rule on every other point. Its difference to the full grid bounds
-    # the full grid's error with a wide margin (R(3,3) gains h^8); the difference of R(3,3)
-    # to R(3,2) on one grid can be small by coincidence where a loop resonance spans only a
-    # few points (seen: 3e-4 off with the estimate below 1e-4)
-    check = np.zeros(n + 1)
-    check[::2] = romberg_weights(n // 2)[0]
+    best, check = romberg_weights(n)  # check: the same rule on every other point
     u = np.linspace(0.0, 1.0, n + 1)
     f = np.exp(np.log(f_lo) + np.asarray(span)[..., None] * u)  # (..., n + 1)
     e = with_frequency_axis(params)

@@ -136,8 +136,9 @@ def sweep(receiver, progress=None, max_points=None, **axes) -> pd.DataFrame:
             values = figures[column]
             if values.dtype.kind not in "biufc":  # text: a few distinct labels, stored as codes
                 labels = text_labels.setdefault(column, {})
-                codes = np.array([labels.setdefault(v, len(labels)) for v in np.unique(values)], dtype=np.int32)
-                values = codes[np.searchsorted(np.unique(values), values)]
+                distinct, where = np.unique(values, return_inverse=True)
+                values = np.array([labels.setdefault(v, len(labels)) for v in distinct],
+                                  dtype=np.int32)[where]
             if column not in columns:
                 columns[column] = np.empty(total, dtype=values.dtype)
             columns[column][start:start + len(values)] = values
@@ -186,7 +187,6 @@ def sweep_points(receiver, points) -> pd.DataFrame:
 
 def _n_points(axes) -> int:  # pragma: no cover - helper for callers sizing progress bars
     return math.prod(len(np.atleast_1d(v)) for v in axes.values())
-
 
 
 def column_units(columns) -> dict:
