@@ -76,12 +76,12 @@ def _parts(rx):
         raise DesignError("the time-domain response takes one design point; valid range: scalar "
                           "reverse_bias and wavelength (use evaluate() for arrays)",
                           parameter="reverse_bias")
+    from .evaluation import _has_intrinsic_speed
+
     pd_ = rx.photodiode_at_temperature()
-    net = rx.equivalent_circuit()
-    circuit = rx.tia._args(net)
-    has_speed = callable(getattr(getattr(pd_, "junction", None), "depletion_width", None)) or \
-        getattr(pd_, "intrinsic_bandwidth", None) is not None
-    photodiode = pd_.intrinsic_response_at(rx.reverse_bias, rx.wavelength) if has_speed else None
+    circuit = rx.tia._args(rx._circuit_of(pd_))
+    photodiode = (pd_.intrinsic_response_at(rx.reverse_bias, rx.wavelength)
+                  if _has_intrinsic_speed(pd_) else None)
     return photodiode, circuit, rx.post_filter
 
 

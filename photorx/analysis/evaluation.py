@@ -202,6 +202,18 @@ def _no_photocurrent(pd_, wavelength, responsivity):
                        parameter="wavelength")
 
 
+def _is_physical(pd_) -> bool:
+    """True for a photodiode built on a physical junction (depletion width, transit)."""
+    return callable(getattr(getattr(pd_, "junction", None), "depletion_width", None))
+
+
+def _has_intrinsic_speed(pd_) -> bool:
+    """True when the photodiode has an intrinsic response of its own: a physical junction
+    or a given intrinsic bandwidth (a data-sheet diode without either leaves the speed to
+    the circuit)."""
+    return _is_physical(pd_) or getattr(pd_, "intrinsic_bandwidth", None) is not None
+
+
 class _Point:
     """The operating point shared by every stage: photodiode numbers and the circuit."""
 
@@ -210,7 +222,7 @@ class _Point:
         self.pd = rx.photodiode_at_temperature()
         self.v = rx.reverse_bias
         self.amp = rx.tia.amp
-        self.net = rx.equivalent_circuit()
+        self.net = rx._circuit_of(self.pd)  # the same view: one ionisation pass for an APD
         self.responsivity = np.asarray(self.pd.responsivity(rx.wavelength, self.v), dtype=float)
         if np.any(self.responsivity <= 0):
             raise _no_photocurrent(self.pd, rx.wavelength, self.responsivity)
@@ -231,9 +243,8 @@ class _Point:
             np.shape(self.loop["stable"]), np.shape(self.v), np.shape(rx.wavelength),
             np.shape(rx.optical_power), np.shape(rx.temperature), np.shape(self.responsivity),
             np.shape(self.dark))
-        junction = getattr(self.pd, "junction", None)
-        self.physical = callable(getattr(junction, "depletion_width", None))
-        self.has_speed = self.physical or getattr(self.pd, "intrinsic_bandwidth", None) is not None
+        self.physical = _is_physical(self.pd)
+        self.has_speed = _has_intrinsic_speed(self.pd)
 
     def b(self, x, dtype=float):
         """``x`` broadcast to the design shape."""

@@ -159,14 +159,19 @@ class Receiver:
 
     def equivalent_circuit(self):
         """The photodiode's equivalent circuit at this operating point."""
-        return self.photodiode_at_temperature().equivalent_circuit(
-            self.reverse_bias, optical_power=self.optical_power, wavelength=self.wavelength,
-            background_power=self.background_power)
+        return self._circuit_of(self.photodiode_at_temperature())
+
+    def _circuit_of(self, pd_):
+        """The equivalent circuit of ``pd_`` (this receiver's photodiode at its temperature,
+        built once by the caller: an APD view memoises its ionisation pass) at this point."""
+        return pd_.equivalent_circuit(self.reverse_bias, optical_power=self.optical_power,
+                                      wavelength=self.wavelength,
+                                      background_power=self.background_power)
 
     def noise(self):
         """The :class:`~photorx.analysis.noise_spectrum.NoiseSpectrum` of this design (scalar designs)."""
         pd_ = self.photodiode_at_temperature()
-        net = self.equivalent_circuit()
+        net = self._circuit_of(pd_)
         r = pd_.responsivity(self.wavelength, self.reverse_bias)
         # equivalent full-shot currents: |I_dark| for a PIN (forward-biased dark current is
         # negative; its shot noise is 2 q |I|), I_ds + M^2 F I_dm and M^2 F R P for an APD
