@@ -29,7 +29,6 @@ from .digital_eye import (Eye, height_at_ber, isi_jitter, level_currents, person
 from .digital_patterns import levels_per_symbol, parse_pattern, pattern_symbols
 from .digital_response import (_require_stable, periodic_response, rational_chain, rational_impulse,
                                rational_pulse)
-from .noise import with_frequency_axis
 from .parameters import with_trailing_axis
 from .sensitivity import q_from_ber
 
@@ -363,12 +362,22 @@ def _thinned(photodiode, f, transit_bandwidth):
     step = int(np.clip(np.floor(0.1 * lowest / df), 1, 16)) if np.isfinite(lowest) else 16
     if step == 1 or n <= _EXACT_HARMONICS + 2:
         return photodiode(f)
-    idx = np.unique(np.concatenate([np.arange(_EXACT_HARMONICS), np.arange(_EXACT_HARMONICS, n, step),
-                                    [n - 1]]))
+    # exact below _EXACT_HARMONICS, then knots every `step` harmonics and the last one; the
+    # segments between knots are filled by slices (no gather over the harmonic axis)
+    knots = np.arange(_EXACT_HARMONICS, n, step)
+    if knots[-1] != n - 1:
+        knots = np.append(knots, n - 1)
+    idx = np.concatenate([np.arange(_EXACT_HARMONICS), knots])
     h = np.asarray(photodiode(f[idx]))
-    pos = np.clip(np.searchsorted(idx, np.arange(n), side="right") - 1, 0, idx.size - 2)
-    w = (np.arange(n) - idx[pos]) / (idx[pos + 1] - idx[pos])
-    return h[..., pos] * (1.0 - w) + h[..., pos + 1] * w
+    exact, hk = h[..., :_EXACT_HARMONICS], h[..., _EXACT_HARMONICS:]
+    n_reg = knots.size - 2  # regular segments of `step` harmonics, then the last (shorter) one
+    frac = np.arange(step) / step
+    lo, hi = hk[..., :n_reg, None], hk[..., 1:n_reg + 1, None]
+    regular = (lo + (hi - lo) * frac).reshape(h.shape[:-1] + (n_reg * step,))
+    tail = n - 1 - knots[-2]  # harmonics knots[-2] .. n - 1 (inclusive)
+    frac_t = np.arange(tail + 1) / tail
+    last = hk[..., -2:-1] + (hk[..., -1:] - hk[..., -2:-1]) * frac_t
+    return np.concatenate([exact, regular, last], axis=-1)
 
 
 def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
@@ -400,13 +409,12 @@ def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
     pd_e = with_trailing_axis(p.pd, p.shape)
     v_e = np.asarray(p.v, dtype=float)[..., None]
     wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
-    circuit_e = with_frequency_axis(p.circuit)
     photodiode = pd_e.intrinsic_response_at(v_e, wl_e) if p.has_speed else None
     pf = rx.post_filter
     transit_bw = np.asarray(sensitivity.get("transit_bandwidth", np.inf), dtype=float)
 
     def response(f):
-        h = transimpedance(f, **circuit_e)
+        h = p.polynomials.transimpedance(f)
         if pf is not None:
             h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
         if photodiode is not None:

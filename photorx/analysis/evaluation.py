@@ -12,12 +12,14 @@ design points, which is how :func:`photorx.sweep` evaluates a grid in one call.
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
 from ..circuit.filters import filter_response
-from ..errors import DesignError
+from ..circuit.loop_rational import loop_polynomials
 from ..circuit.metrics import tia_figures
-from ..circuit.tia import transimpedance
+from ..errors import DesignError
 from ..device.optics import qe_from_responsivity
 from .noise import input_noise_psd, with_frequency_axis
 from .multiplication import multiplied_currents
@@ -246,6 +248,13 @@ class _Point:
         self.physical = _is_physical(self.pd)
         self.has_speed = _has_intrinsic_speed(self.pd)
 
+    @functools.cached_property
+    def polynomials(self):
+        """The loop's transfer functions as polynomial ratios, over the design shape
+        (:func:`photorx.circuit.loop_rational.loop_polynomials`): what the frequency grids
+        of the bandwidth search and the time-domain figures evaluate."""
+        return loop_polynomials(**self.circuit, shape=self.shape)
+
     def b(self, x, dtype=float):
         """``x`` broadcast to the design shape."""
         return np.broadcast_to(np.asarray(x, dtype=dtype), self.shape)
@@ -281,14 +290,13 @@ def _speed(p: _Point) -> dict:
     pd_e = with_trailing_axis(pd_, p.shape)  # swept diode fields broadcast against f grids
     v_e = np.asarray(p.v, dtype=float)[..., None]
     wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
-    circuit_e = with_frequency_axis(p.circuit)
 
     # bias- and wavelength-dependent set-up once; each refinement step evaluates f only
     photodiode = (pd_e.intrinsic_response_at(v_e, wl_e) if p.has_speed
                   else (lambda f: pd_e.intrinsic_response(f, v_e, wl_e)))
 
     def circuit(f):
-        h = transimpedance(f, **circuit_e)
+        h = p.polynomials.transimpedance(f)
         return h if pf is None else h * filter_response(f, pf.kind, pf.order, pf.cutoff)
 
     def chain(f):

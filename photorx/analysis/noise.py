@@ -222,14 +222,21 @@ def _unfiltered_psd(
     i_shot,
     stage2_noise,
     stage2_corner,
+    squared_magnitudes=None,
 ):
+    # squared_magnitudes: |H|^2 of every path of noise_transfer_functions, computed by the
+    # caller another way (the sweep path's polynomial ratios); None evaluates the nodal form
     f = np.asarray(f, dtype=float)
-    h = noise_transfer_functions(
-        f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin
-    )
+    if squared_magnitudes is None:
+        h = noise_transfer_functions(
+            f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin
+        )
+        mag2 = {k: np.abs(v) ** 2 for k, v in h.items()}
+    else:
+        mag2 = squared_magnitudes
     kt4 = 4.0 * _K * np.asarray(temperature, dtype=float)
-    h_sum2 = np.abs(h["summing"]) ** 2
-    zt2 = np.abs(h["junction"]) ** 2
+    h_sum2 = mag2["summing"]
+    zt2 = mag2["junction"]
     out = {
         "rf_thermal": kt4 / np.asarray(rf, dtype=float) * h_sum2,
         "amp_current": np.asarray(in_, dtype=float) ** 2
@@ -237,9 +244,9 @@ def _unfiltered_psd(
         * h_sum2,
         "amp_voltage": np.asarray(en, dtype=float) ** 2
         * flicker_factor(f, en_corner)
-        * np.abs(h["voltage"]) ** 2,
+        * mag2["voltage"],
         "rsh_thermal": kt4 / np.asarray(rsh, dtype=float) * zt2,
-        "rs_thermal": kt4 * np.asarray(rs, dtype=float) * np.abs(h["series"]) ** 2,
+        "rs_thermal": kt4 * np.asarray(rs, dtype=float) * mag2["series"],
     }
     for name, current in _shot_items(i_shot):
         out[name] = 2.0 * _Q * current * zt2

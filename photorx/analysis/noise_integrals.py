@@ -22,6 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..circuit.filters import filter_response
+from ..circuit.loop_rational import loop_polynomials
 from .integration import DEFAULT_RTOL, romberg_weights
 from .noise import (_unfiltered_psd, chain_enbw, integrated_output_noise, noise_transfer_functions,
                     with_frequency_axis)
@@ -189,10 +190,12 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
     u = np.linspace(0.0, 1.0, n + 1)
     f = np.exp(np.log(f_lo) + np.asarray(span)[..., None] * u)  # (..., n + 1)
     e = with_frequency_axis(params)
+    loop = _loop_polynomials(params, np.shape(span))
     out, zt2 = _unfiltered_psd(f, *(e[k] for k in ("gbw", "dc_gain", "poles", "rf", "cf", "cd",
                                                     "rsh", "rs", "cin", "en", "en_corner", "in_",
                                                     "in_corner", "temperature", "i_shot",
-                                                    "stage2_noise", "stage2_corner")))
+                                                    "stage2_noise", "stage2_corner")),
+                               squared_magnitudes=loop.squared_magnitudes(f))
     if filt["filter_kind"] is not None:
         cutoff = np.asarray(filt["filter_cutoff"], dtype=float)[..., None]
         h2 = np.abs(filter_response(f, filt["filter_kind"], filt["filter_order"], cutoff)) ** 2
@@ -226,6 +229,12 @@ def _converged(g, best, check, total, span, rtol):
     # the part left out above the top, for S falling at least as 1/f^2: S_top f_top = g_top / span
     tail = np.abs(g[..., -1]) / span
     return (err <= rtol * np.abs(total)) & (tail <= 0.1 * rtol * np.abs(total))
+
+
+def _loop_polynomials(params, grid_shape):
+    """The loop's polynomial ratios for the designs of ``params``, widened to the grid's
+    design shape (a swept filter cutoff widens it)."""
+    return loop_polynomials(**{k: params[k] for k in _CIRCUIT}, shape=grid_shape)
 
 
 def _zt_dc2(e):

@@ -154,20 +154,35 @@ class ApdAtTemperature:
             i_dm = np.asarray(a._primary_bulk(v), dtype=float)
             return np.stack(np.broadcast_arrays(m, k, i_dm))
 
+        def compute(v):
+            shape = np.broadcast_shapes(v.shape, np.shape(self.temperature))
+            m, k, i_dm = self._each(one, v, n=3)
+            f = np.asarray(av.excess_noise_factor(m, k))
+            i_ds = np.broadcast_to(self.apd.surface_dark_current, shape).astype(float)
+            return {"gain": m, "excess_noise_factor": f, "k_effective": k,
+                    "surface_dark_current": i_ds, "bulk_dark_current": i_dm}
+        return self._memoised("multiplication", v_r, compute)
+
+    def _memoised(self, name, v_r, compute):
+        """``compute(v)`` (a dict of arrays) once per bias array and quantity.
+
+        The stages ask for the same bias several times, some with a trailing frequency axis
+        (``v[..., None]``): a bias that differs only by trailing length-1 axes reuses the
+        result, reshaped (when the temperature does not reach into those axes).
+        """
         v = np.asarray(v_r, dtype=float)
-        key = (v.shape, v.tobytes())
-        if key in self._memo:
-            return dict(self._memo[key])
-        shape = np.broadcast_shapes(v.shape, np.shape(self.temperature))
-        m, k, i_dm = self._each(one, v, n=3)
-        f = np.asarray(av.excess_noise_factor(m, k))
-        i_ds = np.broadcast_to(self.apd.surface_dark_current, shape).astype(float)
-        out = {"gain": m, "excess_noise_factor": f, "k_effective": k,
-               "surface_dark_current": i_ds, "bulk_dark_current": i_dm}
-        if len(self._memo) > 8:
-            self._memo.clear()
-        self._memo[key] = out
-        return dict(out)
+        trail = 0
+        while trail < v.ndim and v.shape[v.ndim - 1 - trail] == 1:
+            trail += 1
+        if trail and np.ndim(self.temperature) <= v.ndim - trail:
+            base = self._memoised(name, v.reshape(v.shape[:v.ndim - trail]), compute)
+            return {k: np.reshape(x, np.shape(x) + (1,) * trail) for k, x in base.items()}
+        key = (name, v.shape, v.tobytes())
+        if key not in self._memo:
+            if len(self._memo) > 8:
+                self._memo.clear()
+            self._memo[key] = compute(v)
+        return dict(self._memo[key])
 
     # ---------------------------------------------------------------- photodiode-like
     @property
@@ -274,12 +289,14 @@ class ApdAtTemperature:
         return self.apd.transit_time(v_r)
 
     def _intrinsic_bandwidth(self, v_r):
-        tau = np.asarray(self.apd.transit_time(v_r), dtype=float)
-        d = self.multiplication(v_r)
-        # multiplier transit time: the multiplying region's width at the saturated velocity
-        tau_m = self.apd._profile(v_r, n_points=3)[0][..., -1] / self.apd.saturation_velocity
-        f_av = av.gain_bandwidth_limit(d["gain"], np.maximum(d["k_effective"], 1e-3), tau_m)
-        return np.asarray(av.apd_bandwidth(0.443 / tau, np.inf, f_av))
+        def compute(v):
+            tau = np.asarray(self.apd.transit_time(v), dtype=float)
+            d = self.multiplication(v)
+            # multiplier transit time: the multiplying region's width at the saturated velocity
+            tau_m = self.apd._profile(v, n_points=3)[0][..., -1] / self.apd.saturation_velocity
+            f_av = av.gain_bandwidth_limit(d["gain"], np.maximum(d["k_effective"], 1e-3), tau_m)
+            return {"bandwidth": np.asarray(av.apd_bandwidth(0.443 / tau, np.inf, f_av))}
+        return self._memoised("intrinsic_bandwidth", v_r, compute)["bandwidth"]
 
     def transit_bandwidth(self, v_r=0.0, wavelength=None):
         """Intrinsic bandwidth of transit and avalanche build-up [Hz] (see Notes of the class).
