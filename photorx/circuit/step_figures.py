@@ -147,17 +147,25 @@ def _step_block(xv, cw, t_end, n_t, tol):
     # all candidate peaks of all designs refined in one batch: (designs x 9) rows
     k = np.stack(candidates, -1).reshape(-1)
     rr = np.repeat(rows, len(candidates))
-    xr, cr = xv[rr], cw[rr]
-
-    def fprime(tt):
-        ce = cr * np.exp(xr * tt[:, None]) * xr
-        return ce.sum(-1).real, (ce * xr).sum(-1).real
-
     kl, kh = np.maximum(k - 1, 0), np.minimum(k + 1, n_t - 1)
-    ok = (fprime(t[rr, kl])[0] > 0) & (fprime(t[rr, kh])[0] < 0)
-    tm = _newton_in_bracket(fprime, t[rr, kl], t[rr, kh], t[rr, k])
-    ym, _ = _step_eval(xr, cr, tm)
-    peaks = np.where(ok, ym, -np.inf).reshape(len(rows), len(candidates))
+    # candidates past the last local maximum are placeholders (argmax of nothing: k = 0, the
+    # start of the step, never a peak); a well-damped loop has one real candidate or none,
+    # so only the real ones are refined
+    sel = np.nonzero(k > 0)[0]
+    peaks = np.full(rr.size, -np.inf)
+    if sel.size:
+        rs_, xr, cr = rr[sel], xv[rr[sel]], cw[rr[sel]]
+
+        def fprime(tt):
+            ce = cr * np.exp(xr * tt[:, None]) * xr
+            return ce.sum(-1).real, (ce * xr).sum(-1).real
+
+        lo_t, hi_t = t[rs_, kl[sel]], t[rs_, kh[sel]]
+        bracketed = (fprime(lo_t)[0] > 0) & (fprime(hi_t)[0] < 0)
+        tm = _newton_in_bracket(fprime, lo_t, hi_t, t[rs_, k[sel]])
+        ym, _ = _step_eval(xr, cr, tm)
+        peaks[sel] = np.where(bracketed, ym, -np.inf)
+    peaks = peaks.reshape(len(rows), len(candidates))
     ymax = np.maximum(ymax, peaks.max(-1))
     overshoot = np.maximum(ymax - 1.0, 0.0)
     # settling: the last sample outside the band, then the exact crossing after it

@@ -216,15 +216,17 @@ class SpeedRoutes:
             return drift
         st = self._stack(v_r)
         alpha = self._alpha(wavelength)
-        dc = speed.photocurrent_spectrum(0.0, alpha, v_far=vf, v_near=vn, **st)
-        den = np.real(sum(np.asarray(p) for p in dc))
+        layers = speed.photocurrent_layers(alpha, v_far=vf, v_near=vn, **st)  # validated once
+        den = np.real(speed.photocurrent_spectrum_of(0.0, layers))
         ok = den > 0
         den_safe = np.where(ok, den, 1.0)
+        all_ok = bool(np.all(ok))
 
         def physical(f):
             fr = np.asarray(require_nonnegative("f", f, "Hz"))
-            parts = speed.photocurrent_spectrum(fr, alpha, v_far=vf, v_near=vn, **st)
-            num = sum(np.asarray(p) for p in parts)
+            num = speed.photocurrent_spectrum_of(fr, layers)
+            if all_ok:
+                return _out(num / den_safe)
             with np.errstate(invalid="ignore", divide="ignore"):
                 h = np.where(ok, num / den_safe, 1.0 + 0j)
             return _out(h)

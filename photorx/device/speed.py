@@ -29,6 +29,8 @@ __all__ = [
     "drift_response",
     "transit_bandwidth",
     "photocurrent_spectrum",
+    "photocurrent_layers",
+    "photocurrent_spectrum_of",
     "diffusion_time",
     "rc_bandwidth",
     "combined_bandwidth",
@@ -290,24 +292,76 @@ def photocurrent_spectrum(f, alpha, top_thickness, depletion_width, bottom_thick
     .. [2] J. E. Bowers and C. A. Burrus, J. Lightwave Technol. LT-5, 1339 (1987).
     """
     fr = np.asarray(require_nonnegative("f", f, "Hz"))
+    layers = photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
+                                 top_diffusion_length, bottom_diffusion_length, top_lifetime,
+                                 bottom_lifetime, v_far, v_near)
+    return tuple(_out(part + 0j) for part in _photocurrent_parts(fr, layers))
+
+
+def photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
+                        top_diffusion_length, bottom_diffusion_length, top_lifetime,
+                        bottom_lifetime, v_far, v_near):
+    """The validated layer stack of :func:`photocurrent_spectrum`, for many frequencies.
+
+    A search that evaluates the spectrum at many frequency steps validates the stack once
+    here and calls :func:`photocurrent_spectrum_of` for each step.
+
+    Parameters
+    ----------
+    alpha, top_thickness, depletion_width, bottom_thickness, top_diffusion_length,
+    bottom_diffusion_length, top_lifetime, bottom_lifetime, v_far, v_near
+        As in :func:`photocurrent_spectrum` (SI units; DesignError out of range).
+
+    Returns
+    -------
+    dict of numpy.ndarray
+        The stack as arrays, with the transit times W / v_far and W / v_near.
+    """
     a = np.asarray(require_nonnegative("alpha", alpha, "m^-1"))
-    d = np.asarray(require_nonnegative("top_thickness", top_thickness, "m"))
     w = np.asarray(require_nonnegative("depletion_width", depletion_width, "m"))
-    hh = np.asarray(require_thickness_or_inf("bottom_thickness", bottom_thickness))
-    lt = np.asarray(require_positive("top_diffusion_length", top_diffusion_length, "m"))
-    lb = np.asarray(require_positive("bottom_diffusion_length", bottom_diffusion_length, "m"))
-    tt = np.asarray(require_positive("top_lifetime", top_lifetime, "s"))
-    tb = np.asarray(require_positive("bottom_lifetime", bottom_lifetime, "s"))
     vf = np.asarray(require_positive("v_far", v_far, "m/s"))
     vn = np.asarray(require_positive("v_near", v_near, "m/s"))
+    return {
+        "a": a, "d": np.asarray(require_nonnegative("top_thickness", top_thickness, "m")), "w": w,
+        "h": np.asarray(require_thickness_or_inf("bottom_thickness", bottom_thickness)),
+        "lt": np.asarray(require_positive("top_diffusion_length", top_diffusion_length, "m")),
+        "lb": np.asarray(require_positive("bottom_diffusion_length", bottom_diffusion_length,
+                                          "m")),
+        "tt": np.asarray(require_positive("top_lifetime", top_lifetime, "s")),
+        "tb": np.asarray(require_positive("bottom_lifetime", bottom_lifetime, "s")),
+        "tau_f": w / vf, "tau_n": w / vn,
+    }
+
+
+def photocurrent_spectrum_of(f, layers):
+    """Sum of the three parts of :func:`photocurrent_spectrum` for a validated stack [-].
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency [Hz], >= 0 (not checked: the caller's grid).
+    layers : dict
+        From :func:`photocurrent_layers`.
+
+    Returns
+    -------
+    numpy.ndarray
+        top + drift + bottom, complex.
+    """
+    top, drift, bottom = _photocurrent_parts(np.asarray(f, dtype=float), layers)
+    return top + drift + bottom
+
+
+def _photocurrent_parts(fr, st):
+    a, d, w = st["a"], st["d"], st["w"]
     omega = 2 * np.pi * fr
-    tau_f, tau_n = w / vf, w / vn
-    b_top = np.sqrt(1.0 + 1j * omega * tt) / lt
-    b_bot = np.sqrt(1.0 + 1j * omega * tb) / lb
+    tau_f, tau_n = st["tau_f"], st["tau_n"]
+    b_top = np.sqrt(1.0 + 1j * omega * st["tt"]) / st["lt"]
+    b_bot = np.sqrt(1.0 + 1j * omega * st["tb"]) / st["lb"]
     top = _top_collection(a, d, b_top) * _g(1j * omega * tau_f)
     drift = np.exp(-a * d) * _drift_spectrum(omega, a * w, tau_f, tau_n)
-    bottom = np.exp(-a * (d + w)) * _bottom_collection(a, hh, b_bot) * _g(1j * omega * tau_n)
-    return _out(top + 0j), _out(drift + 0j), _out(bottom + 0j)
+    bottom = np.exp(-a * (d + w)) * _bottom_collection(a, st["h"], b_bot) * _g(1j * omega * tau_n)
+    return top, drift, bottom
 
 
 def diffusion_time(distance, diffusivity):

@@ -99,6 +99,20 @@ def test_photocurrent_spectrum_dc_equals_collection():
     np.testing.assert_allclose(np.real(dc), optics.collection_fractions(**kw), rtol=1e-12)
 
 
+def test_spectrum_of_a_validated_stack_is_the_sum_of_the_parts():
+    # The search path (photocurrent_layers once, photocurrent_spectrum_of per step) must give
+    # exactly the public function's top + drift + bottom (same arithmetic, no revalidation).
+    kw = dict(alpha=3e4, top_thickness=0.3e-6, depletion_width=np.array([[2e-6], [5e-6]]),
+              bottom_thickness=np.inf, top_diffusion_length=1e-6, bottom_diffusion_length=30e-6,
+              top_lifetime=1e-8, bottom_lifetime=1e-5, v_far=1e5, v_near=8e4)
+    f = np.logspace(3, 11, 9)
+    top, drift, bottom = speed.photocurrent_spectrum(f, **kw)
+    np.testing.assert_array_equal(speed.photocurrent_spectrum_of(f, speed.photocurrent_layers(**kw)),
+                                  top + drift + bottom)
+    with pytest.raises(DesignError, match="v_near"):
+        speed.photocurrent_layers(**{**kw, "v_near": -1.0})
+
+
 def test_diffusion_response_against_bvp():
     # Small-signal diffusion in the bottom layer: D n'' - n (1 + j w tau)/tau = -G(x),
     # n(0) = 0 at the depletion edge, n'(H) = 0 (reflecting back); collected flux D n'(0)
