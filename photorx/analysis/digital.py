@@ -8,7 +8,9 @@ the exact rational part and the periodic pattern response of
 :mod:`~photorx.analysis.digital_response`, the patterns of
 :mod:`~photorx.analysis.digital_patterns` and the eye figures of
 :mod:`~photorx.analysis.digital_eye`. The noise is the receiver's own noise integral
-(:func:`~photorx.analysis.evaluation.evaluate_receiver`: circuit noise and ENBW).
+(:func:`~photorx.analysis.evaluation.evaluate_receiver`: circuit noise and ENBW). The ISI
+figures that ``evaluate()`` itself reports, for every design point of a sweep, are in
+:mod:`~photorx.analysis.digital_figures` (below the evaluation; this module sits above it).
 
 References
 ----------
@@ -29,44 +31,13 @@ from .digital_eye import (Eye, height_at_ber, isi_jitter, level_currents, person
 from .digital_patterns import levels_per_symbol, parse_pattern, pattern_symbols
 from .digital_response import (_require_stable, periodic_response, rational_chain, rational_impulse,
                                rational_pulse)
-from .parameters import with_trailing_axis
+from .digital_figures import (DIGITAL_FIGURES, _eye_arrays, _thinned, check_bit_rate,
+                              digital_figures)
+from .evaluation import _has_intrinsic_speed, evaluate_receiver
 from .sensitivity import q_from_ber
 
 __all__ = ["check_bit_rate", "chain_response", "pulse_response", "impulse_response", "receiver_eye",
            "digital_figures", "DIGITAL_FIGURES", "bandwidth_ratio_study"]
-
-_BIT_RATE_RANGE = (1.0, 1e12)  # bit/s, as the design-file schema
-_EVAL_SAMPLES = 16  # samples per bit for the figures of evaluate() (PRBS7)
-
-
-def check_bit_rate(bit_rate, name="bit_rate"):
-    """``bit_rate`` as a float in 1 bit/s .. 1 Tbit/s, else a DesignError naming it.
-
-    Parameters
-    ----------
-    bit_rate : float
-        Bit rate [bit/s].
-    name : str
-        Parameter name for the message.
-    """
-    if bit_rate is None:
-        raise DesignError(f"{name} is not set: the eye needs a bit rate; valid range: "
-                          "1 bit/s to 1e12 bit/s", parameter=name)
-    if isinstance(bit_rate, (str, bytes)):  # text is the command line's to parse (units)
-        raise DesignError(f"{name} = {bit_rate!r} is not a number; valid range: 1 bit/s to "
-                          "1e12 bit/s (write 10e9 or parse '10 Gbit/s' with photorx.units)",
-                          parameter=name)
-    if isinstance(bit_rate, bool) or np.ndim(bit_rate) != 0:
-        raise DesignError.out_of_range(name, bit_rate, "bit/s", "one number, 1 to 1e12")
-    try:
-        value = float(bit_rate)
-    except (TypeError, ValueError):
-        raise DesignError(f"{name} = {bit_rate!r} is not a number; valid range: 1 to 1e12 bit/s",
-                          parameter=name) from None
-    if not _BIT_RATE_RANGE[0] <= value <= _BIT_RATE_RANGE[1]:  # also NaN
-        raise DesignError.out_of_range(name, value, "bit/s", "1 bit/s to 1e12 bit/s")
-    return value
-
 
 # ------------------------------------------------------------------------------ the chain
 def _parts(rx):
@@ -75,8 +46,6 @@ def _parts(rx):
         raise DesignError("the time-domain response takes one design point; valid range: scalar "
                           "reverse_bias and wavelength (use evaluate() for arrays)",
                           parameter="reverse_bias")
-    from .evaluation import _has_intrinsic_speed
-
     pd_ = rx.photodiode_at_temperature()
     circuit = rx.tia._args(rx._circuit_of(pd_))
     photodiode = (pd_.intrinsic_response_at(rx.reverse_bias, rx.wavelength)
@@ -224,35 +193,6 @@ def impulse_response(rx, t):
 
 
 # -------------------------------------------------------------------------------- the eye
-def _fold(wave, n_sym, m):
-    """Roll one period so that the peak of the summed response sits mid-symbol; fold (N, M)."""
-    return wave.reshape(wave.shape[:-1] + (n_sym, m))
-
-
-def _eye_arrays(response, symbols, levels, n_levels, period, m):
-    """Traces (..., N, M) and cursors (..., N, M) in units of the full swing; the shift."""
-    n_sym = symbols.size
-    single = np.zeros(n_sym)
-    single[0] = 1.0
-    memo = {}
-
-    def once(f):  # both patterns share the harmonic grid: evaluate the chain once
-        if "h" not in memo:
-            memo["h"] = response(f)
-        return memo["h"]
-    y = periodic_response(once, symbols, period, m)  # the pattern
-    p = periodic_response(once, single, period, m)  # one full-swing pulse, folded at N T
-    zt0 = np.abs(np.asarray(response(np.zeros(1)))[..., 0])
-    y, p = y / zt0[..., None], p / zt0[..., None]
-    # align: the pulse peak mid-symbol, so the eye window is centred on the decision
-    peak = np.argmax(p, axis=-1)
-    shift = peak - m // 2
-    idx = (np.arange(n_sym * m) + shift[..., None]) % (n_sym * m)
-    y = np.take_along_axis(y, idx, axis=-1)
-    p = np.take_along_axis(p, idx, axis=-1)
-    return _fold(y, n_sym, m), _fold(p, n_sym, m), shift, zt0
-
-
 def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_per_symbol=32):
     """The eye of a scalar receiver for a PRBS pattern: see :class:`Eye`.
 
@@ -269,8 +209,6 @@ def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_p
     samples_per_symbol : int
         Phases per symbol, 8 to 256.
     """
-    from .evaluation import evaluate_receiver
-
     rate = check_bit_rate(rx.bit_rate if bit_rate is None else bit_rate)
     n = parse_pattern(pattern)
     n_levels = levels_per_symbol(modulation)
@@ -335,116 +273,6 @@ def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_p
         jitter_pp=jit_pp, jitter_rms=jit_rms, sensitivity=float(sens),
         sensitivity_noise_only=float(sens0), personick_i2=float(i2), personick_i3=float(i3),
         dc_transimpedance=zt0)
-
-
-# ------------------------------------------------------------------ figures for evaluate()
-#: Figures that evaluate() adds for a digital receiver (NaN without a bit rate); their units
-#: and descriptions are in :data:`photorx.analysis.result.FIGURES`.
-DIGITAL_FIGURES = ("eye_opening", "worst_case_eye_opening", "sensitivity_isi", "sensitivity_isi_dbm",
-                   "isi_penalty_db")
-
-
-_EXACT_HARMONICS = 32  # the lowest harmonics (diffusion tail) always get the model itself
-
-
-def _thinned(photodiode, f, transit_bandwidth):
-    """The photodiode model at every harmonic ``f`` (1-D, uniform from 0), computed at few.
-
-    The lowest harmonics are evaluated exactly; above them every s-th, with s up to 16 and
-    s f_1 <= transit_bandwidth / 10, and the rest linearly interpolated (real and imaginary
-    parts): the drift response varies on the scale of the transit bandwidth and the
-    diffusion tail like a power of f, so the interpolation error is below 1e-3 of the
-    response. A sweep evaluates the costly diffusion model at a tenth of the points.
-    """
-    n = f.size
-    df = f[1] - f[0] if n > 1 else 1.0
-    lowest = float(np.min(transit_bandwidth)) if np.size(transit_bandwidth) else np.inf
-    step = int(np.clip(np.floor(0.1 * lowest / df), 1, 16)) if np.isfinite(lowest) else 16
-    if step == 1 or n <= _EXACT_HARMONICS + 2:
-        return photodiode(f)
-    # exact below _EXACT_HARMONICS, then knots every `step` harmonics and the last one; the
-    # segments between knots are filled by slices (no gather over the harmonic axis)
-    knots = np.arange(_EXACT_HARMONICS, n, step)
-    if knots[-1] != n - 1:
-        knots = np.append(knots, n - 1)
-    idx = np.concatenate([np.arange(_EXACT_HARMONICS), knots])
-    h = np.asarray(photodiode(f[idx]))
-    exact, hk = h[..., :_EXACT_HARMONICS], h[..., _EXACT_HARMONICS:]
-    n_reg = knots.size - 2  # regular segments of `step` harmonics, then the last (shorter) one
-    frac = np.arange(step) / step
-    lo, hi = hk[..., :n_reg, None], hk[..., 1:n_reg + 1, None]
-    regular = (lo + (hi - lo) * frac).reshape(h.shape[:-1] + (n_reg * step,))
-    tail = n - 1 - knots[-2]  # harmonics knots[-2] .. n - 1 (inclusive)
-    frac_t = np.arange(tail + 1) / tail
-    last = hk[..., -2:-1] + (hk[..., -1:] - hk[..., -2:-1]) * frac_t
-    return np.concatenate([exact, regular, last], axis=-1)
-
-
-def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
-    """The ISI figures of :data:`DIGITAL_FIGURES` for every design point of an evaluation.
-
-    Parameters
-    ----------
-    p : photorx.analysis.evaluation._Point
-        The evaluation's operating point (photodiode, circuit, design shape).
-    noise : dict
-        Its noise figures (``circuit_noise_rms`` [A], ``noise_bandwidth`` [Hz]).
-    sensitivity : dict
-        Its figures so far: ``sensitivity`` [W] (noise only) and ``transit_bandwidth`` [Hz]
-        (the scale on which the photodiode response varies).
-
-    Returns
-    -------
-    dict
-        Figure name -> array of the design shape; NaN everywhere without a bit rate (no
-        work is done then) and at unstable design points.
-    """
-    rx = p.rx
-    if rx.bit_rate is None:
-        nan = p.b(np.nan)
-        return {name: nan for name in DIGITAL_FIGURES}
-    rate = check_bit_rate(rx.bit_rate)
-    symbols = pattern_symbols(7, "nrz")
-    levels = symbols.astype(int)
-    pd_e = with_trailing_axis(p.pd, p.shape)
-    v_e = np.asarray(p.v, dtype=float)[..., None]
-    wl_e = np.asarray(rx.wavelength, dtype=float)[..., None]
-    photodiode = pd_e.intrinsic_response_at(v_e, wl_e) if p.has_speed else None
-    pf = rx.post_filter
-    transit_bw = np.asarray(sensitivity.get("transit_bandwidth", np.inf), dtype=float)
-
-    def response(f):
-        h = p.polynomials.transimpedance(f)
-        if pf is not None:
-            h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
-        if photodiode is not None:
-            h = h * _thinned(photodiode, f, transit_bw)
-        return np.broadcast_to(h, p.shape + np.shape(f))
-
-    traces, cursors, _, _ = _eye_arrays(response, symbols, levels, 2, 1.0 / rate, _EVAL_SAMPLES)
-    opening_phase = vertical_opening(traces, levels, 2)
-    best = np.argmax(opening_phase, axis=-1)
-    samples = np.take_along_axis(traces, best[..., None, None], axis=-1)[..., 0]
-    stable = p.b(p.loop["stable"], bool)
-    with np.errstate(invalid="ignore", over="ignore"):
-        # an APD: signal M R P, its shot noise M F times, the dark current's shot-noise
-        # equivalent (as the noise-only sensitivity of evaluation._sensitivity)
-        sens = statistical_sensitivity(samples, levels, 2, rx.target_ber,
-                                       p.b(p.mult["gain"] * p.responsivity),
-                                       noise["circuit_noise_rms"], noise["noise_bandwidth"],
-                                       rx.extinction_ratio, p.b(p.dark_shot),
-                                       noise_factor=p.b(p.mult["noise_factor"]))
-        penalty = 10.0 * np.log10(sens / sensitivity["sensitivity"])
-        sens_dbm = 10.0 * np.log10(sens / 1e-3)
-
-    def mask(x):
-        return np.where(stable, np.broadcast_to(x, p.shape), np.nan)
-    return {
-        "eye_opening": mask(np.max(opening_phase, axis=-1)),
-        "worst_case_eye_opening": mask(np.max(worst_case_opening(cursors, 2), axis=-1)),
-        "sensitivity_isi": mask(sens), "sensitivity_isi_dbm": mask(sens_dbm),
-        "isi_penalty_db": mask(penalty),
-    }
 
 
 # ----------------------------------------------------------------- bandwidth / bit-rate study

@@ -22,6 +22,7 @@ from ..circuit.metrics import tia_figures
 from ..errors import DesignError
 from ..device.optics import qe_from_responsivity
 from .noise import input_noise_psd, with_frequency_axis
+from .digital_figures import digital_figures
 from .multiplication import multiplied_currents
 from .noise_integrals import chain_noise
 from .parameters import with_trailing_axis
@@ -507,7 +508,6 @@ def evaluate_receiver(rx):
     noise, by_source, mean_square, spot = _noise(p)
     values = {**op, **speed, **_stability(p), **noise, **_sensitivity(p, noise), **_checks(p, op, speed),
               **_multiplication(p, mean_square)}
-    from .digital import digital_figures  # ISI figures at the bit rate; NaN (no work) without one
 
     values.update(digital_figures(p, noise, values))
     warnings = tuple(text for name, text in _WARNINGS if not np.all(values[name]))
