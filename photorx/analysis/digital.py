@@ -33,7 +33,7 @@ from .digital_response import (_require_stable, periodic_response, rational_chai
                                rational_pulse)
 from .digital_figures import (DIGITAL_FIGURES, _eye_arrays, _thinned, check_bit_rate,
                               digital_figures)
-from .evaluation import _has_intrinsic_speed, evaluate_receiver
+from .evaluation import _has_intrinsic_speed, _Point, evaluate_receiver
 from .sensitivity import q_from_ber
 
 __all__ = ["check_bit_rate", "chain_response", "pulse_response", "impulse_response", "receiver_eye",
@@ -225,12 +225,15 @@ def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_p
     zt0 = float(zt0)
     r = evaluate_receiver(rx)
     circuit_rms, enbw = float(r.circuit_noise_rms), float(r.noise_bandwidth)
-    gain, excess = float(r.gain), float(r.excess_noise_factor)  # 1 and 1 for a PIN
-    resp_a = float(r.responsivity) * gain
-    dark = abs(float(r.dark_current))
+    # as the sensitivities of evaluate(): signal M R P with its shot noise M F times
+    # (Personick 1973), the dark current as its shot-noise equivalent I_ds + M^2 F I_dm
+    # (1, 1 and |I_dark| for a PIN)
+    point = _Point(rx)
+    resp_a = float(point.mult["gain"] * point.responsivity)
+    noise_factor = float(point.mult["noise_factor"])
+    dark = float(point.dark_shot)
     currents = level_currents(rx.optical_power, rx.extinction_ratio, resp_a, dark, n_levels)
-    # the multiplied signal's shot noise counts M F times (Personick 1973)
-    sigmas = _sigmas(currents, circuit_rms, enbw, gain * excess * (currents - dark) + dark)
+    sigmas = _sigmas(currents, circuit_rms, enbw, noise_factor * (currents - dark) + dark)
     q_value = float(q_from_ber(rx.target_ber))
     best = int(np.argmax(vertical_opening(traces, levels, n_levels)))
     # centre the window on the best decision phase (the pulse peak was only a first guess)
@@ -242,9 +245,10 @@ def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_p
     height_phase = height_at_ber(traces, levels, n_levels, currents, sigmas, q_value)
     ideal = levels / (n_levels - 1)
     sens = statistical_sensitivity(traces[:, best], levels, n_levels, rx.target_ber, resp_a,
-                                   circuit_rms, enbw, rx.extinction_ratio, dark)
+                                   circuit_rms, enbw, rx.extinction_ratio, dark,
+                                   noise_factor=noise_factor)
     sens0 = statistical_sensitivity(ideal, levels, n_levels, rx.target_ber, resp_a, circuit_rms,
-                                    enbw, rx.extinction_ratio, dark)
+                                    enbw, rx.extinction_ratio, dark, noise_factor=noise_factor)
     wave = traces.reshape(-1)
     jit_pp, jit_rms = isi_jitter(wave, levels, n_levels, int(m), best, period)
     wc = worst_case_opening(cursors, n_levels)

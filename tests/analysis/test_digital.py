@@ -232,6 +232,20 @@ def test_apd_design_isi_sensitivity_counts_the_gain():
     assert float(r.sensitivity_isi) < 3.0 * float(r.sensitivity)
 
 
+def test_apd_eye_counts_the_excess_noise_as_evaluate_does():
+    """The Eye of an APD and the ISI figures of evaluate() share the noise model (signal
+    M R P, its shot noise M F times, dark current at I_ds + M^2 F I_dm) and the harmonics:
+    they agree as for a PIN (test_evaluate_reports_the_isi_figures_only_with_a_bit_rate).
+    The noise-only sensitivity of the eye is the receiver's closed-form sensitivity
+    (required_average_power, Personick 1973)."""
+    rx = prx.load_design("si-apd-850")
+    r = rx.evaluate()
+    eye = rx.eye(samples_per_symbol=16)
+    assert eye.sensitivity == pytest.approx(float(r.sensitivity_isi), rel=1e-4)
+    assert eye.sensitivity_noise_only == pytest.approx(float(r.sensitivity), rel=1e-6)
+    assert eye.isi_penalty_db == pytest.approx(float(r.isi_penalty_db), abs=1e-3)
+
+
 def test_pam4_noise_limited_penalty_is_about_4_8_db():
     """Same symbol rate and signal-independent noise (shot noise made negligible): PAM4
     needs 3x the NRZ amplitude, 10 log10(3) = 4.77 dB (common practice); the exact figure
