@@ -385,6 +385,7 @@ def _noise(p: _Point):
     sources = dict(
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),
         in_corner=p.b(amp.current_noise_corner), temperature=p.b(rx.temperature),
+        en_shape=amp.voltage_noise_curve, in_shape=amp.current_noise_curve,
         i_shot={k: p.b(p.mult[f"shot_{k}"]) for k in ("dark", "signal", "background")})
     # one grid for both integrals: the loop's transfer functions are built once
     mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources)
