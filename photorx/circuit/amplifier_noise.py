@@ -43,8 +43,8 @@ def _table(parameter: str, frequencies, densities, unit: str):
                           f"{f.shape} and {d.shape}", parameter=parameter)
     bad = ~(np.isfinite(f) & (f > 0))
     if bad.any():
-        raise DesignError.out_of_range(f"{parameter} frequency", f[bad][0], "Hz",
-                                       "> 0 and finite")
+        raise DesignError(f"{parameter}: frequency = {f[bad][0]:.6g} Hz is invalid; valid "
+                          "range: > 0 and finite", parameter=parameter)
     steps = np.diff(f)
     if np.any(steps <= 0):
         i = int(np.argmax(steps <= 0))
@@ -53,8 +53,8 @@ def _table(parameter: str, frequencies, densities, unit: str):
                           parameter=parameter)
     bad = ~(np.isfinite(d) & (d > 0))
     if bad.any():
-        raise DesignError.out_of_range(f"{parameter} density", d[bad][0], unit,
-                                       "> 0 and finite")
+        raise DesignError(f"{parameter}: density = {d[bad][0]:.6g} {unit} is invalid; valid "
+                          "range: > 0 and finite", parameter=parameter)
     return f, d
 
 
