@@ -242,7 +242,8 @@ class _Point:
         self.shape = np.broadcast_shapes(
             np.shape(self.loop["stable"]), np.shape(self.v), np.shape(rx.wavelength),
             np.shape(rx.optical_power), np.shape(rx.temperature), np.shape(self.responsivity),
-            np.shape(self.dark))
+            np.shape(self.dark), *(np.shape(getattr(self.amp, name)) for name in (  # noise-only
+                "voltage_noise", "current_noise", "voltage_noise_corner", "current_noise_corner")))
         self.physical = _is_physical(self.pd)
         self.has_speed = _has_intrinsic_speed(self.pd)
 
