@@ -213,8 +213,9 @@ def as_noise_curve(value, parameter: str, unit: str):
     ----------
     value : NoiseCurve, pair of sequences, array_like of shape (N, 2), or None
         A curve; a ``(frequencies, densities)`` pair (shape (2, N)); or N rows of
-        ``[frequency, density]`` (shape (N, 2)). A 2 x 2 array is read as a pair when its
-        first row increases (frequencies), else as rows. None gives None.
+        ``[frequency, density]`` (shape (N, 2)). A 2 x 2 array is read as a pair when
+        every entry of its first row exceeds every entry of its second (frequencies above
+        densities), else as rows. None gives None.
     parameter : str
         Name used in error messages, e.g. ``"voltage_noise_curve"``.
     unit : str
@@ -241,7 +242,9 @@ def as_noise_curve(value, parameter: str, unit: str):
         raise DesignError(f"{parameter} has shape {arr.shape}; valid: (2, N) (frequencies, "
                           "densities) or (N, 2) rows of [frequency, density], N >= 2",
                           parameter=parameter)
-    rows = arr.shape[0] != 2 or (arr.shape[1] == 2 and not arr[0, 1] > arr[0, 0])
+    # 2 x 2: a pair holds the frequencies (large) in its first row and the densities (tiny)
+    # in its second; rows hold a density at [0, 1] below the frequency at [1, 0]
+    rows = arr.shape[0] != 2 or (arr.shape[1] == 2 and not arr[0].min() > arr[1].max())
     f, d = (arr[:, 0], arr[:, 1]) if rows else (arr[0], arr[1])
     _table(parameter, f, d, unit)  # errors name the amplifier's parameter
     return NoiseCurve(tuple(f), tuple(d), unit)

@@ -155,6 +155,8 @@ def test_table_forms_are_read_alike():
     two = NoiseCurve((10.0, 1e3), (20e-9, 5e-9))  # 2 x 2: pair when the first row rises
     assert as_noise_curve([[10.0, 1e3], [20e-9, 5e-9]], "c", "V/rtHz") == two
     assert as_noise_curve([[10.0, 20e-9], [1e3, 5e-9]], "c", "V/rtHz") == two
+    with pytest.raises(DesignError, match="1000 Hz after 10 Hz|10 Hz after 1000 Hz"):
+        as_noise_curve([[1e3, 10.0], [5e-9, 9e-9]], "c", "V/rtHz")  # a falling pair, not rows
 
 
 def test_opamp_rule_the_curve_is_the_shape_and_the_white_level_scales_it():
