@@ -618,8 +618,8 @@ def test_template_shows_a_noise_curve_that_loads():
      ["[amplifier] voltage_noise_curve", "10 Hz after 1000 Hz", "strictly increasing"]),
     ('voltage_noise_curve = [["1 kHz", "5 nV/rtHz"], ["1 kHz", "9 nV/rtHz"]]',
      ["[amplifier] voltage_noise_curve", "strictly increasing"]),
-    ('voltage_noise_curve = [["10 Hz", "9 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]\n'
-     'voltage_noise_corner = "1 kHz"', ["[amplifier] voltage_noise_corner", "curve"]),
+    (('voltage_noise_curve = [["10 Hz", "9 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]\n'
+      'voltage_noise_corner = "1 kHz"'), ["[amplifier] voltage_noise_corner", "curve"]),
     ('current_noise_curve = [["10 Hz", "9 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]',
      ["[amplifier] current_noise_curve", "A/rtHz"]),
 ])

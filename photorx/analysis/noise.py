@@ -14,7 +14,8 @@ returns a :class:`~photorx.analysis.noise_spectrum.NoiseSpectrum`; both live in
 :mod:`photorx.analysis.noise_spectrum`, which imports this core (never the reverse).
 
 Noise model (circuit of :mod:`photorx.circuit.tia`; T = loop gain, F = T/(1+T),
-Zf = 1/Yf, divider = Zd/(Zd + Rs), Zt = Zf divider F), every source uncorrelated:
+Zf = 1/Yf, divider = Zd/(Zd + Rs), Zt = Zf divider F), every source uncorrelated (with a
+tabulated amplifier noise curve, ``en_shape`` / ``in_shape``, its shape replaces 1 + f_c/f):
 
 ==================  ===========================  ================================
 source              density at its injection      output transfer (magnitude^2)

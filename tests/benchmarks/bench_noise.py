@@ -3,11 +3,16 @@
 Run: python tests/benchmarks/bench_noise.py   (prints designs per second; not a test)
 """
 
+import dataclasses
 import time
 
 import numpy as np
 
+import photorx as prx
 from photorx.analysis.noise import chain_enbw, integrated_output_noise
+from photorx.analysis.noise_integrals import chain_noise
+from photorx.analysis.sweep import sweep
+from photorx.circuit.amplifier_noise import NoiseCurve
 
 rng = np.random.default_rng(1)
 N = 1000
@@ -61,8 +66,6 @@ run("chain_enbw (0 to inf)", lambda: chain_enbw(**circuit))
 
 # tabulated noise curves (one for every design) against the white-plus-corner model, on the
 # sweep path (chain_noise's fixed grid) and through a whole receiver sweep
-from photorx.analysis.noise_integrals import chain_noise  # noqa: E402
-from photorx.circuit.amplifier_noise import NoiseCurve  # noqa: E402
 
 curve_v = NoiseCurve((1e2, 1e4, 1e6, 1e8, 1e9), (60e-9, 8e-9, 4e-9, 4e-9, 6e-9))
 curve_i = NoiseCurve((1e2, 1e5, 1e9), (20e-15, 2e-15, 3e-15), "A/rtHz")
@@ -70,7 +73,7 @@ shaped = {**params, "en": curve_v.white, "in_": curve_i.white, "en_corner": 0.0,
           "in_corner": 0.0, "en_shape": curve_v, "in_shape": curve_i}
 
 
-def _time(fn, repeat=3):
+def _time(fn, repeat=5):
     best = np.inf
     for _ in range(repeat):
         t0 = time.perf_counter()
@@ -82,11 +85,6 @@ def _time(fn, repeat=3):
 a = _time(lambda: chain_noise(1.0, **params))
 b = _time(lambda: chain_noise(1.0, **shaped))
 print(f"chain_noise with curves / with corners: {b / a:.2f}")
-
-import dataclasses  # noqa: E402
-
-import photorx as prx  # noqa: E402
-from photorx.analysis.sweep import sweep  # noqa: E402
 
 rx = prx.demo_receiver()
 amp = dataclasses.replace(rx.tia.amp, voltage_noise=None, current_noise=None,
