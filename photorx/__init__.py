@@ -38,6 +38,7 @@ _EXPORTS = {
     "MillerFit": "photorx.device.avalanche",
     "ionization_coefficients": "photorx.device.ionization",
     "OpAmp": "photorx.circuit.amplifier",
+    "NoiseCurve": "photorx.circuit.amplifier_noise",
     "Tia": "photorx.circuit.tia",
     "TiaMetrics": "photorx.circuit.metrics",
     "design_feedback_capacitor": "photorx.circuit.feedback_design",

@@ -422,6 +422,11 @@ def _written(key: Key, value):
         return int(value)
     if key.kind == "list":
         return [format_quantity(_scalar(v, key.where), key.unit, key.write) for v in value]
+    if key.kind == "curve":  # a NoiseCurve (or a (frequencies, values) pair)
+        pairs = zip(*((value.frequencies, value.densities) if hasattr(value, "densities")
+                      else value))
+        return [[format_quantity(f, "Hz"), format_quantity(v, key.unit, key.write)]
+                for f, v in pairs]
     if key.kind == "table" and isinstance(value, tuple):
         wavelengths, values = value
         return [[format_quantity(w, "m", "nm"), format_quantity(v, key.unit, key.write)]
@@ -660,7 +665,7 @@ _STUDY_TEMPLATE = [
 def _example(key: Key) -> str:
     if key.kind in ("text",):
         return f'"{key.example}"'
-    if key.kind in ("list", "integer") or (key.unit == "" and key.kind != "ratio"):
+    if key.kind in ("list", "integer", "curve") or (key.unit == "" and key.kind != "ratio"):
         return key.example
     return f'"{key.example}"'
 

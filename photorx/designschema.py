@@ -59,8 +59,9 @@ class Key:
         no check). Errors and the template show it.
     kind : str
         ``"quantity"`` (default), ``"text"``, ``"integer"``, ``"list"`` (of quantities),
-        ``"ratio"`` (a plain number or decibels, ``"10 dB"``) or ``"table"`` (a quantity, or
-        a list of ``[wavelength, value]`` pairs).
+        ``"ratio"`` (a plain number or decibels, ``"10 dB"``), ``"table"`` (a quantity, or
+        a list of ``[wavelength, value]`` pairs) or ``"curve"`` (a list of
+        ``[frequency, value]`` pairs, read as ``(frequencies, values)``).
     when : tuple of str
         The key applies only when the section's selector (``model`` or ``kind``) takes one
         of these values; empty (default) = always.
@@ -228,6 +229,15 @@ SCHEMA: tuple[Key, ...] = (
         doc="Common-mode plus differential input capacitance.", example="1 pF"),
     Key("amplifier", "output_swing", "V", 2.0, check="(0..1000]",
         doc="Largest output magnitude before clipping.", example="1.5 V"),
+    Key("amplifier", "voltage_noise_curve", "V/rtHz", None, kind="curve", check="(0..1e-6]",
+        doc="Voltage noise density read off the data sheet, interpolated log-log (the "
+            "first segment's slope continues below, the last value holds above); "
+            "voltage_noise scales it to its white level (write the last density).",
+        example='[["10 Hz", "30 nV/rtHz"], ["1 kHz", "6 nV/rtHz"], ["100 kHz", "5 nV/rtHz"]]'),
+    Key("amplifier", "current_noise_curve", "A/rtHz", None, kind="curve", check="(0..1e-9]",
+        doc="Current noise density read off the data sheet, as voltage_noise_curve; "
+            "current_noise scales it to its white level.",
+        example='[["10 Hz", "20 pA/rtHz"], ["1 kHz", "2 pA/rtHz"]]'),
     # -- feedback ------------------------------------------------------------------------------
     Key("feedback", "rf", "ohm", REQUIRED, check="[1..1e15]", doc="Feedback resistance.",
         example="10 kohm"),
@@ -384,6 +394,9 @@ def _expected(key: Key) -> str:
     if key.kind == "table":
         return (f"{_dimension_name(key.unit)} in {key.unit}{valid} such as '{key.example}', "
                 "or a list of [wavelength, value] pairs")
+    if key.kind == "curve":
+        return (f"a list of at least two [frequency, density] pairs, frequencies rising, "
+                f"densities in {key.unit}{valid}, e.g. {key.example}")
     if key.kind == "ratio":
         return f"a number or decibels{valid}, e.g. '{key.example}'"
     if key.unit == "":
@@ -505,6 +518,14 @@ def _parse_value(key: Key, raw, source: str):
                                item[0], prefix)
             pairs.append((wl, _parse_scalar(key, item[1], prefix)))
         return tuple(p[0] for p in pairs), tuple(p[1] for p in pairs)
+    if key.kind == "curve":
+        if not (isinstance(raw, list) and len(raw) >= 2
+                and all(isinstance(item, list) and len(item) == 2 for item in raw)):
+            raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}",
+                              parameter=key.where)
+        freq = Key(key.section, key.name, "Hz", check=">0", example="10 Hz")
+        return (tuple(_parse_scalar(freq, item[0], prefix) for item in raw),
+                tuple(_parse_scalar(key, item[1], prefix) for item in raw))
     if key.kind == "ratio" and isinstance(raw, str) and raw.strip().endswith("dB"):
         db = _parse_scalar(Key(key.section, key.name, ""), raw.strip()[:-2], prefix)
         if not abs(db) <= _MAX_DB:

@@ -565,3 +565,67 @@ def test_integer_of_thousands_of_digits_names_the_key():
     text = BASE.replace("dc_gain = 3000", "dc_gain = " + "1" * 400)
     with pytest.raises(DesignError, match=r"\[amplifier\] dc_gain.*beyond the range"):
         dfile.loads_design(text, "t.toml")
+
+
+# -- tabulated amplifier noise curves -----------------------------------------------------------
+_CURVES = ('voltage_noise_curve = [["10 Hz", "30 nV/rtHz"], ["1 kHz", "6 nV/rtHz"], '
+           '["100 kHz", "3 nV/rtHz"]]\n'
+           'current_noise_curve = [["10 Hz", "20 pA/rtHz"], ["1 kHz", "2 pA/rtHz"]]\n')
+
+
+def test_noise_curves_load_and_round_trip(tmp_path):
+    text = BASE.replace('output_swing = "1 V"\n', 'output_swing = "1 V"\n' + _CURVES)
+    rx = dfile.loads_design(text, "c.toml")
+    amp = rx.tia.amp
+    # exact decimals (rtol=0), the white levels as written
+    assert amp.voltage_noise_curve.frequencies == (10.0, 1e3, 1e5)
+    assert amp.voltage_noise_curve.densities == (30e-9, 6e-9, 3e-9)
+    assert amp.current_noise_curve.densities == (20e-12, 2e-12)
+    assert amp.current_noise_curve.unit == "A/rtHz"
+    assert amp.voltage_noise_density(10.0) == pytest.approx(30e-9, rel=1e-12)
+    path = dfile.save_design(rx, tmp_path / "c.toml")
+    assert dfile.load_design(path) == rx
+    written = path.read_text()
+    assert '["1 kHz", "6 nV/rtHz"]' in written and '["10 Hz", "20 pA/rtHz"]' in written
+    # without curves nothing about them is written
+    assert "noise_curve" not in dfile.dumps_design(dfile.loads_design(BASE, "b.toml"))
+
+
+def test_template_shows_a_noise_curve_that_loads():
+    lines = [ln[2:] for ln in dfile.design_template().splitlines()
+             if ln.startswith(("# voltage_noise_curve =", "# current_noise_curve ="))]
+    assert len(lines) == 2
+    text = BASE.replace('output_swing = "1 V"\n', 'output_swing = "1 V"\n' + "\n".join(lines)
+                        + "\n")
+    amp = dfile.loads_design(text, "t.toml").tia.amp
+    assert len(amp.voltage_noise_curve.frequencies) >= 2
+    assert len(amp.current_noise_curve.frequencies) >= 2
+
+
+@pytest.mark.parametrize("line, words", [
+    ('voltage_noise_curve = "5 nV/rtHz"', ["[amplifier] voltage_noise_curve", "[frequency, density]"]),
+    ('voltage_noise_curve = [["10 Hz", "5 nV/rtHz"]]', ["at least two"]),
+    ('voltage_noise_curve = [["10 Hz"], ["1 kHz", "5 nV/rtHz"]]', ["pairs"]),
+    ('voltage_noise_curve = [["10 Hz", "5 nA/rtHz"], ["1 kHz", "5 nV/rtHz"]]',
+     ["[amplifier] voltage_noise_curve", "V/rtHz"]),
+    ('voltage_noise_curve = [["10 m", "5 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]',
+     ["[amplifier] voltage_noise_curve"]),
+    ('voltage_noise_curve = [["10 Hz", "5 uV/rtHz"], ["1 kHz", "5 nV/rtHz"]]',
+     ["[amplifier] voltage_noise_curve", "out of range", "1 uV/rtHz"]),
+    ('voltage_noise_curve = [["10 Hz", "0 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]',
+     ["[amplifier] voltage_noise_curve", "out of range"]),
+    ('voltage_noise_curve = [["1 kHz", "5 nV/rtHz"], ["10 Hz", "9 nV/rtHz"]]',
+     ["[amplifier] voltage_noise_curve", "10 Hz after 1000 Hz", "strictly increasing"]),
+    ('voltage_noise_curve = [["1 kHz", "5 nV/rtHz"], ["1 kHz", "9 nV/rtHz"]]',
+     ["[amplifier] voltage_noise_curve", "strictly increasing"]),
+    (('voltage_noise_curve = [["10 Hz", "9 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]\n'
+      'voltage_noise_corner = "1 kHz"'), ["[amplifier] voltage_noise_corner", "curve"]),
+    ('current_noise_curve = [["10 Hz", "9 nV/rtHz"], ["1 kHz", "5 nV/rtHz"]]',
+     ["[amplifier] current_noise_curve", "A/rtHz"]),
+])
+def test_bad_noise_curves_name_the_key(line, words):
+    text = BASE.replace('output_swing = "1 V"\n', f'output_swing = "1 V"\n{line}\n')
+    with pytest.raises(DesignError) as err:
+        dfile.loads_design(text, "t.toml")
+    for w in words:
+        assert w in str(err.value), (w, str(err.value))

@@ -245,7 +245,8 @@ class _Point:
         self.shape = np.broadcast_shapes(
             np.shape(self.loop["stable"]), np.shape(self.v), np.shape(rx.wavelength),
             np.shape(rx.optical_power), np.shape(rx.temperature), np.shape(self.responsivity),
-            np.shape(self.dark))
+            np.shape(self.dark), *(np.shape(getattr(self.amp, name)) for name in (  # noise-only
+                "voltage_noise", "current_noise", "voltage_noise_corner", "current_noise_corner")))
         self.physical = _is_physical(self.pd)
         self.has_speed = _has_intrinsic_speed(self.pd)
 
@@ -394,6 +395,7 @@ def _noise(p: _Point):
     sources = dict(
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),
         in_corner=p.b(amp.current_noise_corner), temperature=p.b(rx.temperature),
+        en_shape=amp.voltage_noise_curve, in_shape=amp.current_noise_curve,
         i_shot={k: p.b(p.mult[f"shot_{k}"]) for k in ("dark", "signal", "background")})
     # one grid for both integrals: the loop's transfer functions are built once
     mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources)

@@ -14,7 +14,8 @@ returns a :class:`~photorx.analysis.noise_spectrum.NoiseSpectrum`; both live in
 :mod:`photorx.analysis.noise_spectrum`, which imports this core (never the reverse).
 
 Noise model (circuit of :mod:`photorx.circuit.tia`; T = loop gain, F = T/(1+T),
-Zf = 1/Yf, divider = Zd/(Zd + Rs), Zt = Zf divider F), every source uncorrelated:
+Zf = 1/Yf, divider = Zd/(Zd + Rs), Zt = Zf divider F), every source uncorrelated (with a
+tabulated amplifier noise curve, ``en_shape`` / ``in_shape``, its shape replaces 1 + f_c/f):
 
 ==================  ===========================  ================================
 source              density at its injection      output transfer (magnitude^2)
@@ -38,6 +39,7 @@ import numpy as np
 
 from .._validate import require_nonnegative, require_positive
 from ..circuit.amplifier import flicker_factor, open_loop_gain
+from ..circuit.amplifier_noise import noise_power_shape
 from ..circuit.filters import filter_response
 from ..constants import k as _K
 from ..constants import q as _Q
@@ -222,6 +224,8 @@ def _unfiltered_psd(
     i_shot,
     stage2_noise,
     stage2_corner,
+    en_shape=None,
+    in_shape=None,
     squared_magnitudes=None,
 ):
     # squared_magnitudes: |H|^2 of every path of noise_transfer_functions, computed by the
@@ -240,10 +244,10 @@ def _unfiltered_psd(
     out = {
         "rf_thermal": kt4 / np.asarray(rf, dtype=float) * h_sum2,
         "amp_current": np.asarray(in_, dtype=float) ** 2
-        * flicker_factor(f, in_corner)
+        * noise_power_shape(f, in_corner, in_shape)
         * h_sum2,
         "amp_voltage": np.asarray(en, dtype=float) ** 2
-        * flicker_factor(f, en_corner)
+        * noise_power_shape(f, en_corner, en_shape)
         * mag2["voltage"],
         "rsh_thermal": kt4 / np.asarray(rsh, dtype=float) * zt2,
         "rs_thermal": kt4 * np.asarray(rs, dtype=float) * mag2["series"],
@@ -281,6 +285,8 @@ def output_noise_psd(
     filter_kind=None,
     filter_order=4,
     filter_cutoff=np.inf,
+    en_shape=None,
+    in_shape=None,
 ):
     """Output noise power spectral density of every source [V^2/Hz].
 
@@ -305,6 +311,11 @@ def output_noise_psd(
     filter_kind, filter_order, filter_cutoff
         Optional post filter (see :func:`photorx.circuit.filters.filter_response`);
         ``filter_kind=None`` for none. ``filter_cutoff`` [Hz] broadcasts.
+    en_shape, in_shape : NoiseCurve, callable or None
+        Tabulated shape of the amplifier voltage / current noise power over its white
+        level (:func:`photorx.circuit.amplifier_noise.noise_power_shape`), one for all
+        designs; it replaces 1 + f_c/f (the corner is then ignored). None (default): the
+        corner model.
 
     Returns
     -------
@@ -316,7 +327,7 @@ def output_noise_psd(
     -----
     See the module table: S_out,k = S_k |H_k|^2 |H_filter|^2 with the source densities of
     Nyquist (4kT/R, 4kTR) and Schottky (2qI) and amplifier densities
-    x_w^2 (1 + f_c/f).
+    x_w^2 (1 + f_c/f), or x_w^2 (c(f)/c_w)^2 for a tabulated curve c.
 
     References
     ----------
@@ -343,6 +354,8 @@ def output_noise_psd(
         i_shot,
         stage2_noise,
         stage2_corner,
+        en_shape,
+        in_shape,
     )
     if filter_kind is not None:
         h2 = np.abs(filter_response(f, filter_kind, filter_order, filter_cutoff)) ** 2
@@ -373,6 +386,8 @@ def input_noise_psd(
     filter_kind=None,
     filter_order=4,
     filter_cutoff=np.inf,
+    en_shape=None,
+    in_shape=None,
 ):
     """Input-referred noise PSD of every source [A^2/Hz]: unfiltered output PSD / |Zt(f)|^2.
 
@@ -390,6 +405,8 @@ def input_noise_psd(
         Noise sources, as in :func:`output_noise_psd` (all default 0, temperature 300 K).
     filter_kind, filter_order, filter_cutoff
         Accepted for symmetry with :func:`output_noise_psd` and ignored.
+    en_shape, in_shape : NoiseCurve, callable or None
+        Tabulated amplifier noise shapes, as in :func:`output_noise_psd`.
 
     Returns
     -------
@@ -402,7 +419,7 @@ def input_noise_psd(
     """
     out, zt2 = _unfiltered_psd(
         f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_corner, in_, in_corner,
-        temperature, i_shot, stage2_noise, stage2_corner,
+        temperature, i_shot, stage2_noise, stage2_corner, en_shape, in_shape,
     )  # fmt: skip
     return {name: v / zt2 for name, v in out.items()}
 
@@ -415,7 +432,8 @@ def with_frequency_axis(params):
     params : dict
         Keywords of :func:`output_noise_psd` (without ``f``), each shaped like the designs;
         ``poles`` is a sequence of arrays, ``i_shot`` may be a dict, ``filter_kind`` and
-        ``filter_order`` are scalars and are passed through unchanged.
+        ``filter_order`` are scalars and ``en_shape``, ``in_shape`` noise shapes (one for
+        all designs): these are passed through unchanged.
 
     Returns
     -------
@@ -428,7 +446,7 @@ def with_frequency_axis(params):
             out[name] = tuple(np.asarray(p, dtype=float)[..., None] for p in value)
         elif name == "i_shot" and isinstance(value, dict):
             out[name] = {k_: np.asarray(v, dtype=float)[..., None] for k_, v in value.items()}
-        elif name in ("filter_kind", "filter_order"):
+        elif name in ("filter_kind", "filter_order", "en_shape", "in_shape"):
             out[name] = value
         else:
             out[name] = np.asarray(value, dtype=float)[..., None]

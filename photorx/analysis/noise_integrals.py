@@ -32,7 +32,8 @@ __all__ = ["chain_noise"]
 _CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin")
 _DEFAULTS = dict(poles=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0, in_=0.0,
                  in_corner=0.0, temperature=300.0, i_shot=0.0, stage2_noise=0.0,
-                 stage2_corner=0.0)
+                 stage2_corner=0.0, en_shape=None, in_shape=None)
+_SHAPES = ("en_shape", "in_shape")  # tabulated noise shapes: one for all designs, not arrays
 
 
 def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4,
@@ -101,6 +102,8 @@ _DENSER = 4  # density factor of the second try for designs the first grid misse
 def _leaves(params, filt):
     """(key, index, value) of every array-valued input, poles and shot currents included."""
     for k, v in {**params, "filter_cutoff": filt["filter_cutoff"]}.items():
+        if k in _SHAPES:
+            continue
         if k == "poles":
             yield from ((k, i, x) for i, x in enumerate(v))
         elif isinstance(v, dict):
@@ -194,7 +197,8 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
     out, zt2 = _unfiltered_psd(f, *(e[k] for k in ("gbw", "dc_gain", "poles", "rf", "cf", "cd",
                                                     "rsh", "rs", "cin", "en", "en_corner", "in_",
                                                     "in_corner", "temperature", "i_shot",
-                                                    "stage2_noise", "stage2_corner")),
+                                                    "stage2_noise", "stage2_corner",
+                                                    *_SHAPES)),
                                squared_magnitudes=loop.squared_magnitudes(f))
     if filt["filter_kind"] is not None:
         cutoff = np.asarray(filt["filter_cutoff"], dtype=float)[..., None]

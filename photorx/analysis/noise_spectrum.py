@@ -516,6 +516,8 @@ def tia_noise(
         "en_corner": amp.voltage_noise_corner,
         "in_": amp.current_noise,
         "in_corner": amp.current_noise_corner,
+        "en_shape": amp.voltage_noise_curve,
+        "in_shape": amp.current_noise_curve,
         "temperature": float(require_positive("temperature", temperature, "K")),
         "i_shot": split if split else shot_current,
         "stage2_noise": float(require_nonnegative("stage2_noise", stage2_noise, "V/rtHz")),

@@ -13,6 +13,7 @@ import numpy as np
 
 from .._validate import require_nonnegative, require_positive
 from ..errors import DesignError
+from .amplifier_noise import settle_noise
 
 __all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_density",
            "flicker_factor"]
@@ -138,27 +139,37 @@ class OpAmp:
     poles : tuple of float
         Extra pole frequencies beyond the dominant one [Hz], each > 0 (a single number is
         one pole; ``()`` or ``None`` for none).
-    voltage_noise : float
-        White input voltage noise density [V/rtHz], >= 0.
-    current_noise : float
-        White input current noise density [A/rtHz], >= 0.
+    voltage_noise : float or None
+        White input voltage noise density [V/rtHz], >= 0; None (default) is 5 nV/rtHz, or
+        the white level (last density) of ``voltage_noise_curve`` when one is given.
+    current_noise : float or None
+        White input current noise density [A/rtHz], >= 0; None (default) is 1 fA/rtHz, or
+        the white level of ``current_noise_curve``.
     voltage_noise_corner, current_noise_corner : float
-        1/f corner frequencies [Hz], >= 0 (0 = no 1/f noise).
+        1/f corner frequencies [Hz], >= 0 (0 = no 1/f noise; must be 0 with a curve).
     input_capacitance : float
         Common-mode plus differential input capacitance seen at the inverting input [F], >= 0.
     output_swing : float
         Largest output voltage magnitude before clipping [V], > 0.
+    voltage_noise_curve, current_noise_curve : NoiseCurve, array_like or None
+        Tabulated input noise densities (data-sheet points, interpolated log-log; see
+        :mod:`photorx.circuit.amplifier_noise`): a :class:`NoiseCurve`, a (frequencies
+        [Hz], densities) pair or rows of [frequency, density]. The curve is the shape and
+        the white level scales it: e_n(f) = voltage_noise * c(f) / c_white. None (default)
+        for the white-plus-1/f model.
     """
 
     gbw: float = 100e6
     dc_gain: float = 1e5
     poles: tuple = field(default_factory=tuple)
-    voltage_noise: float = 5e-9
-    current_noise: float = 1e-15
+    voltage_noise: float | None = None
+    current_noise: float | None = None
     voltage_noise_corner: float = 0.0
     current_noise_corner: float = 0.0
     input_capacitance: float = 2e-12
     output_swing: float = 2.0
+    voltage_noise_curve: object = None
+    current_noise_curve: object = None
 
     def __post_init__(self):
         set_ = object.__setattr__
@@ -174,8 +185,10 @@ class OpAmp:
         for p in poles:
             require_positive("poles", p, "Hz")
         set_(self, "poles", poles)
-        set_(self, "voltage_noise", require_nonnegative("voltage_noise", self.voltage_noise, "V/rtHz"))
-        set_(self, "current_noise", require_nonnegative("current_noise", self.current_noise, "A/rtHz"))
+        for kind, unit, default in (("voltage", "V/rtHz", 5e-9), ("current", "A/rtHz", 1e-15)):
+            for name, value in zip((f"{kind}_noise", f"{kind}_noise_curve"), settle_noise(
+                    self, kind, unit, default)):
+                set_(self, name, value)
         set_(self, "voltage_noise_corner",
              require_nonnegative("voltage_noise_corner", self.voltage_noise_corner, "Hz"))
         set_(self, "current_noise_corner",
@@ -207,6 +220,8 @@ class OpAmp:
         f : float or array_like
             Frequency [Hz], >= 0 (> 0 with a ``voltage_noise_corner``).
         """
+        if self.voltage_noise_curve is not None:
+            return np.asarray(self.voltage_noise) * np.sqrt(self.voltage_noise_curve.power_shape(f))
         return voltage_noise_density(f, self.voltage_noise, self.voltage_noise_corner)
 
     def current_noise_density(self, f):
@@ -217,6 +232,8 @@ class OpAmp:
         f : float or array_like
             Frequency [Hz], >= 0 (> 0 with a ``current_noise_corner``).
         """
+        if self.current_noise_curve is not None:
+            return np.asarray(self.current_noise) * np.sqrt(self.current_noise_curve.power_shape(f))
         return current_noise_density(f, self.current_noise, self.current_noise_corner)
 
     def _repr_html_(self):

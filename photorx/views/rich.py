@@ -45,6 +45,9 @@ def _value_text(key, value) -> tuple[str, str]:
     if key.kind == "table" and isinstance(value, tuple) and len(value) == 2 \
             and np.ndim(value[0]):  # a table against wavelength: its size only
         return f"table of {len(value[0])} wavelengths", ""
+    if key.kind == "curve":  # a NoiseCurve: its size and span only
+        f = value.frequencies
+        return f"table of {len(f)} points, {format_eng(f[0], 'Hz')} to {format_eng(f[-1], 'Hz')}", ""
     if key.kind == "list" or isinstance(value, (tuple, list)):
         parts = [_scalar_text(key, v) for v in value]
         if not parts:
