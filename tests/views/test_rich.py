@@ -136,3 +136,11 @@ def test_circuit_closed_forms_match_the_engine(rx):
     np.testing.assert_allclose(np.abs(_evaluate(ideal, 2j * np.pi * f)),
                                np.abs(ideal.transimpedance(f, net)), rtol=2e-3)
     assert r"R_f = 10\ \mathrm{k\Omega}" in ideal._repr_latex_()
+
+
+def test_amplifier_with_a_noise_curve_shows_the_table_span():
+    # common practice: a tabulated curve is summarised by its size and frequency span
+    amp = prx.OpAmp(voltage_noise_curve=([10.0, 1e3, 1e6], [30e-9, 8e-9, 5e-9]))
+    html = amp._repr_html_()
+    assert "table of 3 points" in html
+    assert "10 Hz" in html and "1 MHz" in html
