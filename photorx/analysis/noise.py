@@ -142,7 +142,8 @@ def shot_current_density(current):
     return np.sqrt(2.0 * _Q * i)
 
 
-def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.0):
+def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.0,
+                             zeros=()):
     """Transfer functions from each noise injection point to the TIA output.
 
     Parameters
@@ -158,6 +159,9 @@ def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.in
         resistance [ohm].
     cin : array_like
         Amplifier input capacitance [F].
+    zeros : sequence of array_like, optional
+        Real zeros of the open-loop gain [Hz] (a sequence, ``inf`` for none); see
+        :func:`photorx.circuit.amplifier.open_loop_gain`.
 
     Returns
     -------
@@ -185,7 +189,7 @@ def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.in
     divider = 1.0 / (1.0 + np.asarray(rs, dtype=float) * yd)
     y_series = yd * divider
     yin = y_series + s * np.asarray(cin, dtype=float)
-    a = open_loop_gain(f, gbw, dc_gain, poles)
+    a = open_loop_gain(f, gbw, dc_gain, poles, zeros)
     t = a * yf / (yf + yin)
     one_plus_t = 1.0 + t
     summing = t / one_plus_t / yf
@@ -222,10 +226,12 @@ def _unfiltered_psd(
     i_shot,
     stage2_noise,
     stage2_corner,
+    zeros=(),
 ):
     f = np.asarray(f, dtype=float)
     h = noise_transfer_functions(
-        f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin
+        f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin,
+        zeros=zeros,
     )
     kt4 = 4.0 * _K * np.asarray(temperature, dtype=float)
     h_sum2 = np.abs(h["summing"]) ** 2
@@ -263,6 +269,7 @@ def output_noise_psd(
     rsh=np.inf,
     rs=0.0,
     cin=0.0,
+    zeros=(),
     en=0.0,
     en_corner=0.0,
     in_=0.0,
@@ -281,7 +288,7 @@ def output_noise_psd(
     ----------
     f : array_like
         Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
-    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
         Circuit, see :func:`noise_transfer_functions`.
     en, en_corner : array_like
         Amplifier white input voltage noise [V/rtHz] and its 1/f corner [Hz].
@@ -336,6 +343,7 @@ def output_noise_psd(
         i_shot,
         stage2_noise,
         stage2_corner,
+        zeros,
     )
     if filter_kind is not None:
         h2 = np.abs(filter_response(f, filter_kind, filter_order, filter_cutoff)) ** 2
@@ -355,6 +363,7 @@ def input_noise_psd(
     rsh=np.inf,
     rs=0.0,
     cin=0.0,
+    zeros=(),
     en=0.0,
     en_corner=0.0,
     in_=0.0,
@@ -376,7 +385,7 @@ def input_noise_psd(
     ----------
     f : array_like
         Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
-    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
         Circuit, see :func:`noise_transfer_functions`; defaults ``poles=()``,
         ``rsh=inf``, ``rs=0``, ``cin=0``.
     en, en_corner, in_, in_corner, temperature, i_shot, stage2_noise, stage2_corner
@@ -395,7 +404,7 @@ def input_noise_psd(
     """
     out, zt2 = _unfiltered_psd(
         f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_corner, in_, in_corner,
-        temperature, i_shot, stage2_noise, stage2_corner,
+        temperature, i_shot, stage2_noise, stage2_corner, zeros,
     )  # fmt: skip
     return {name: v / zt2 for name, v in out.items()}
 
@@ -407,8 +416,8 @@ def with_frequency_axis(params):
     ----------
     params : dict
         Keywords of :func:`output_noise_psd` (without ``f``), each shaped like the designs;
-        ``poles`` is a sequence of arrays, ``i_shot`` may be a dict, ``filter_kind`` and
-        ``filter_order`` are scalars and are passed through unchanged.
+        ``poles`` and ``zeros`` are sequences of arrays, ``i_shot`` may be a dict,
+        ``filter_kind`` and ``filter_order`` are scalars and are passed through unchanged.
 
     Returns
     -------
@@ -417,7 +426,7 @@ def with_frequency_axis(params):
     """
     out = {}
     for name, value in params.items():
-        if name == "poles":
+        if name in ("poles", "zeros"):
             out[name] = tuple(np.asarray(p, dtype=float)[..., None] for p in value)
         elif name == "i_shot" and isinstance(value, dict):
             out[name] = {k_: np.asarray(v, dtype=float)[..., None] for k_, v in value.items()}
@@ -479,6 +488,7 @@ def chain_enbw(
     rsh=np.inf,
     rs=0.0,
     cin=0.0,
+    zeros=(),
     filter_kind=None,
     filter_order=4,
     filter_cutoff=np.inf,
@@ -491,7 +501,7 @@ def chain_enbw(
 
     Parameters
     ----------
-    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
         Circuit, see :func:`noise_transfer_functions`; defaults ``poles=()``,
         ``rsh=inf``, ``rs=0``, ``cin=0``.
     filter_kind, filter_order, filter_cutoff
@@ -527,6 +537,7 @@ def chain_enbw(
         "rsh": rsh,
         "rs": rs,
         "cin": cin,
+        "zeros": zeros,
     }
     p = with_frequency_axis(circuit)
     zt0 = np.abs(noise_transfer_functions(0.0, **p)["junction"])[..., 0]

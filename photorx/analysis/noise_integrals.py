@@ -28,9 +28,9 @@ from .noise import (_unfiltered_psd, chain_enbw, integrated_output_noise, noise_
 
 __all__ = ["chain_noise"]
 
-_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin")
-_DEFAULTS = dict(poles=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0, in_=0.0,
-                 in_corner=0.0, temperature=300.0, i_shot=0.0, stage2_noise=0.0,
+_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin", "zeros")
+_DEFAULTS = dict(poles=(), zeros=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0,
+                 in_=0.0, in_corner=0.0, temperature=300.0, i_shot=0.0, stage2_noise=0.0,
                  stage2_corner=0.0)
 
 
@@ -100,7 +100,7 @@ _DENSER = 4  # density factor of the second try for designs the first grid misse
 def _leaves(params, filt):
     """(key, index, value) of every array-valued input, poles and shot currents included."""
     for k, v in {**params, "filter_cutoff": filt["filter_cutoff"]}.items():
-        if k == "poles":
+        if k in ("poles", "zeros"):
             yield from ((k, i, x) for i, x in enumerate(v))
         elif isinstance(v, dict):
             yield from ((k, name, x) for name, x in v.items())
@@ -152,7 +152,7 @@ def _on_grid_in_blocks(f_lo, rtol, per_decade, top_factor, params, filt):
 
 def _subset(params, filt, flat, rows):
     """``params`` and ``filt`` with every array input taken at the flat design indices ``rows``."""
-    sub = {k: (list(v) if k == "poles" else dict(v) if isinstance(v, dict) else v)
+    sub = {k: (list(v) if k in ("poles", "zeros") else dict(v) if isinstance(v, dict) else v)
            for k, v in params.items()}
     sub_filt = dict(filt)
     for k, i, v in flat:
@@ -164,6 +164,8 @@ def _subset(params, filt, flat, rows):
         else:
             sub[k][i] = piece
     sub["poles"] = tuple(sub["poles"])
+    if "zeros" in sub:
+        sub["zeros"] = tuple(sub["zeros"])
     return sub, sub_filt
 
 
@@ -192,7 +194,8 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
     out, zt2 = _unfiltered_psd(f, *(e[k] for k in ("gbw", "dc_gain", "poles", "rf", "cf", "cd",
                                                     "rsh", "rs", "cin", "en", "en_corner", "in_",
                                                     "in_corner", "temperature", "i_shot",
-                                                    "stage2_noise", "stage2_corner")))
+                                                    "stage2_noise", "stage2_corner")),
+                              zeros=e.get("zeros", ()))
     if filt["filter_kind"] is not None:
         cutoff = np.asarray(filt["filter_cutoff"], dtype=float)[..., None]
         h2 = np.abs(filter_response(f, filt["filter_kind"], filt["filter_order"], cutoff)) ** 2

@@ -18,8 +18,8 @@ __all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_de
            "flicker_factor"]
 
 
-def open_loop_gain(f, gbw, dc_gain, poles=()):
-    """Open-loop voltage gain of a dominant-pole amplifier with optional extra poles.
+def open_loop_gain(f, gbw, dc_gain, poles=(), zeros=()):
+    """Open-loop voltage gain of a dominant-pole amplifier with optional extra poles and zeros.
 
     Parameters
     ----------
@@ -31,6 +31,8 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
         DC open-loop gain A0 [V/V].
     poles : sequence of array_like
         Extra (non-dominant) pole frequencies [Hz]; ``inf`` marks an absent pole.
+    zeros : sequence of array_like
+        Real left-half-plane zero frequencies [Hz], > 0; ``inf`` marks an absent zero.
 
     Returns
     -------
@@ -39,7 +41,9 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
 
     Notes
     -----
-    A(s) = A0 / (1 + s/w_d) * prod_k 1/(1 + s/w_k), w_d = 2 pi GBW / A0.
+    A(s) = A0 prod_j (1 + s/w_zj) / ((1 + s/w_d) prod_k (1 + s/w_k)), w_d = 2 pi GBW / A0.
+    GBW stays the gain-bandwidth product of the dominant pole alone (A0 w_d / 2 pi); a zero
+    below the unity-gain frequency moves the actual crossover.
 
     References
     ----------
@@ -51,6 +55,8 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
     a = a0 / (1.0 + s * a0 / (2 * np.pi * gbw))
     for fp in poles:
         a = a / (1.0 + s / (2 * np.pi * np.asarray(fp, dtype=float)))
+    for fz in zeros:
+        a = a * (1.0 + s / (2 * np.pi * np.asarray(fz, dtype=float)))
     return a
 
 
@@ -125,6 +131,20 @@ def current_noise_density(f, white, corner):
     return voltage_noise_density(f, white, corner)
 
 
+def _corner_tuple(name, value):
+    """Pole or zero frequencies [Hz] as a tuple of floats, each > 0 and finite."""
+    # a scalar is one corner (0 is rejected below, not read as "none"); None means none
+    raw = () if value is None else value
+    try:
+        out = tuple(float(p) for p in np.atleast_1d(np.asarray(raw, dtype=float)).ravel())
+    except (TypeError, ValueError):
+        raise DesignError(f"{name} = {value!r} is not a sequence of frequencies in Hz",
+                          parameter=name) from None
+    for p in out:
+        require_positive(name, p, "Hz")
+    return out
+
+
 @dataclass(frozen=True)
 class OpAmp:
     """A voltage-feedback amplifier used as a transimpedance stage (non-inverting input grounded).
@@ -138,6 +158,10 @@ class OpAmp:
     poles : tuple of float
         Extra pole frequencies beyond the dominant one [Hz], each > 0 (a single number is
         one pole; ``()`` or ``None`` for none).
+    zeros : tuple of float
+        Real left-half-plane zeros of the open-loop gain [Hz], each > 0 (a single number is
+        one zero; ``()`` or ``None`` for none); at most one more than ``poles`` so that the
+        gain still falls at high frequency.
     voltage_noise : float
         White input voltage noise density [V/rtHz], >= 0.
     current_noise : float
@@ -153,6 +177,7 @@ class OpAmp:
     gbw: float = 100e6
     dc_gain: float = 1e5
     poles: tuple = field(default_factory=tuple)
+    zeros: tuple = field(default_factory=tuple)
     voltage_noise: float = 5e-9
     current_noise: float = 1e-15
     voltage_noise_corner: float = 0.0
@@ -164,16 +189,13 @@ class OpAmp:
         set_ = object.__setattr__
         set_(self, "gbw", require_positive("gbw", self.gbw, "Hz"))
         set_(self, "dc_gain", require_positive("dc_gain", self.dc_gain, "V/V"))
-        # a scalar is one pole (0 is rejected below, not read as "no pole"); None means none
-        raw = () if self.poles is None else self.poles
-        try:
-            poles = tuple(float(p) for p in np.atleast_1d(np.asarray(raw, dtype=float)).ravel())
-        except (TypeError, ValueError):
-            raise DesignError(f"poles = {self.poles!r} is not a sequence of frequencies in Hz",
-                              parameter="poles") from None
-        for p in poles:
-            require_positive("poles", p, "Hz")
-        set_(self, "poles", poles)
+        set_(self, "poles", _corner_tuple("poles", self.poles))
+        set_(self, "zeros", _corner_tuple("zeros", self.zeros))
+        if len(self.zeros) > len(self.poles) + 1:
+            raise DesignError(f"zeros = {self.zeros!r} Hz: {len(self.zeros)} zeros with "
+                              f"{len(self.poles)} extra poles; valid range: at most "
+                              f"{len(self.poles) + 1} zeros (len(poles) + 1), so that the "
+                              "open-loop gain falls at high frequency", parameter="zeros")
         set_(self, "voltage_noise", require_nonnegative("voltage_noise", self.voltage_noise, "V/rtHz"))
         set_(self, "current_noise", require_nonnegative("current_noise", self.current_noise, "A/rtHz"))
         set_(self, "voltage_noise_corner",
@@ -197,7 +219,7 @@ class OpAmp:
         f : float or array_like
             Frequency [Hz], >= 0.
         """
-        return open_loop_gain(f, self.gbw, self.dc_gain, self.poles)
+        return open_loop_gain(f, self.gbw, self.dc_gain, self.poles, self.zeros)
 
     def voltage_noise_density(self, f):
         """Input voltage noise density at ``f`` [V/rtHz]; see :func:`voltage_noise_density`.
