@@ -206,6 +206,43 @@ class OpAmp:
              require_nonnegative("input_capacitance", self.input_capacitance, "F"))
         set_(self, "output_swing", require_positive("output_swing", self.output_swing, "V"))
 
+    @classmethod
+    def from_gain_points(cls, frequency, magnitude_db, phase_deg=None, *, poles=0, zeros=0,
+                         magnitude_tolerance=1.0, phase_tolerance=5.0, **fields):
+        """An amplifier whose open-loop gain is fitted to data-sheet magnitude/phase points.
+
+        The points are represented by the fitted poles and zeros (the engine works on that
+        rational model); a fit that misses a point by more than its tolerance warns
+        (:class:`~photorx.errors.ModelRangeWarning`). Use
+        :func:`photorx.circuit.amplifier_fit.fit_open_loop_gain` for the residuals and
+        uncertainties.
+
+        Parameters
+        ----------
+        frequency : array_like
+            Frequencies of the points [Hz], > 0.
+        magnitude_db : array_like
+            Open-loop gain 20 log10 |A| [dB].
+        phase_deg : array_like, optional
+            Phase of A [deg], 0 at DC and falling; None for magnitude only.
+        poles, zeros : int
+            Numbers of extra real poles and of real zeros to fit.
+        magnitude_tolerance, phase_tolerance : float
+            Expected errors of the points [dB], [deg], > 0 (weights and acceptance limits).
+        **fields
+            The other :class:`OpAmp` fields (noise, input capacitance, output swing).
+
+        Returns
+        -------
+        OpAmp
+        """
+        from .amplifier_fit import fit_open_loop_gain
+
+        fit = fit_open_loop_gain(frequency, magnitude_db, phase_deg, poles=poles, zeros=zeros,
+                                 magnitude_tolerance=magnitude_tolerance,
+                                 phase_tolerance=phase_tolerance)
+        return fit.amplifier(**fields)
+
     @property
     def dominant_pole(self):
         """Dominant pole frequency GBW/A0 [Hz]."""

@@ -32,7 +32,7 @@ def _loop_corners(p, pk, parts):
     gf, gsh, p0 = parts["gf"], parts["gsh"], parts["p0"]
     t0 = p["dc_gain"] * gf * p0 / (gf * p0 + gsh)
     q0, q1, q2 = parts["q2"][:, 0], parts["q2"][:, 1], parts["q2"][:, 2]
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):  # inf: no corner
         root = np.sqrt(np.maximum(q1 * q1 - 4 * q0 * q2, 0.0))
         wq1 = 2 * q0 / (q1 + root)
         wq2 = np.where(q2 > 0, (q1 + root) / (2 * np.where(q2 > 0, q2, 1.0)), np.inf)

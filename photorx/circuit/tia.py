@@ -247,9 +247,12 @@ class Tia:
     # -- parameter routing ---------------------------------------------------------------
     def _args(self, net):
         a = self.amp
-        return dict(gbw=a.gbw, dc_gain=a.dc_gain, poles=a.poles, rf=self.rf, cf=self.cf,
+        args = dict(gbw=a.gbw, dc_gain=a.dc_gain, poles=a.poles, rf=self.rf, cf=self.cf,
                     cd=net.capacitance, rsh=net.shunt_resistance, rs=net.series_resistance,
-                    cin=a.input_capacitance, zeros=a.zeros)
+                    cin=a.input_capacitance)
+        if a.zeros:  # only when present: an all-pole amplifier keeps its keywords unchanged
+            args["zeros"] = a.zeros
+        return args
 
     def _passive(self, net):
         a = self._args(net)
