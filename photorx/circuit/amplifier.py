@@ -160,8 +160,9 @@ class OpAmp:
         one pole; ``()`` or ``None`` for none).
     zeros : tuple of float
         Real left-half-plane zeros of the open-loop gain [Hz], each > 0 (a single number is
-        one zero; ``()`` or ``None`` for none); at most one more than ``poles`` so that the
-        gain still falls at high frequency.
+        one zero; ``()`` or ``None`` for none); at most as many as ``poles``, so that the
+        gain still falls at high frequency (an amplifier's gain does; a flat top would give
+        the voltage noise an unbounded bandwidth).
     voltage_noise : float
         White input voltage noise density [V/rtHz], >= 0.
     current_noise : float
@@ -191,11 +192,11 @@ class OpAmp:
         set_(self, "dc_gain", require_positive("dc_gain", self.dc_gain, "V/V"))
         set_(self, "poles", _corner_tuple("poles", self.poles))
         set_(self, "zeros", _corner_tuple("zeros", self.zeros))
-        if len(self.zeros) > len(self.poles) + 1:
+        if len(self.zeros) > len(self.poles):
             raise DesignError(f"zeros = {self.zeros!r} Hz: {len(self.zeros)} zeros with "
                               f"{len(self.poles)} extra poles; valid range: at most "
-                              f"{len(self.poles) + 1} zeros (len(poles) + 1), so that the "
-                              "open-loop gain falls at high frequency", parameter="zeros")
+                              f"{len(self.poles)} zeros (len(poles)), so that the open-loop "
+                              "gain still falls at high frequency", parameter="zeros")
         set_(self, "voltage_noise", require_nonnegative("voltage_noise", self.voltage_noise, "V/rtHz"))
         set_(self, "current_noise", require_nonnegative("current_noise", self.current_noise, "A/rtHz"))
         set_(self, "voltage_noise_corner",

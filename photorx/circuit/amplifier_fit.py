@@ -217,7 +217,8 @@ def fit_open_loop_gain(frequency, magnitude_db, phase_deg=None, *, poles=0, zero
     poles : int
         Number of extra real poles to fit beyond the dominant one, 0 to 6.
     zeros : int
-        Number of real left-half-plane zeros to fit, 0 to 6, at most ``poles + 1``.
+        Number of real left-half-plane zeros to fit, 0 to 6, at most ``poles`` (the fitted
+        gain must fall at high frequency, as :class:`~photorx.OpAmp` requires).
     magnitude_tolerance : float
         Expected error of the magnitude points [dB], > 0 (default 1 dB): the weight of each
         magnitude residual and the limit a good fit stays within.
@@ -261,10 +262,10 @@ def fit_open_loop_gain(frequency, magnitude_db, phase_deg=None, *, poles=0, zero
     """
     f, mag, ph = _points(frequency, magnitude_db, phase_deg)
     n_p, n_z = _count("poles", poles), _count("zeros", zeros)
-    if n_z > n_p + 1:
-        raise DesignError(f"zeros = {n_z} with poles = {n_p}; valid range: at most poles + 1 = "
-                          f"{n_p + 1} zeros (the gain must fall at high frequency)",
-                          parameter="zeros")
+    if n_z > n_p:
+        raise DesignError(f"zeros = {n_z} with poles = {n_p}; valid range: at most poles = "
+                          f"{n_p} zeros (the gain must fall at high frequency, as "
+                          "photorx.OpAmp requires)", parameter="zeros")
     tol_m = float(require_positive("magnitude_tolerance", magnitude_tolerance, "dB"))
     tol_p = float(require_positive("phase_tolerance", phase_tolerance, "deg"))
     n_par = 2 + n_p + n_z
