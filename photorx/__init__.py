@@ -38,6 +38,8 @@ _EXPORTS = {
     "MillerFit": "photorx.device.avalanche",
     "ionization_coefficients": "photorx.device.ionization",
     "OpAmp": "photorx.circuit.amplifier",
+    "fit_open_loop_gain": "photorx.circuit.amplifier_fit",
+    "GainFit": "photorx.circuit.amplifier_fit",
     "Tia": "photorx.circuit.tia",
     "TiaMetrics": "photorx.circuit.metrics",
     "design_feedback_capacitor": "photorx.circuit.feedback_design",
