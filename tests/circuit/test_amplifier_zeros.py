@@ -258,3 +258,17 @@ def test_opamp_rejects_bad_zeros(zeros, match):
 def test_core_rejects_nonpositive_zero(z):
     with pytest.raises(DesignError, match="zeros"):
         tia_figures(**DESIGN | dict(zeros=(z,)))
+
+
+def test_zeros_vectorise_over_designs_with_inf_for_none():
+    # one array per zero across designs (inf = no zero) equals the designs one at a time
+    z = np.array([np.inf, 120e6, 60e6])
+    p = {k: v for k, v in DESIGN.items() if k != "zeros"}
+    many = tia_figures(**p, zeros=(z,))
+    for i, zi in enumerate(z):
+        one = tia_figures(**p, zeros=() if np.isinf(zi) else (zi,))
+        for key in ("bandwidth", "phase_margin", "rise_time", "settling_time", "peaking_db"):
+            assert many[key][i] == pytest.approx(float(one[key]), rel=1e-9)
+    f = np.logspace(4, 9, 5)
+    zt = transimpedance(f, **p, zeros=(z[:, None],))
+    np.testing.assert_allclose(zt[2], transimpedance(f, **p, zeros=(60e6,)), rtol=1e-14)
