@@ -18,7 +18,7 @@ import photorx.designfile as dfile
 from photorx.errors import DesignError
 
 _AMP = re.compile(r"\ngbw = [^\n]*\ndc_gain = [^\n]*\npoles = [^\n]*\n")
-MODEL = dict(gbw=2e9, dc_gain=3000.0, poles=(1.2e9, 25e9), zeros=(900e6,))
+MODEL = {"gbw": 2e9, "dc_gain": 3000.0, "poles": (1.2e9, 25e9), "zeros": (900e6,)}
 
 
 def _demo_text():
@@ -89,8 +89,8 @@ def test_template_example_of_gain_points_loads():
 
 
 @pytest.mark.parametrize("lines, key, words", [
-    (['gbw = "1 GHz"', 'gain_points = [["1 kHz", "100 dB", "-1 deg"], ["1 MHz", "40 dB", '
-      '"-90 deg"]]'], "[amplifier] gbw", ["gain_points"]),
+    (['gbw = "1 GHz"', ('gain_points = [["1 kHz", "100 dB", "-1 deg"], ["1 MHz", "40 dB", '
+      '"-90 deg"]]')], "[amplifier] gbw", ["gain_points"]),
     (['gbw = "1 GHz"', "fit_poles = 1"], "[amplifier] fit_poles", ["gain_points"]),
     (["dc_gain = 1000"], "[amplifier] gbw", ["missing", "gain_points"]),
     (['gain_points = [["1 kHz", "100 dB"]]'], "[amplifier] gain_points", ["frequency"]),

@@ -22,10 +22,11 @@ from photorx.device.equivalent_circuit import EquivalentCircuit
 from photorx.errors import DesignError, ModelRangeWarning
 
 MODELS = {
-    "dominant_only": dict(gbw=80e6, dc_gain=2e5, poles=(), zeros=()),
-    "one_pole": dict(gbw=300e6, dc_gain=5e4, poles=(450e6,), zeros=()),
-    "pole_zero_pair": dict(gbw=150e6, dc_gain=1e5, poles=(200e6, 1.5e9), zeros=(90e6,)),
-    "two_zeros": dict(gbw=1e9, dc_gain=3e4, poles=(600e6, 2e9, 6e9), zeros=(300e6, 1.2e9)),
+    "dominant_only": {"gbw": 80e6, "dc_gain": 2e5, "poles": (), "zeros": ()},
+    "one_pole": {"gbw": 300e6, "dc_gain": 5e4, "poles": (450e6,), "zeros": ()},
+    "pole_zero_pair": {"gbw": 150e6, "dc_gain": 1e5, "poles": (200e6, 1.5e9), "zeros": (90e6,)},
+    "two_zeros": {"gbw": 1e9, "dc_gain": 3e4, "poles": (600e6, 2e9, 6e9),
+                  "zeros": (300e6, 1.2e9)},
 }
 F = np.logspace(1, 10, 46)  # 10 Hz to 10 GHz, 5 points per decade
 
@@ -81,7 +82,7 @@ def test_receiver_from_the_fit_matches_the_true_receiver():
     m = MODELS["pole_zero_pair"]
     mag, ph = _points(m)
     rng = np.random.default_rng(7)
-    fields = dict(input_capacitance=2e-12, voltage_noise=4e-9)
+    fields = {"input_capacitance": 2e-12, "voltage_noise": 4e-9}
     amp_fit = OpAmp.from_gain_points(F, mag + rng.normal(0, 0.1, F.size),
                                      ph + rng.normal(0, 0.5, F.size), poles=2, zeros=1,
                                      **fields)
@@ -131,19 +132,19 @@ def test_poor_fit_warns_and_is_flagged():
 
 
 @pytest.mark.parametrize("kwargs, parameter", [
-    (dict(frequency=[1e3, -1e4, 1e5]), "frequency"),
-    (dict(frequency=[1e3, 1e3, 1e5]), "frequency"),
-    (dict(magnitude_db=[100.0, 80.0]), "magnitude_db"),
-    (dict(phase_deg=[0.0, np.nan, -90.0]), "phase_deg"),
-    (dict(poles=1.5), "poles"),
-    (dict(poles=-1), "poles"),
-    (dict(zeros=1, poles=0), "zeros"),
-    (dict(poles=3, zeros=3), "frequency"),  # 8 parameters from 6 values
-    (dict(magnitude_tolerance=0.0), "magnitude_tolerance"),
+    ({"frequency": [1e3, -1e4, 1e5]}, "frequency"),
+    ({"frequency": [1e3, 1e3, 1e5]}, "frequency"),
+    ({"magnitude_db": [100.0, 80.0]}, "magnitude_db"),
+    ({"phase_deg": [0.0, np.nan, -90.0]}, "phase_deg"),
+    ({"poles": 1.5}, "poles"),
+    ({"poles": -1}, "poles"),
+    ({"zeros": 1, "poles": 0}, "zeros"),
+    ({"poles": 3, "zeros": 3}, "frequency"),  # 8 parameters from 6 values
+    ({"magnitude_tolerance": 0.0}, "magnitude_tolerance"),
 ])
 def test_bad_inputs_raise_design_error(kwargs, parameter):
-    args = dict(frequency=[1e3, 1e4, 1e5], magnitude_db=[100.0, 90.0, 70.0],
-                phase_deg=[-5.0, -45.0, -85.0]) | kwargs
+    args = {"frequency": [1e3, 1e4, 1e5], "magnitude_db": [100.0, 90.0, 70.0],
+            "phase_deg": [-5.0, -45.0, -85.0]} | kwargs
     with pytest.raises(DesignError) as err:
         fit_open_loop_gain(args.pop("frequency"), args.pop("magnitude_db"),
                            args.pop("phase_deg"), **args)

@@ -35,8 +35,8 @@ from photorx.device.equivalent_circuit import EquivalentCircuit  # noqa: E402
 from photorx.errors import DesignError  # noqa: E402
 
 # a zero below the crossover of a two-extra-pole amplifier, with Rs and a finite shunt
-DESIGN = dict(gbw=300e6, dc_gain=5e4, poles=(250e6, 1.2e9), zeros=(120e6,), rf=2e4,
-              cf=0.25e-12, cd=3e-12, rsh=5e7, rs=30.0, cin=1.5e-12)
+DESIGN = {"gbw": 300e6, "dc_gain": 5e4, "poles": (250e6, 1.2e9), "zeros": (120e6,),
+          "rf": 2e4, "cf": 0.25e-12, "cd": 3e-12, "rsh": 5e7, "rs": 30.0, "cin": 1.5e-12}
 KT = sc.k * 300.0
 
 
@@ -118,9 +118,9 @@ def test_phase_margin_with_a_zero_against_python_control():
     # Source: python-control stability_margins on the loop with the zero (as the existing
     # margin check, tests/circuit/test_tia_metrics.py); abs 0.01 deg, 0.01 dB
     for zeros in [(120e6,), (40e6, 600e6)]:
-        p = DESIGN | dict(zeros=zeros, poles=(250e6, 1.2e9, 3e9))
+        p = DESIGN | {"zeros": zeros, "poles": (250e6, 1.2e9, 3e9)}
         t = loop_tf(p)[0]
-        gm, pm, _, wpc, wgc, _ = control.stability_margins(t, returnall=True)
+        gm, pm, _, _wpc, wgc, _ = control.stability_margins(t, returnall=True)
         ours = loop_margins(**p)
         k = np.argmin(np.abs(pm))
         assert ours["phase_margin"] == pytest.approx(pm[k], abs=0.01)
@@ -192,7 +192,7 @@ def test_transimpedance_and_noise_with_a_zero_against_ngspice():
     spec = run_ngspice(net, "noise v(out) Iin dec 20 1e3 1e10",
                        ["frequency", "onoise_spectrum", "inoise_spectrum"], plot="noise1")
     fn = np.real(spec["frequency"])
-    src = dict(en=en, in_=in_, temperature=300.0)
+    src = {"en": en, "in_": in_, "temperature": 300.0}
     out = np.sqrt(sum(output_noise_psd(fn, **p, **src).values()))
     inp = np.sqrt(sum(input_noise_psd(fn, **p, **src).values()))
     np.testing.assert_allclose(out, np.real(spec["onoise_spectrum"]), rtol=1e-6)
@@ -235,7 +235,8 @@ def test_zero_below_crossover_raises_phase_margin(gbw, dc_gain, rf, cd, cin, whe
     # lifts |T| above f_z and moves the crossover up to about f_c / where; the one extra
     # amplifier pole sits ``far`` (>= 10) times above that. Then the zero's lead
     # (atan(1/where^2) >= 48 deg) outweighs the lag the higher crossover adds.
-    p = dict(gbw=gbw, dc_gain=dc_gain, rf=rf, cf=0.0, cd=cd, rsh=np.inf, rs=0.0, cin=cin)
+    p = {"gbw": gbw, "dc_gain": dc_gain, "rf": rf, "cf": 0.0, "cd": cd, "rsh": np.inf,
+         "rs": 0.0, "cin": cin}
     fc = float(loop_margins(**p, poles=())["crossover"])
     assume(fc > 3.0 / (2 * np.pi * rf * (cd + cin)))
     p["poles"] = (far * fc / where,)
@@ -257,7 +258,7 @@ def test_opamp_rejects_bad_zeros(zeros, match):
 @given(z=st.one_of(st.floats(max_value=0.0), st.just(float("nan"))))
 def test_core_rejects_nonpositive_zero(z):
     with pytest.raises(DesignError, match="zeros"):
-        tia_figures(**DESIGN | dict(zeros=(z,)))
+        tia_figures(**DESIGN | {"zeros": (z,)})
 
 
 def test_zeros_vectorise_over_designs_with_inf_for_none():
