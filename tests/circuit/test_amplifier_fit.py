@@ -97,14 +97,18 @@ def test_receiver_from_the_fit_matches_the_true_receiver():
     assert a.stable and b.stable
 
 
-def test_wrapped_phase_points_give_the_same_fit():
-    # data-sheet phase is often printed wrapped to (-180, 180]; residuals are wrapped too
-    m = MODELS["two_zeros"]
+def test_phase_points_off_by_whole_turns_give_the_same_fit():
+    # data sheets print phase from different origins (0, 360 deg, or wrapped); residuals are
+    # wrapped, so whole turns added to any point change nothing
+    m = MODELS["pole_zero_pair"]
     mag, ph = _points(m)
     a = _fit(m, mag, ph)
-    b = _fit(m, mag, ph % 360.0 - 360.0 * (ph % 360.0 > 180.0))
+    turns = 360.0 * np.where(np.arange(F.size) % 2, 1.0, -2.0)
+    b = _fit(m, mag, ph + turns)
     assert b.gbw == pytest.approx(a.gbw, rel=1e-6)
     np.testing.assert_allclose(b.poles, a.poles, rtol=1e-6)
+    np.testing.assert_allclose(b.zeros, a.zeros, rtol=1e-6)
+    np.testing.assert_allclose(b.phase_error, a.phase_error, atol=1e-6)
 
 
 def test_magnitude_only_fit():
