@@ -39,6 +39,8 @@ _EXPORTS = {
     "ionization_coefficients": "photorx.device.ionization",
     "OpAmp": "photorx.circuit.amplifier",
     "NoiseCurve": "photorx.circuit.amplifier_noise",
+    "fit_open_loop_gain": "photorx.circuit.amplifier_fit",
+    "GainFit": "photorx.circuit.amplifier_fit",
     "Tia": "photorx.circuit.tia",
     "TiaMetrics": "photorx.circuit.metrics",
     "design_feedback_capacitor": "photorx.circuit.feedback_design",

@@ -66,7 +66,6 @@ DEFAULT_DESIGN = "ingaas-pin-1310"
 def _build(spec: dict, where: str = ""):
     """Design spec -> Receiver; constructor errors are re-raised with the section path."""
     from .analysis.receiver import Receiver
-    from .circuit.amplifier import OpAmp
     from .circuit.filters import PostFilter
     from .circuit.tia import Tia
 
@@ -84,7 +83,7 @@ def _build(spec: dict, where: str = ""):
         j_sections = ("photodiode.junction", "operating_point")
     junction = make(j_sections, _junction_factory, **jspec)
     photodiode = make("photodiode", _photodiode_factory, junction=junction, **spec["photodiode"])
-    amp = make("amplifier", OpAmp, **spec["amplifier"])
+    amp = make("amplifier", _amplifier_factory, **spec["amplifier"])
     tia = make("feedback", Tia, amp=amp, **spec["feedback"])
     post = (make("post_filter", PostFilter, **spec["post_filter"])
             if "post_filter" in spec else None)
@@ -145,6 +144,33 @@ def _photodiode_factory(junction, kind="photodiode", **kwargs):
     from .device.apd import AvalanchePhotodiode
 
     return AvalanchePhotodiode(photodiode=pd_, **apd_args)
+
+
+def _amplifier_factory(gain_points=None, fit_poles=None, fit_zeros=None, **fields):
+    """OpAmp from the [amplifier] keys: given gain parameters, or fitted to gain points."""
+    from .circuit.amplifier import OpAmp
+
+    if gain_points is None:
+        for name, value in (("fit_poles", fit_poles), ("fit_zeros", fit_zeros)):
+            if value is not None:
+                raise DesignError(f"{name} = {value}: applies only with gain_points; valid "
+                                  "range: leave it out, or give gain_points", parameter=name)
+        if "gbw" not in fields:
+            raise DesignError("missing key gbw: expected a frequency in Hz such as '1 GHz' "
+                              "(or gain_points to fit)", parameter="gbw")
+        return OpAmp(**fields)
+    from .circuit.amplifier_fit import fit_open_loop_gain
+
+    given = [k for k in ("gbw", "dc_gain", "zeros") if k in fields] + (
+        ["poles"] if fields.get("poles") else [])
+    if given:
+        raise DesignError(f"{given[0]} and gain_points both given; valid range: one of them "
+                          "(the fit of gain_points sets gbw, dc_gain, poles and zeros)",
+                          parameter=given[0])
+    fields.pop("poles", None)
+    freq, mag, phase = gain_points
+    fit = fit_open_loop_gain(freq, mag, phase, poles=fit_poles or 0, zeros=fit_zeros or 0)
+    return fit.amplifier(**fields)
 
 
 #: Deepest nesting of arrays and inline tables a design file may use (a wavelength table
@@ -488,9 +514,11 @@ def _design_values(rx) -> dict[str, dict]:
                                                                       "temperature"):
                     values["temperature"] = junction.temperature
             else:
-                value = getattr(obj, key.arg)
+                value = getattr(obj, key.arg, None)  # None: a load-only key (gain_points)
                 if value is None or (key.default is OMIT and _is_default(obj, key.arg, value)):
                     continue
+                if key.default is OMIT and key.kind == "list" and not len(value):
+                    continue  # an empty list left to its constructor default (zeros)
                 values[key.name] = value
         out[section] = values
     return out
@@ -665,7 +693,7 @@ _STUDY_TEMPLATE = [
 def _example(key: Key) -> str:
     if key.kind in ("text",):
         return f'"{key.example}"'
-    if key.kind in ("list", "integer", "curve") or (key.unit == "" and key.kind != "ratio"):
+    if key.kind in ("list", "integer", "curve", "points") or (key.unit == "" and key.kind != "ratio"):
         return key.example
     return f'"{key.example}"'
 

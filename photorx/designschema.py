@@ -60,8 +60,9 @@ class Key:
     kind : str
         ``"quantity"`` (default), ``"text"``, ``"integer"``, ``"list"`` (of quantities),
         ``"ratio"`` (a plain number or decibels, ``"10 dB"``), ``"table"`` (a quantity, or
-        a list of ``[wavelength, value]`` pairs) or ``"curve"`` (a list of
-        ``[frequency, value]`` pairs, read as ``(frequencies, values)``).
+        a list of ``[wavelength, value]`` pairs), ``"curve"`` (a list of
+        ``[frequency, value]`` pairs, read as ``(frequencies, values)``) or ``"points"`` (a
+        list of ``[frequency, magnitude, phase]`` rows: Hz, dB, deg).
     when : tuple of str
         The key applies only when the section's selector (``model`` or ``kind``) takes one
         of these values; empty (default) = always.
@@ -211,12 +212,27 @@ SCHEMA: tuple[Key, ...] = (
         doc="Carrier velocity for the transit and avalanche build-up times (default 1e5 m/s).",
         example="1e5 m/s"),
     # -- amplifier -----------------------------------------------------------------------------
-    Key("amplifier", "gbw", "Hz", REQUIRED, check="[1e3..1e12]", doc="Gain-bandwidth product.",
+    Key("amplifier", "gbw", "Hz", None, check="[1e3..1e12]",
+        doc="Gain-bandwidth product (required unless gain_points are given).",
         example="1 GHz"),
-    Key("amplifier", "dc_gain", "", 1e5, check="[1..1e10]", doc="DC open-loop gain [V/V].",
-        example="1e5"),
+    Key("amplifier", "dc_gain", "", OMIT, check="[1..1e10]",
+        doc="DC open-loop gain [V/V] (default 1e5).", example="1e5"),
     Key("amplifier", "poles", "Hz", (), kind="list", check="[1e3..1e13]",
         doc="Extra poles beyond the dominant one.", example='["3 GHz"]'),
+    Key("amplifier", "zeros", "Hz", OMIT, kind="list", check="[1e3..1e13]",
+        doc="Real zeros of the open-loop gain (at most as many as the extra poles).",
+        example='["1.5 GHz"]'),
+    Key("amplifier", "gain_points", None, None, kind="points",
+        doc="Data-sheet open-loop gain as [frequency, magnitude, phase] rows, fitted on load "
+            "to gbw, dc_gain and fit_poles extra poles and fit_zeros zeros (then leave "
+            "those four keys out; files written back hold the fitted values).",
+        example='[["100 Hz", "100 dB", "-6 deg"], ["10 kHz", "80 dB", "-84 deg"], '
+                '["1 MHz", "40 dB", "-90 deg"], ["100 MHz", "-0.5 dB", "-108 deg"], '
+                '["1 GHz", "-30.8 dB", "-163 deg"]]'),
+    Key("amplifier", "fit_poles", None, None, kind="integer",
+        doc="Extra real poles fitted to gain_points (0 to 6; default 0).", example="1"),
+    Key("amplifier", "fit_zeros", None, None, kind="integer",
+        doc="Real zeros fitted to gain_points (at most fit_poles; default 0).", example="0"),
     Key("amplifier", "voltage_noise", "V/rtHz", REQUIRED, check="[0..1e-6]",
         doc="White input voltage noise density.", example="5 nV/rtHz"),
     Key("amplifier", "current_noise", "A/rtHz", REQUIRED, check="[0..1e-9]",
@@ -397,6 +413,9 @@ def _expected(key: Key) -> str:
     if key.kind == "curve":
         return (f"a list of at least two [frequency, density] pairs, frequencies rising, "
                 f"densities in {key.unit}{valid}, e.g. {key.example}")
+    if key.kind == "points":
+        return ("a list of [frequency, magnitude, phase] rows such as "
+                "[\"1 MHz\", \"40 dB\", \"-90 deg\"]")
     if key.kind == "ratio":
         return f"a number or decibels{valid}, e.g. '{key.example}'"
     if key.unit == "":
@@ -507,6 +526,8 @@ def _parse_value(key: Key, raw, source: str):
         if not isinstance(raw, list):
             raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}", parameter=key.where)
         return tuple(_parse_scalar(key, item, prefix) for item in raw)
+    if key.kind == "points":
+        return _parse_points(key, raw, prefix)
     if key.kind == "table" and isinstance(raw, list):
         pairs = []
         for item in raw:
@@ -533,6 +554,25 @@ def _parse_value(key: Key, raw, source: str):
                               f"{_MAX_DB:g} dB; expected {_expected(key)}", parameter=key.where)
         return _checked(key, 10.0 ** (db / 10.0), prefix)
     return _parse_scalar(key, raw, prefix)
+
+
+def _parse_points(key: Key, raw, prefix: str):
+    """[[frequency, magnitude, phase], ...] -> (f [Hz], |A| [dB], arg A [deg]) tuples."""
+    if not (isinstance(raw, list) and raw
+            and all(isinstance(row, list) and len(row) == 3 for row in raw)):
+        raise DesignError(f"{prefix} = {_shown(raw)}: expected {_expected(key)}",
+                          parameter=key.where)
+    freq = Key(key.section, key.name, "Hz", check=">0", example="1 MHz")
+    cols = ([], [], [])
+    for row in raw:
+        cols[0].append(_parse_scalar(freq, row[0], prefix))
+        for col, item, unit in ((cols[1], row[1], "dB"), (cols[2], row[2], "deg")):
+            text = item.strip() if isinstance(item, str) else item
+            if isinstance(text, str) and text.endswith(unit):
+                text = text[:-len(unit)]  # the unit is optional; no other unit is accepted
+            col.append(_parse_scalar(Key(key.section, key.name, "", example=f"-90 {unit}"),
+                                     text, f"{prefix} ({unit})"))
+    return tuple(tuple(c) for c in cols)
 
 
 def _parse_scalar(key: Key, raw, prefix: str) -> float:

@@ -215,6 +215,21 @@ def _call_chain_noise(tmp_path, extra):
 _FORWARDS_KEYWORDS["photorx.analysis.noise_integrals.chain_noise"] = _call_chain_noise
 
 
+_GAIN_POINTS = ([1e2, 1e4, 1e6, 1e8], [100.0, 80.0, 40.0, -0.5], [-6.0, -84.0, -90.0, -108.0])
+
+
+def _call_from_gain_points(tmp_path, extra):
+    photorx.OpAmp.from_gain_points(*_GAIN_POINTS, poles=1, input_capacitance=1e-12, **extra)
+
+
+def _call_gain_fit_amplifier(tmp_path, extra):
+    photorx.fit_open_loop_gain(*_GAIN_POINTS, poles=1).amplifier(input_capacitance=1e-12, **extra)
+
+
+_FORWARDS_KEYWORDS["photorx.circuit.amplifier.OpAmp.from_gain_points"] = _call_from_gain_points
+_FORWARDS_KEYWORDS["photorx.circuit.amplifier_fit.GainFit.amplifier"] = _call_gain_fit_amplifier
+
+
 def _grid_keys(extra):
     from photorx.analysis.sweep import grid
 

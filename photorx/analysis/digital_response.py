@@ -31,7 +31,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..circuit.filters import normalized_poles
-from ..circuit.loop_poles import closed_loop_polynomial, closed_loop_poles
+from ..circuit.loop_poles import closed_loop_numerator, closed_loop_polynomial, closed_loop_poles
 from ..errors import DesignError
 
 __all__ = ["rational_chain", "rational_impulse", "rational_step", "rational_pulse",
@@ -47,7 +47,7 @@ def rational_chain(circuit: dict, post_filter=None):
     ----------
     circuit : dict
         The transimpedance design as scalars: ``gbw, dc_gain, poles, rf, cf, cd, rsh, rs,
-        cin`` (see :func:`photorx.circuit.tia.transimpedance`), e.g. ``Tia._args(net)``.
+        cin`` and optionally ``zeros`` (see :func:`photorx.circuit.tia.transimpedance`), e.g. ``Tia._args(net)``.
     post_filter : PostFilter, optional
         Butterworth or Bessel filters join the rational part; a brick wall does not (the
         caller applies it numerically).
@@ -61,8 +61,9 @@ def rational_chain(circuit: dict, post_filter=None):
 
     Notes
     -----
-    R(s) = K / prod_k (s - p_k) with K = A0 / Den_lead * prod_j(-q_j) for the filter poles
-    q_j, so c_k = K / prod_{j != k} (p_k - p_j). Coincident poles (a filter pole on a loop
+    R(s) = K N_A(s) / prod_k (s - p_k) with K = A0 / Den_lead * prod_j(-q_j) for the filter
+    poles q_j and N_A the amplifier's zero polynomial (1 without zeros), so
+    c_k = K N_A(p_k) / prod_{j != k} (p_k - p_j). Coincident poles (a filter pole on a loop
     pole, critical damping) are split by 1e-6 relative, which changes the response by
     about 1e-12 relative.
     """
@@ -84,6 +85,9 @@ def rational_chain(circuit: dict, post_filter=None):
     diff = p[:, None] - p[None, :]
     np.fill_diagonal(diff, 1.0)
     residues = gain / np.prod(diff, axis=1)
+    if len(circuit.get("zeros", ())):
+        num = np.asarray(closed_loop_numerator(**circuit), dtype=float).reshape(-1)
+        residues = residues * np.polynomial.polynomial.polyval(p, num)
     return p, np.real_if_close(residues) * (1 + 0j)
 
 

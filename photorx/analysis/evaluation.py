@@ -390,7 +390,8 @@ def _noise(p: _Point):
     the input-referred spot density at ENBW/10 [A/rtHz] of every source.
     """
     rx, amp = p.rx, p.amp
-    circuit = {k: (tuple(p.b(x) for x in val) if k == "poles" else p.b(val)) for k, val in p.circuit.items()}
+    circuit = {k: (tuple(p.b(x) for x in val) if k in ("poles", "zeros") else p.b(val))
+               for k, val in p.circuit.items()}
     filt = _filter_kwargs(rx.post_filter)
     sources = dict(
         en=p.b(amp.voltage_noise), en_corner=p.b(amp.voltage_noise_corner), in_=p.b(amp.current_noise),

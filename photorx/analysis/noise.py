@@ -144,7 +144,8 @@ def shot_current_density(current):
     return np.sqrt(2.0 * _Q * i)
 
 
-def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.0):
+def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.inf, rs=0.0, cin=0.0,
+                             zeros=()):
     """Transfer functions from each noise injection point to the TIA output.
 
     Parameters
@@ -160,6 +161,9 @@ def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.in
         resistance [ohm].
     cin : array_like
         Amplifier input capacitance [F].
+    zeros : sequence of array_like, optional
+        Real zeros of the open-loop gain [Hz] (a sequence, ``inf`` for none); see
+        :func:`photorx.circuit.amplifier.open_loop_gain`.
 
     Returns
     -------
@@ -187,7 +191,7 @@ def noise_transfer_functions(f, *, gbw, dc_gain, poles=(), rf, cf, cd, rsh=np.in
     divider = 1.0 / (1.0 + np.asarray(rs, dtype=float) * yd)
     y_series = yd * divider
     yin = y_series + s * np.asarray(cin, dtype=float)
-    a = open_loop_gain(f, gbw, dc_gain, poles)
+    a = open_loop_gain(f, gbw, dc_gain, poles, zeros)
     t = a * yf / (yf + yin)
     one_plus_t = 1.0 + t
     summing = t / one_plus_t / yf
@@ -226,6 +230,7 @@ def _unfiltered_psd(
     stage2_corner,
     en_shape=None,
     in_shape=None,
+    zeros=(),
     squared_magnitudes=None,
 ):
     # squared_magnitudes: |H|^2 of every path of noise_transfer_functions, computed by the
@@ -233,7 +238,8 @@ def _unfiltered_psd(
     f = np.asarray(f, dtype=float)
     if squared_magnitudes is None:
         h = noise_transfer_functions(
-            f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin
+            f, gbw=gbw, dc_gain=dc_gain, poles=poles, rf=rf, cf=cf, cd=cd, rsh=rsh, rs=rs, cin=cin,
+            zeros=zeros,
         )
         mag2 = {k: np.abs(v) ** 2 for k, v in h.items()}
     else:
@@ -274,6 +280,7 @@ def output_noise_psd(
     rsh=np.inf,
     rs=0.0,
     cin=0.0,
+    zeros=(),
     en=0.0,
     en_corner=0.0,
     in_=0.0,
@@ -294,7 +301,7 @@ def output_noise_psd(
     ----------
     f : array_like
         Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
-    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
         Circuit, see :func:`noise_transfer_functions`.
     en, en_corner : array_like
         Amplifier white input voltage noise [V/rtHz] and its 1/f corner [Hz].
@@ -356,6 +363,7 @@ def output_noise_psd(
         stage2_corner,
         en_shape,
         in_shape,
+        zeros,
     )
     if filter_kind is not None:
         h2 = np.abs(filter_response(f, filter_kind, filter_order, filter_cutoff)) ** 2
@@ -375,6 +383,7 @@ def input_noise_psd(
     rsh=np.inf,
     rs=0.0,
     cin=0.0,
+    zeros=(),
     en=0.0,
     en_corner=0.0,
     in_=0.0,
@@ -398,7 +407,7 @@ def input_noise_psd(
     ----------
     f : array_like
         Frequency [Hz], > 0 (the 1/f terms are infinite at 0 Hz).
-    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
         Circuit, see :func:`noise_transfer_functions`; defaults ``poles=()``,
         ``rsh=inf``, ``rs=0``, ``cin=0``.
     en, en_corner, in_, in_corner, temperature, i_shot, stage2_noise, stage2_corner
@@ -419,7 +428,7 @@ def input_noise_psd(
     """
     out, zt2 = _unfiltered_psd(
         f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, en, en_corner, in_, in_corner,
-        temperature, i_shot, stage2_noise, stage2_corner, en_shape, in_shape,
+        temperature, i_shot, stage2_noise, stage2_corner, en_shape, in_shape, zeros,
     )  # fmt: skip
     return {name: v / zt2 for name, v in out.items()}
 
@@ -431,9 +440,9 @@ def with_frequency_axis(params):
     ----------
     params : dict
         Keywords of :func:`output_noise_psd` (without ``f``), each shaped like the designs;
-        ``poles`` is a sequence of arrays, ``i_shot`` may be a dict, ``filter_kind`` and
-        ``filter_order`` are scalars and ``en_shape``, ``in_shape`` noise shapes (one for
-        all designs): these are passed through unchanged.
+        ``poles`` and ``zeros`` are sequences of arrays, ``i_shot`` may be a dict,
+        ``filter_kind`` and ``filter_order`` are scalars and ``en_shape``, ``in_shape``
+        noise shapes (one for all designs): these are passed through unchanged.
 
     Returns
     -------
@@ -442,7 +451,7 @@ def with_frequency_axis(params):
     """
     out = {}
     for name, value in params.items():
-        if name == "poles":
+        if name in ("poles", "zeros"):
             out[name] = tuple(np.asarray(p, dtype=float)[..., None] for p in value)
         elif name == "i_shot" and isinstance(value, dict):
             out[name] = {k_: np.asarray(v, dtype=float)[..., None] for k_, v in value.items()}
@@ -504,6 +513,7 @@ def chain_enbw(
     rsh=np.inf,
     rs=0.0,
     cin=0.0,
+    zeros=(),
     filter_kind=None,
     filter_order=4,
     filter_cutoff=np.inf,
@@ -516,7 +526,7 @@ def chain_enbw(
 
     Parameters
     ----------
-    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
         Circuit, see :func:`noise_transfer_functions`; defaults ``poles=()``,
         ``rsh=inf``, ``rs=0``, ``cin=0``.
     filter_kind, filter_order, filter_cutoff
@@ -552,6 +562,7 @@ def chain_enbw(
         "rsh": rsh,
         "rs": rs,
         "cin": cin,
+        "zeros": zeros,
     }
     p = with_frequency_axis(circuit)
     zt0 = np.abs(noise_transfer_functions(0.0, **p)["junction"])[..., 0]

@@ -29,9 +29,9 @@ from .noise import (_unfiltered_psd, chain_enbw, integrated_output_noise, noise_
 
 __all__ = ["chain_noise"]
 
-_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin")
-_DEFAULTS = dict(poles=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0, in_=0.0,
-                 in_corner=0.0, temperature=300.0, i_shot=0.0, stage2_noise=0.0,
+_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin", "zeros")
+_DEFAULTS = dict(poles=(), zeros=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0,
+                 in_=0.0, in_corner=0.0, temperature=300.0, i_shot=0.0, stage2_noise=0.0,
                  stage2_corner=0.0, en_shape=None, in_shape=None)
 _SHAPES = ("en_shape", "in_shape")  # tabulated noise shapes: one for all designs, not arrays
 
@@ -104,7 +104,7 @@ def _leaves(params, filt):
     for k, v in {**params, "filter_cutoff": filt["filter_cutoff"]}.items():
         if k in _SHAPES:
             continue
-        if k == "poles":
+        if k in ("poles", "zeros"):
             yield from ((k, i, x) for i, x in enumerate(v))
         elif isinstance(v, dict):
             yield from ((k, name, x) for name, x in v.items())
@@ -156,7 +156,7 @@ def _on_grid_in_blocks(f_lo, rtol, per_decade, top_factor, params, filt):
 
 def _subset(params, filt, flat, rows):
     """``params`` and ``filt`` with every array input taken at the flat design indices ``rows``."""
-    sub = {k: (list(v) if k == "poles" else dict(v) if isinstance(v, dict) else v)
+    sub = {k: (list(v) if k in ("poles", "zeros") else dict(v) if isinstance(v, dict) else v)
            for k, v in params.items()}
     sub_filt = dict(filt)
     for k, i, v in flat:
@@ -168,6 +168,8 @@ def _subset(params, filt, flat, rows):
         else:
             sub[k][i] = piece
     sub["poles"] = tuple(sub["poles"])
+    if "zeros" in sub:
+        sub["zeros"] = tuple(sub["zeros"])
     return sub, sub_filt
 
 
@@ -199,6 +201,7 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
                                                     "in_corner", "temperature", "i_shot",
                                                     "stage2_noise", "stage2_corner",
                                                     *_SHAPES)),
+                               zeros=e.get("zeros", ()),
                                squared_magnitudes=loop.squared_magnitudes(f))
     if filt["filter_kind"] is not None:
         cutoff = np.asarray(filt["filter_cutoff"], dtype=float)[..., None]

@@ -28,7 +28,7 @@ from .noise import (
 
 __all__ = ["NoiseSpectrum", "source_table", "tia_noise"]
 
-_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin")
+_CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin", "zeros")
 
 
 def source_table(mean_square, density, *, zt0, enbw, f_spot, f_lo, f_hi, drop_zero=True):
@@ -506,6 +506,7 @@ def tia_noise(
         "gbw": amp.gbw,
         "dc_gain": amp.dc_gain,
         "poles": tuple(amp.poles),
+        "zeros": tuple(amp.zeros),
         "rf": tia.rf,
         "cf": tia.cf,
         "cd": net.capacitance,

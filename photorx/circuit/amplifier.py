@@ -19,8 +19,8 @@ __all__ = ["OpAmp", "open_loop_gain", "voltage_noise_density", "current_noise_de
            "flicker_factor"]
 
 
-def open_loop_gain(f, gbw, dc_gain, poles=()):
-    """Open-loop voltage gain of a dominant-pole amplifier with optional extra poles.
+def open_loop_gain(f, gbw, dc_gain, poles=(), zeros=()):
+    """Open-loop voltage gain of a dominant-pole amplifier with optional extra poles and zeros.
 
     Parameters
     ----------
@@ -32,6 +32,8 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
         DC open-loop gain A0 [V/V].
     poles : sequence of array_like
         Extra (non-dominant) pole frequencies [Hz]; ``inf`` marks an absent pole.
+    zeros : sequence of array_like
+        Real left-half-plane zero frequencies [Hz], > 0; ``inf`` marks an absent zero.
 
     Returns
     -------
@@ -40,7 +42,9 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
 
     Notes
     -----
-    A(s) = A0 / (1 + s/w_d) * prod_k 1/(1 + s/w_k), w_d = 2 pi GBW / A0.
+    A(s) = A0 prod_j (1 + s/w_zj) / ((1 + s/w_d) prod_k (1 + s/w_k)), w_d = 2 pi GBW / A0.
+    GBW stays the gain-bandwidth product of the dominant pole alone (A0 w_d / 2 pi); a zero
+    below the unity-gain frequency moves the actual crossover.
 
     References
     ----------
@@ -52,6 +56,8 @@ def open_loop_gain(f, gbw, dc_gain, poles=()):
     a = a0 / (1.0 + s * a0 / (2 * np.pi * gbw))
     for fp in poles:
         a = a / (1.0 + s / (2 * np.pi * np.asarray(fp, dtype=float)))
+    for fz in zeros:
+        a = a * (1.0 + s / (2 * np.pi * np.asarray(fz, dtype=float)))
     return a
 
 
@@ -126,6 +132,20 @@ def current_noise_density(f, white, corner):
     return voltage_noise_density(f, white, corner)
 
 
+def _corner_tuple(name, value):
+    """Pole or zero frequencies [Hz] as a tuple of floats, each > 0 and finite."""
+    # a scalar is one corner (0 is rejected below, not read as "none"); None means none
+    raw = () if value is None else value
+    try:
+        out = tuple(float(p) for p in np.atleast_1d(np.asarray(raw, dtype=float)).ravel())
+    except (TypeError, ValueError):
+        raise DesignError(f"{name} = {value!r} is not a sequence of frequencies in Hz",
+                          parameter=name) from None
+    for p in out:
+        require_positive(name, p, "Hz")
+    return out
+
+
 @dataclass(frozen=True)
 class OpAmp:
     """A voltage-feedback amplifier used as a transimpedance stage (non-inverting input grounded).
@@ -157,6 +177,11 @@ class OpAmp:
         [Hz], densities) pair or rows of [frequency, density]. The curve is the shape and
         the white level scales it: e_n(f) = voltage_noise * c(f) / c_white. None (default)
         for the white-plus-1/f model.
+    zeros : tuple of float
+        Real left-half-plane zeros of the open-loop gain [Hz], each > 0 (a single number is
+        one zero; ``()`` or ``None`` for none); at most as many as ``poles``, so that the
+        gain still falls at high frequency (an amplifier's gain does; a flat top would give
+        the voltage noise an unbounded bandwidth).
     """
 
     gbw: float = 100e6
@@ -170,21 +195,20 @@ class OpAmp:
     output_swing: float = 2.0
     voltage_noise_curve: object = None
     current_noise_curve: object = None
+    # after the fields of the first release, so that positional construction keeps working
+    zeros: tuple = field(default_factory=tuple)
 
     def __post_init__(self):
         set_ = object.__setattr__
         set_(self, "gbw", require_positive("gbw", self.gbw, "Hz"))
         set_(self, "dc_gain", require_positive("dc_gain", self.dc_gain, "V/V"))
-        # a scalar is one pole (0 is rejected below, not read as "no pole"); None means none
-        raw = () if self.poles is None else self.poles
-        try:
-            poles = tuple(float(p) for p in np.atleast_1d(np.asarray(raw, dtype=float)).ravel())
-        except (TypeError, ValueError):
-            raise DesignError(f"poles = {self.poles!r} is not a sequence of frequencies in Hz",
-                              parameter="poles") from None
-        for p in poles:
-            require_positive("poles", p, "Hz")
-        set_(self, "poles", poles)
+        set_(self, "poles", _corner_tuple("poles", self.poles))
+        set_(self, "zeros", _corner_tuple("zeros", self.zeros))
+        if len(self.zeros) > len(self.poles):
+            raise DesignError(f"zeros = {self.zeros!r} Hz: {len(self.zeros)} zeros with "
+                              f"{len(self.poles)} extra poles; valid range: at most "
+                              f"{len(self.poles)} zeros (len(poles)), so that the open-loop "
+                              "gain still falls at high frequency", parameter="zeros")
         for kind, unit, default in (("voltage", "V/rtHz", 5e-9), ("current", "A/rtHz", 1e-15)):
             for name, value in zip((f"{kind}_noise", f"{kind}_noise_curve"), settle_noise(
                     self, kind, unit, default)):
@@ -196,6 +220,43 @@ class OpAmp:
         set_(self, "input_capacitance",
              require_nonnegative("input_capacitance", self.input_capacitance, "F"))
         set_(self, "output_swing", require_positive("output_swing", self.output_swing, "V"))
+
+    @classmethod
+    def from_gain_points(cls, frequency, magnitude_db, phase_deg=None, *, poles=0, zeros=0,
+                         magnitude_tolerance=1.0, phase_tolerance=5.0, **fields):
+        """An amplifier whose open-loop gain is fitted to data-sheet magnitude/phase points.
+
+        The points are represented by the fitted poles and zeros (the engine works on that
+        rational model); a fit that misses a point by more than its tolerance warns
+        (:class:`~photorx.errors.ModelRangeWarning`). Use
+        :func:`photorx.circuit.amplifier_fit.fit_open_loop_gain` for the residuals and
+        uncertainties.
+
+        Parameters
+        ----------
+        frequency : array_like
+            Frequencies of the points [Hz], > 0.
+        magnitude_db : array_like
+            Open-loop gain 20 log10 |A| [dB].
+        phase_deg : array_like, optional
+            Phase of A [deg], 0 at DC and falling; None for magnitude only.
+        poles, zeros : int
+            Numbers of extra real poles and of real zeros to fit.
+        magnitude_tolerance, phase_tolerance : float
+            Expected errors of the points [dB], [deg], > 0 (weights and acceptance limits).
+        **fields
+            The other :class:`OpAmp` fields (noise, input capacitance, output swing).
+
+        Returns
+        -------
+        OpAmp
+        """
+        from .amplifier_fit import fit_open_loop_gain
+
+        fit = fit_open_loop_gain(frequency, magnitude_db, phase_deg, poles=poles, zeros=zeros,
+                                 magnitude_tolerance=magnitude_tolerance,
+                                 phase_tolerance=phase_tolerance)
+        return fit.amplifier(**fields)
 
     @property
     def dominant_pole(self):
@@ -210,7 +271,7 @@ class OpAmp:
         f : float or array_like
             Frequency [Hz], >= 0.
         """
-        return open_loop_gain(f, self.gbw, self.dc_gain, self.poles)
+        return open_loop_gain(f, self.gbw, self.dc_gain, self.poles, self.zeros)
 
     def voltage_noise_density(self, f):
         """Input voltage noise density at ``f`` [V/rtHz]; see :func:`voltage_noise_density`.

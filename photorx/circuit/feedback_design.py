@@ -185,7 +185,8 @@ def design_feedback_capacitor(amp, rf, net, target="butterworth", phase_margin=N
     ci = net.capacitance + amp.input_capacitance
     closed = float(closed_form_feedback_capacitor(amp.gbw, rf, ci, zeta))
     args = dict(gbw=amp.gbw, dc_gain=amp.dc_gain, poles=amp.poles, rf=rf, cd=net.capacitance,
-                rsh=net.shunt_resistance, rs=net.series_resistance, cin=amp.input_capacitance)
+                rsh=net.shunt_resistance, rs=net.series_resistance, cin=amp.input_capacitance,
+                zeros=amp.zeros)
     if cf_max is None:
         cf_max = max(1e3 * closed, 1e-9)
     cf_max = float(require_positive("cf_max", cf_max, "F"))

@@ -1,7 +1,8 @@
 """Phase and gain margins of the transimpedance loop gain T = A beta (vectorised).
 
 The loop gain is written from its real corner frequencies, T = T0 prod(1 + s/wz) /
-prod(1 + s/wp) (the passive network is RC-only, so every corner is real); crossings are
+prod(1 + s/wp) (the passive network is RC-only, so every corner is real, and the
+amplifier's own zeros are real by construction: they join the zero corners); crossings are
 found on a log grid and refined by bisection. Conventions (worst crossing, wrapping) are
 those of python-control's ``stability_margins``; see the notes of
 :mod:`photorx.circuit.metrics`.
@@ -31,7 +32,7 @@ def _loop_corners(p, pk, parts):
     gf, gsh, p0 = parts["gf"], parts["gsh"], parts["p0"]
     t0 = p["dc_gain"] * gf * p0 / (gf * p0 + gsh)
     q0, q1, q2 = parts["q2"][:, 0], parts["q2"][:, 1], parts["q2"][:, 2]
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):  # inf: no corner
         root = np.sqrt(np.maximum(q1 * q1 - 4 * q0 * q2, 0.0))
         wq1 = 2 * q0 / (q1 + root)
         wq2 = np.where(q2 > 0, (q1 + root) / (2 * np.where(q2 > 0, q2, 1.0)), np.inf)
@@ -40,6 +41,8 @@ def _loop_corners(p, pk, parts):
                                 np.inf)], -1)
         wp = np.concatenate([np.stack([_TWO_PI * p["gbw"] / p["dc_gain"], wq1, wq2], -1),
                              _TWO_PI * pk], -1)
+    if "zeros" in p:
+        wz = np.concatenate([wz, _TWO_PI * p["zeros"]], -1)
     return t0, wz, wp
 
 
@@ -119,7 +122,7 @@ def _margins(t0, wz, wp):
     return pm, gm, wc / _TWO_PI, wpc / _TWO_PI
 
 
-def loop_margins(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+def loop_margins(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=()):
     """Phase and gain margin of the loop gain T = A beta, vectorised over designs.
 
     Parameters
@@ -143,6 +146,9 @@ def loop_margins(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
         Photodiode series resistance [ohm], >= 0.
     cin : array_like
         Amplifier input capacitance [F], >= 0.
+    zeros : sequence of array_like, optional
+        Real amplifier zeros [Hz], > 0, one entry per zero; ``inf`` marks an absent zero.
+        ``()`` (default) for none.
 
     Returns
     -------
@@ -155,7 +161,7 @@ def loop_margins(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     ----------
     .. [1] K. Ogata, *Modern Control Engineering*, 5th ed., 2010, sec. 7-6.
     """
-    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=zeros)
     parts = _den_parts(p, pk)
     pm, gm, fc, fpc = _margins(*_loop_corners(p, pk, parts))
     return {"phase_margin": pm.reshape(shape), "gain_margin_db": gm.reshape(shape),

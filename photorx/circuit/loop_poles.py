@@ -19,7 +19,7 @@ import numpy as np
 from .._validate import as_float_array, require_nonnegative, require_positive
 from ..errors import DesignError
 
-__all__ = ["closed_loop_polynomial", "closed_loop_poles"]
+__all__ = ["closed_loop_polynomial", "closed_loop_poles", "closed_loop_numerator"]
 
 _TWO_PI = 2.0 * np.pi
 
@@ -38,8 +38,20 @@ def _positive_or_inf(name, value, unit):
     return arr
 
 
-def _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.inf):
-    """Validate, broadcast and flatten. Returns (shape, dict of 1-D arrays, poles (N, K))."""
+def _corner_list(name, values):
+    """A sequence of pole or zero arrays [Hz], each validated (> 0, inf for none)."""
+    if values is None:
+        values = ()
+    elif not isinstance(values, (list, tuple)):
+        values = tuple(values) if np.ndim(values) else (values,)
+    return [_positive_or_inf(name, v, "Hz") for v in values]
+
+
+def _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.inf, zeros=()):
+    """Validate, broadcast and flatten. Returns (shape, dict of 1-D arrays, poles (N, K)).
+
+    The amplifier's zeros, if any, are in the dict as ``"zeros"``, shaped (N, Z).
+    """
     vals = dict(
         gbw=require_positive("gbw", gbw, "Hz"),
         dc_gain=require_positive("dc_gain", dc_gain, "V/V"),
@@ -51,18 +63,20 @@ def _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.inf)
         cin=require_nonnegative("cin", cin, "F"),
         output_swing=_positive_or_inf("output_swing", output_swing, "V"),
     )
-    if poles is None:
-        poles = ()
-    elif not isinstance(poles, (list, tuple)):
-        poles = tuple(poles) if np.ndim(poles) else (poles,)
-    pole_list = [_positive_or_inf("poles", p, "Hz") for p in poles]
+    pole_list = _corner_list("poles", poles)
+    zero_list = _corner_list("zeros", zeros)
     shape = np.broadcast_shapes(*(np.shape(v) for v in vals.values()),
-                                *(np.shape(p) for p in pole_list))
+                                *(np.shape(p) for p in pole_list + zero_list))
     flat = {k: np.broadcast_to(np.asarray(v, dtype=float), shape).ravel() for k, v in vals.items()}
     n = flat["gbw"].size
-    pk = np.stack([np.broadcast_to(np.asarray(p, dtype=float), shape).ravel() for p in pole_list],
-                  axis=-1) if pole_list else np.zeros((n, 0))
-    return shape, flat, pk
+
+    def stack(items):
+        return np.stack([np.broadcast_to(np.asarray(p, dtype=float), shape).ravel() for p in items],
+                        axis=-1) if items else np.zeros((n, 0))
+
+    if zero_list:
+        flat["zeros"] = stack(zero_list)
+    return shape, flat, stack(pole_list)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -121,16 +135,56 @@ def _den_parts(p, pk):
     da = np.stack([one, p["dc_gain"] / (_TWO_PI * p["gbw"])], -1)
     for k in range(pk.shape[-1]):
         da = _polymul(da, np.stack([one, 1.0 / (_TWO_PI * pk[:, k])], -1))
-    return dict(gf=gf, gsh=gsh, p0=p0, nfp=nfp, q2=q2, da=da)
+    parts = dict(gf=gf, gsh=gsh, p0=p0, nfp=nfp, q2=q2, da=da)
+    zk = p.get("zeros")
+    if zk is not None:  # N_A(s) = prod(1 + s/w_z); absent (inf) zeros give 0 coefficients
+        na = one[:, None]
+        for k in range(zk.shape[-1]):
+            na = _polymul(na, np.stack([one, 1.0 / (_TWO_PI * zk[:, k])], -1))
+        parts["na"] = na
+    return parts
 
 
 def _denominator(p, parts):
-    """Den(s) = Q2(s) D_A(s) + A0 Yf(s) P(s) from :func:`_den_parts` (ascending coefficients)."""
-    return _polyadd(_polymul(parts["q2"], parts["da"]), p["dc_gain"][:, None] * parts["nfp"])
+    """Den(s) = Q2(s) D_A(s) + A0 N_A(s) Yf(s) P(s) from :func:`_den_parts` (ascending
+    coefficients; N_A = 1 without amplifier zeros)."""
+    nfp = parts["nfp"] if "na" not in parts else _polymul(parts["na"], parts["nfp"])
+    return _polyadd(_polymul(parts["q2"], parts["da"]), p["dc_gain"][:, None] * nfp)
 
 
-def closed_loop_polynomial(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
-    """Denominator of the closed-loop transimpedance, Zt(s) = dc_gain / Den(s).
+def _numerator(p, parts, w0):
+    """N_A(s w0) of the normalised closed loop (ascending in s/w0), or None without zeros."""
+    na = parts.get("na")
+    if na is None:
+        return None
+    return na * w0[:, None] ** np.arange(na.shape[-1])
+
+
+def closed_loop_numerator(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=()):
+    """Numerator of the closed-loop transimpedance, Zt(s) = dc_gain N_A(s) / Den(s).
+
+    N_A(s) = prod_j (1 + s/w_zj) is the zero polynomial of the amplifier's open-loop gain
+    (:func:`photorx.circuit.amplifier.open_loop_gain`); the passive network adds no finite
+    zero to Zt, so these are its only zeros. Parameters as in :func:`closed_loop_polynomial`.
+
+    Parameters
+    ----------
+    gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros
+        The design, as in :func:`closed_loop_polynomial`.
+
+    Returns
+    -------
+    numpy.ndarray
+        Coefficients of N_A(s), s in [rad/s], ascending powers on the last axis, shape
+        ``broadcast_shape + (1 + len(zeros),)``; N_A(0) = 1, units [s^k].
+    """
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=zeros)
+    na = _den_parts(p, pk).get("na", np.ones((p["gbw"].size, 1)))
+    return na.reshape(shape + (na.shape[-1],))
+
+
+def closed_loop_polynomial(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=()):
+    """Denominator of the closed-loop transimpedance, Zt(s) = dc_gain N_A(s) / Den(s).
 
     All parameters broadcast against each other (one element per design), as in
     :func:`photorx.circuit.tia.transimpedance`.
@@ -156,18 +210,21 @@ def closed_loop_polynomial(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
         Photodiode series resistance [ohm], >= 0.
     cin : array_like
         Amplifier input capacitance [F], >= 0.
+    zeros : sequence of array_like, optional
+        Real amplifier zeros [Hz], > 0, one entry per zero; ``inf`` marks an absent zero.
+        ``()`` (default) for none; see :func:`closed_loop_numerator`.
 
     Returns
     -------
     numpy.ndarray
         Coefficients of Den(s), s in [rad/s], ascending powers on the last axis, shape
-        ``broadcast_shape + (4 + len(poles),)``; units [S s^k].
+        ``broadcast_shape + (max(4 + len(poles), 3 + len(zeros)),)``; units [S s^k].
 
     Notes
     -----
-    Den(s) = Q2(s) D_A(s) + A0 Yf(s) P(s) with the symbols of the module notes.
+    Den(s) = Q2(s) D_A(s) + A0 N_A(s) Yf(s) P(s) with the symbols of the module notes.
     """
-    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=zeros)
     d = _den_parts(p, pk)
     den = _denominator(p, d)
     return den.reshape(shape + (den.shape[-1],))
@@ -207,7 +264,7 @@ def _normalised_poles(den):
     return x, w0, d
 
 
-def closed_loop_poles(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+def closed_loop_poles(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=()):
     """Closed-loop poles of the transimpedance [rad/s], complex.
 
     The roots of :func:`closed_loop_polynomial`, from batched companion-matrix eigenvalues
@@ -234,14 +291,17 @@ def closed_loop_poles(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
         Photodiode series resistance [ohm], >= 0.
     cin : array_like
         Amplifier input capacitance [F], >= 0.
+    zeros : sequence of array_like, optional
+        Real amplifier zeros [Hz], > 0, one entry per zero; ``inf`` marks an absent zero.
+        ``()`` (default) for none; see :func:`closed_loop_numerator`.
 
     Returns
     -------
     numpy.ndarray
-        Complex poles [rad/s], shape ``broadcast_shape + (3 + len(poles),)``; designs of
+        Complex poles [rad/s], shape ``broadcast_shape + (degree of Den,)``; designs of
         lower degree (Rs = 0, absent poles) are padded with NaN.
     """
-    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=zeros)
     d = _den_parts(p, pk)
     den = _denominator(p, d)
     x, w0, _ = _normalised_poles(den)

@@ -14,6 +14,9 @@ path            nodal form (:mod:`photorx.circuit.tia`)      ratio of polynomial
 ``voltage``     A / (1 + T)                                 A0 Q2 / Den
 ==============  =========================================  ===============================
 
+With amplifier zeros, A = A0 N_A / D_A with N_A(s) = prod(1 + s/w_z), every numerator
+carries N_A(s) (and Den = Q2 D_A + A0 N_A N_fp).
+
 On s = jw a real polynomial splits into its even and odd parts, c0 - c2 w^2 + ... and
 (c1 - c3 w^2 + ...) w, so |N(jw)|^2 = even^2 + odd^2 takes a few real multiply-adds per
 frequency instead of the nodal form's complex divisions. The nodal form stays the reference
@@ -33,7 +36,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .loop_poles import _den_parts, _denominator, _prepare
+from .loop_poles import _den_parts, _denominator, _polymul, _prepare
 
 __all__ = ["LoopPolynomials", "loop_polynomials"]
 
@@ -104,16 +107,21 @@ class LoopPolynomials:
             Frequencies [Hz], >= 0: 1-D (M,) shared by every design, or ``shape + (M,)``.
         """
         w = self._axis(f)
-        even, odd = _even_odd(self.den, w * w)
+        w2 = w * w
+        even, odd = _even_odd(self.den, w2)
         odd *= w
         # A0 / (e + j o) = A0 (e - j o) / (e^2 + o^2): real arithmetic, no complex division
         scale = even * even
         scale += odd * odd
-        np.divide(self.numerators["junction"][:, :1], scale, out=scale)
+        num = self.numerators["junction"]
+        np.divide(num[:, :1], scale, out=scale)
         out = np.empty(even.shape, dtype=complex)
         np.multiply(even, scale, out=out.real)
         np.multiply(odd, scale, out=out.imag)
         np.negative(out.imag, out=out.imag)
+        if num.shape[-1] > 1:  # amplifier zeros: times N_A(jw) / N_A(0)
+            ne, no = _even_odd(num / num[:, :1], w2)
+            out *= ne + 1j * (no * w)
         return self._out(out)
 
     def squared_magnitudes(self, f, paths=PATHS):
@@ -147,7 +155,7 @@ class LoopPolynomials:
         return out
 
 
-def loop_polynomials(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, *, shape=()):
+def loop_polynomials(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=(), *, shape=()):
     """The loop's transfer functions as polynomial ratios, for many designs at once.
 
     Parameters
@@ -170,6 +178,9 @@ def loop_polynomials(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, *, shape=())
         Photodiode series resistance [ohm], >= 0.
     cin : array_like
         Amplifier input capacitance [F], >= 0.
+    zeros : sequence of array_like, optional
+        Real amplifier zeros [Hz], > 0, one entry per zero; ``inf`` marks an absent zero.
+        Every path's numerator carries the amplifier's N_A(s) = prod(1 + s/w_z).
     shape : tuple of int, optional
         A design shape the result must cover besides the arguments' own (the designs of
         a sweep that varies something outside the circuit); default ().
@@ -191,7 +202,7 @@ def loop_polynomials(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, *, shape=())
     if shape:  # widen one argument: _prepare broadcasts the rest against it
         gbw = np.broadcast_to(np.asarray(gbw, dtype=float),
                               np.broadcast_shapes(np.shape(gbw), tuple(shape)))
-    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=zeros)
     parts = _den_parts(p, pk)
     den = _denominator(p, parts)
     a0 = p["dc_gain"][:, None]
@@ -202,4 +213,6 @@ def loop_polynomials(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, *, shape=())
         "series": a0 * np.stack([parts["gsh"], p["cd"]], -1),
         "voltage": a0 * parts["q2"],
     }
+    if "na" in parts:  # A = A0 N_A / D_A: every path carries N_A(s)
+        numerators = {k: _polymul(parts["na"], v) for k, v in numerators.items()}
     return LoopPolynomials(shape=tuple(shape), den=den, numerators=numerators)

@@ -17,7 +17,11 @@ the closed-loop transimpedance is all-pole::
 
     Zt(s) = A0 / Den(s),   Den(s) = Q2(s) D_A(s) + A0 Yf(s) P(s)
 
-and Den(s) = 0 is also 1 + T(s) = 0 with the loop gain T = A0 Yf P / (D_A Q2). Hence
+and Den(s) = 0 is also 1 + T(s) = 0 with the loop gain T = A0 Yf P / (D_A Q2). An amplifier
+with real zeros, A = A0 N_A(s)/D_A(s), N_A = prod(1 + s/w_z), gives
+Zt = A0 N_A / Den with Den = Q2 D_A + A0 N_A Yf P: the amplifier's zeros are the only zeros
+of Zt, and every |Den|^2 below reads |Den|^2/|N_A|^2, each residue gains a factor N_A(p_i)
+and the group delay loses Re(N_A'/N_A). Hence
 
 * poles: eigenvalues of the companion matrix of Den (batched ``numpy.linalg.eigvals``; the
   polynomial is scaled to s/w0 with w0 = sqrt(c0/c2) first); ``stable`` = every pole has
@@ -88,7 +92,7 @@ from .._validate import as_float_array
 from ..errors import DesignError
 from .loop_margins import _loop_corners, _margins, loop_margins
 from .loop_poles import (_TWO_PI, _bisect_rows, _den_parts, _denominator, _deriv,
-                         _normalised_poles, _on_axis, _prepare, closed_loop_poles,
+                         _normalised_poles, _numerator, _on_axis, _prepare, closed_loop_poles,
                          closed_loop_polynomial)
 from .step_figures import _step_figures
 
@@ -154,8 +158,11 @@ def _dominant_pair(x):
     return q, damping
 
 
-def _frequency_figures(x, d):
-    """Bandwidth, peaking (linear ratio) and group-delay variation, in units of w0."""
+def _frequency_figures(x, d, nn=None):
+    """Bandwidth, peaking (linear ratio) and group-delay variation, in units of w0.
+
+    ``nn`` is the normalised numerator N_A(s w0) of the amplifier's zeros (None: all-pole).
+    """
     n_rows = x.shape[0]
     mag = np.abs(x)
     lo = np.nanmin(mag, -1) * 0.01
@@ -166,15 +173,31 @@ def _frequency_figures(x, d):
     extra = np.where(np.isnan(extra) | (extra < lo[:, None]), lo[:, None], extra)
     w = np.sort(np.concatenate([w, extra], -1), -1)
     dd = _deriv(d)
-    g = np.abs(_on_axis(d, w)) ** 2  # |Den(jw)/Den(0)|^2 = 1/|H|^2
+    if nn is None:
+        def inv_gain(r, ww):  # |Den(jw)/Den(0)|^2 = 1/|H|^2
+            return np.abs(_on_axis(d[r], ww)) ** 2
+
+        def inv_slope(r, ww):  # the sign of d(1/|H|^2)/dw
+            return (np.conj(_on_axis(d[r], ww)) * 1j * _on_axis(dd[r], ww)).real
+    else:
+        nd = _deriv(nn) if nn.shape[-1] > 1 else np.zeros_like(nn)
+
+        def inv_gain(r, ww):  # |Den(jw)|^2 / |N_A(jw)|^2, N_A(0) = Den(0) = 1
+            return np.abs(_on_axis(d[r], ww)) ** 2 / np.abs(_on_axis(nn[r], ww)) ** 2
+
+        def inv_slope(r, ww):  # |N|^2 d|D|^2/dw - |D|^2 d|N|^2/dw (halved), same sign
+            dv, nv = _on_axis(d[r], ww), _on_axis(nn[r], ww)
+            return ((np.conj(dv) * 1j * _on_axis(dd[r], ww)).real * np.abs(nv) ** 2
+                    - (np.conj(nv) * 1j * _on_axis(nd[r], ww)).real * np.abs(dv) ** 2)
+    rows = np.arange(n_rows)
+    g = inv_gain(rows, w)
     # first grid point below -3 dB (the grid starts at 1 % of the slowest pole, well inside
     # the pass band); the band ends there even if a resonance further up rises above -3 dB
     # again: a response that is down 3 dB over a span is not "flat" across it
     first = np.maximum(np.argmax(g > 2.0, -1), 1)
-    rows = np.arange(n_rows)
 
     def f_bw(xx, r):
-        return 2.0 - np.abs(_on_axis(d[r], xx[:, None])[:, 0]) ** 2
+        return 2.0 - inv_gain(r, xx[:, None])[:, 0]
 
     bw = _bisect_rows(f_bw, w[rows, first - 1], w[rows, first], rows)
     # peaking: minimum of |Den|^2, refined where d|Den|^2/dw changes sign around the grid minimum
@@ -183,24 +206,25 @@ def _frequency_figures(x, d):
     kl, kh = np.maximum(k - 1, 0), np.minimum(k + 1, w.shape[1] - 1)
 
     def slope(xx, r):
-        ww = xx[:, None]
-        return (np.conj(_on_axis(d[r], ww)) * 1j * _on_axis(dd[r], ww)).real[:, 0]
+        return inv_slope(r, xx[:, None])[:, 0]
 
     ok = (slope(w[rows, kl], rows) < 0) & (slope(w[rows, kh], rows) > 0)
     if np.any(ok):
         r = rows[ok]
         xm = _bisect_rows(slope, w[r, kl[ok]], w[r, kh[ok]], r)
-        gm = np.abs(_on_axis(d[r], xm[:, None])[:, 0]) ** 2
+        gm = inv_gain(r, xm[:, None])[:, 0]
         peak[r] = np.maximum(peak[r], 1.0 / gm)
     peak = np.maximum(peak, 1.0)
     wg = bw[:, None] * np.linspace(0.0, 1.0, 65)
     tau = (_on_axis(dd, wg) / _on_axis(d, wg)).real
+    if nn is not None:  # arg H = arg N_A - arg Den: each zero takes its delay off
+        tau = tau - (_on_axis(nd, wg) / _on_axis(nn, wg)).real
     gdv = tau.max(-1) - tau.min(-1)
     return bw, peak, gdv
 
 
 def tia_figures(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.inf, *,
-                settling_tolerance=0.01):
+                zeros=(), settling_tolerance=0.01):
     """Every figure of merit of the transimpedance loop for many designs at once.
 
     Parameters
@@ -227,6 +251,9 @@ def tia_figures(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.i
     output_swing : array_like, optional
         Largest output magnitude [V], > 0; ``inf`` (default) means no limit and gives an
         infinite maximum photocurrent.
+    zeros : sequence of array_like, optional
+        Real amplifier zeros [Hz], > 0, one entry per zero; ``inf`` marks an absent zero.
+        ``()`` (default) for none; they become the zeros of Zt (module notes).
     settling_tolerance : float, optional
         Settling band as a fraction of the final value, in (0, 0.5); default 0.01 (1 %).
 
@@ -254,13 +281,14 @@ def tia_figures(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.i
     tol = float(as_float_array("settling_tolerance", settling_tolerance))
     if not 0.0 < tol < 0.5:
         raise DesignError.out_of_range("settling_tolerance", tol, "", "(0, 0.5)")
-    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing)
+    shape, p, pk = _prepare(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing, zeros)
     n = p["gbw"].size
     parts = _den_parts(p, pk)
     a0 = p["dc_gain"]
     den = _denominator(p, parts)
     zt0 = a0 / den[:, 0]
     x, w0, d = _normalised_poles(den)
+    nn = _numerator(p, parts, w0)
     stable = np.all(np.isnan(x) | (x.real < 0), -1)
     pm, gm, fc, fpc = _margins(*_loop_corners(p, pk, parts))
 
@@ -271,12 +299,13 @@ def tia_figures(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, output_swing=np.i
     s = np.nonzero(stable)[0]
     if s.size:
         q, damping = _dominant_pair(x[s])
-        bw, peak, gdv = _frequency_figures(x[s], d[s])
+        ns = None if nn is None else nn[s]
+        bw, peak, gdv = _frequency_figures(x[s], d[s], ns)
         out["q"][s], out["damping"][s] = q, damping
         out["bandwidth"][s] = bw * w0[s] / _TWO_PI
         out["peaking_db"][s] = 10.0 * np.log10(peak)  # peak is |H|^2
         out["group_delay_variation"][s] = gdv / w0[s]
-        rise, over, settle = _step_figures(x[s], d[s], tol)
+        rise, over, settle = _step_figures(x[s], d[s], tol, ns)
         out["rise_time"][s] = rise / w0[s]
         out["overshoot"][s] = over
         out["settling_time"][s] = settle / w0[s]

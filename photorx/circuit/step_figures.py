@@ -1,7 +1,7 @@
 """Step-response figures (rise time, overshoot, settling time) of the closed loop, vectorised.
 
-The step response of the all-pole loop is exact, y(t)/y(inf) = 1 + sum_i c_i exp(p_i t)
-with residues c_i = Den(0) / (p_i Den'(p_i)); it is sampled on a uniform grid long enough
+The step response of the loop is exact, y(t)/y(inf) = 1 + sum_i c_i exp(p_i t)
+with residues c_i = Den(0) N_A(p_i) / (p_i Den'(p_i)) (N_A = 1 without amplifier zeros); it is sampled on a uniform grid long enough
 for every term to decay below the settling band, and crossings and peaks are refined by
 safeguarded Newton steps on the exact expression. See the notes of
 :mod:`photorx.circuit.metrics` for the sample-count rules.
@@ -51,8 +51,12 @@ def _newton_in_bracket(fun, lo, hi, t, n_iter=8, rtol=1e-14):
     return t
 
 
-def _step_figures(x, d, tol):
-    """Rise time, overshoot and settling time in units of 1/w0 (stable rows only)."""
+def _step_figures(x, d, tol, nn=None):
+    """Rise time, overshoot and settling time in units of 1/w0 (stable rows only).
+
+    ``nn``: normalised numerator N_A(s w0) of the amplifier's zeros (None: all-pole); each
+    residue is then N_A(p_i) / (p_i Den'(p_i)).
+    """
     n_rows = x.shape[0]
     valid = ~np.isnan(x)
     xv = np.where(valid, x, -1.0)
@@ -70,6 +74,8 @@ def _step_figures(x, d, tol):
             xv[:, j] = np.where(close, mid - delta, xv[:, j])
     with np.errstate(invalid="ignore", divide="ignore"):
         c = np.where(valid, 1.0 / (xv * _horner(_deriv(d), xv)), 0.0)
+        if nn is not None:
+            c = c * _horner(nn, xv)
     n_eff = valid.sum(-1)[:, None]
     with np.errstate(divide="ignore", invalid="ignore"):
         t_term = np.log(np.maximum(n_eff * np.abs(c) / tol, 1.0)) / -xv.real

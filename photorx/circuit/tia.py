@@ -140,7 +140,7 @@ def noise_gain(f, rf, cf, cd, rsh, rs, cin):
     return 1.0 + input_admittance(f, cd, rsh, rs, cin) / feedback_admittance(f, rf, cf)
 
 
-def loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+def loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=()):
     """Loop gain T = A(jf) beta(jf), complex.
 
     Parameters
@@ -155,8 +155,11 @@ def loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
         Photodiode capacitance [F], shunt [ohm] and series resistance [ohm].
     cin : array_like
         Amplifier input capacitance [F].
+    zeros : sequence of array_like, optional
+        Amplifier zeros [Hz], see :func:`photorx.circuit.amplifier.open_loop_gain`.
     """
-    return open_loop_gain(f, gbw, dc_gain, poles) * feedback_factor(f, rf, cf, cd, rsh, rs, cin)
+    return (open_loop_gain(f, gbw, dc_gain, poles, zeros)
+            * feedback_factor(f, rf, cf, cd, rsh, rs, cin))
 
 
 def closed_loop_factor(t):
@@ -170,7 +173,7 @@ def closed_loop_factor(t):
     return t / (1.0 + t)
 
 
-def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
+def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=()):
     """Closed-loop transimpedance v_out / i_ph [ohm], complex; +Rf at DC for an ideal amplifier.
 
     Zt = Zf * Zd/(Zd + Rs) * T/(1 + T); see the module notes for the derivation.
@@ -198,6 +201,9 @@ def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
         Photodiode series resistance [ohm], >= 0.
     cin : array_like
         Amplifier input capacitance (common-mode plus differential) [F], >= 0.
+    zeros : sequence of array_like, optional
+        Real zeros of the open-loop gain [Hz], > 0; ``inf`` marks an absent zero.
+        See :func:`photorx.circuit.amplifier.open_loop_gain`.
 
     References
     ----------
@@ -208,7 +214,7 @@ def transimpedance(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin):
     zf = 1.0 / feedback_admittance(f, rf, cf)
     yd = 1.0 / np.asarray(rsh, dtype=float) + s * np.asarray(cd, dtype=float)
     divider = 1.0 / (1.0 + np.asarray(rs, dtype=float) * yd)  # Zd/(Zd + Rs), finite at f = 0
-    t = loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin)
+    t = loop_gain(f, gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros)
     return zf * divider * closed_loop_factor(t)
 
 
@@ -241,9 +247,12 @@ class Tia:
     # -- parameter routing ---------------------------------------------------------------
     def _args(self, net):
         a = self.amp
-        return dict(gbw=a.gbw, dc_gain=a.dc_gain, poles=a.poles, rf=self.rf, cf=self.cf,
+        args = dict(gbw=a.gbw, dc_gain=a.dc_gain, poles=a.poles, rf=self.rf, cf=self.cf,
                     cd=net.capacitance, rsh=net.shunt_resistance, rs=net.series_resistance,
                     cin=a.input_capacitance)
+        if a.zeros:  # only when present: an all-pole amplifier keeps its keywords unchanged
+            args["zeros"] = a.zeros
+        return args
 
     def _passive(self, net):
         a = self._args(net)

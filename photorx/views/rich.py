@@ -247,6 +247,8 @@ def closed_form(obj):
             rhs = a0 / (1 + s * a0 / (2 * sp.pi * num(obj.gbw)))
             for fp in obj.poles or ():
                 rhs = rhs / (1 + s / (2 * sp.pi * num(fp)))
+            for fz in getattr(obj, "zeros", ()) or ():
+                rhs = rhs * (1 + s / (2 * sp.pi * num(fz)))
             return sp.Eq(sp.Function("A")(s), rhs, evaluate=False)
         if kind == "Tia":
             rhs = num(obj.rf) / (1 + s * num(obj.rf) * num(obj.cf))
@@ -317,10 +319,14 @@ def closed_form_latex(obj) -> str | None:
     elif kind == "OpAmp":
         extra = "".join(rf"\left(1 + \frac{{s}}{{2\pi f_{{{i + 1}}}}}\right)"
                         for i in range(len(obj.poles or ())))
-        body = (rf"A(s) = \frac{{A_0}}{{\left(1 + \frac{{s A_0}}{{2\pi\,\mathrm{{GBW}}}}\right)"
-                rf"{extra}}}" + _where(
+        zeros = getattr(obj, "zeros", ()) or ()
+        lead = "".join(rf"\left(1 + \frac{{s}}{{2\pi f_{{z{i + 1}}}}}\right)"
+                       for i in range(len(zeros)))
+        body = (rf"A(s) = \frac{{A_0{lead}}}{{\left(1 + \frac{{s A_0}}{{2\pi\,\mathrm{{GBW}}}}"
+                rf"\right){extra}}}" + _where(
                     [("A_0", f"{float(obj.dc_gain):.4g}"), (r"\mathrm{GBW}", _tex(obj.gbw, "Hz"))]
-                    + [(f"f_{{{i + 1}}}", _tex(fp, "Hz")) for i, fp in enumerate(obj.poles or ())]))
+                    + [(f"f_{{{i + 1}}}", _tex(fp, "Hz")) for i, fp in enumerate(obj.poles or ())]
+                    + [(f"f_{{z{i + 1}}}", _tex(fz, "Hz")) for i, fz in enumerate(zeros)]))
     else:  # Tia
         body = (r"|Z_t(s)| = \left|\frac{R_f}{1 + s R_f C_f}\right|"
                 + _where([("R_f", _tex(obj.rf, "ohm")), ("C_f", _tex(obj.cf, "F"))])

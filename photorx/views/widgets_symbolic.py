@@ -162,8 +162,8 @@ def _loop(rx, poles=None, ideal=False, white=False):
 
     tia = rx.tia
     amp = tia.amp
-    if poles is not None:
-        amp = dataclasses.replace(amp, poles=poles)
+    if poles is not None:  # the symbolic models have poles only: the zeros go too
+        amp = dataclasses.replace(amp, poles=poles, zeros=())
     if white:
         amp = dataclasses.replace(amp, voltage_noise_corner=0.0, current_noise_corner=0.0)
     tia = dataclasses.replace(tia, amp=amp)

@@ -54,7 +54,8 @@ _designs = st.fixed_dictionaries({
     "pole": st.one_of(st.just(np.inf), st.floats(1e6, 1e11)),
     "rf": st.floats(1e2, 1e7), "cf": st.one_of(st.just(0.0), st.floats(1e-15, 1e-11)),
     "cd": st.floats(1e-13, 1e-10), "rsh": st.one_of(st.just(np.inf), st.floats(1e4, 1e11)),
-    "rs": st.one_of(st.just(0.0), st.floats(1.0, 1e3)), "cin": st.floats(0.0, 1e-11)})
+    "rs": st.one_of(st.just(0.0), st.floats(1.0, 1e3)), "cin": st.floats(0.0, 1e-11),
+    "zero": st.one_of(st.just(None), st.floats(1e5, 1e10))})
 
 
 @settings(max_examples=60, deadline=None)
@@ -65,6 +66,8 @@ def test_every_path_matches_the_nodal_form(d):
     # the polynomial ratios must equal it to rounding (the algebra of the module notes).
     p = dict(gbw=d["gbw"], dc_gain=d["dc_gain"], poles=(d["pole"],), rf=d["rf"], cf=d["cf"],
              cd=d["cd"], rsh=d["rsh"], rs=d["rs"], cin=d["cin"])
+    if d["zero"] is not None:  # a real amplifier zero: every path carries N_A(s)
+        p["zeros"] = (d["zero"],)
     nodal = noise_transfer_functions(F, **p)
     lp = loop_polynomials(**p)
     mags = lp.squared_magnitudes(F)

@@ -37,6 +37,8 @@ def loop_tf(p):
     amp = control.tf([a0], [1.0]) / (1 + s * a0 / (2 * np.pi * p["gbw"]) * SCALE)
     for fp in p["poles"]:
         amp = amp / (1 + s * SCALE / (2 * np.pi * fp))
+    for fz in p.get("zeros", ()):
+        amp = amp * (1 + s * SCALE / (2 * np.pi * fz))
     cs = lambda c: c * SCALE  # noqa: E731 - capacitance in the scaled model
     yf = 1 / p["rf"] + s * cs(p["cf"])
     gsh = 0.0 if np.isinf(p["rsh"]) else 1 / p["rsh"]

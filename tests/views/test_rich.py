@@ -129,6 +129,11 @@ def test_circuit_closed_forms_match_the_engine(rx):
     f = np.geomspace(1e3, 1e11, 9)
     np.testing.assert_allclose(_evaluate(amp, 2j * np.pi * f),
                                open_loop_gain(f, amp.gbw, amp.dc_gain, amp.poles), rtol=2e-3)
+    # with a zero (4-digit display rounding, as above)
+    lead = prx.OpAmp(gbw=2e8, dc_gain=1e5, poles=(4e8,), zeros=(1.5e8,))
+    np.testing.assert_allclose(_evaluate(lead, 2j * np.pi * f),
+                               open_loop_gain(f, 2e8, 1e5, (4e8,), (1.5e8,)), rtol=2e-3)
+    assert r"f_{z1} = 150\ \mathrm{MHz}" in lead._repr_latex_()
     # a near-ideal amplifier and a tiny diode: the stage approaches Rf / (1 + s Rf Cf)
     ideal = prx.Tia(prx.OpAmp(gbw=1e15, dc_gain=1e9), rf=1e4, cf=1e-12)
     net = prx.EquivalentCircuit(capacitance=1e-15, shunt_resistance=1e15)
