@@ -334,6 +334,35 @@ rx = dataclasses.replace(prx.demo_receiver(), photodiode=diode, wavelength=850e-
                          reverse_bias=10.0)
 prx.sweep(rx, reverse_bias=[2.0, 5.0, 10.0, 15.0])[
     ["reverse_bias", "capacitance", "dark_current", "bandwidth", "input_noise_rms"]]"""),
+        ("markdown", """## The amplifier from its data sheet
+
+An amplifier's data sheet gives its noise densities and its open-loop gain as plotted
+curves. Read off as points, the noise curve is interpolated log-log and integrated as it
+stands (the 1/f region below the first point continues its slope, the white level above
+the last holds); the gain points (magnitude and phase) are fitted with real poles and
+zeros, and the rest of photorx works on the fitted model, with the fit's worst misfit
+reported. The points below are invented for this notebook."""),
+        ("code", """import numpy as np
+
+noise_points = ([10.0, 100.0, 1e3, 1e4, 1e5, 1e7],            # Hz
+                [60e-9, 21e-9, 8e-9, 4.2e-9, 3.2e-9, 3.0e-9])  # V/rtHz
+f_pts = np.logspace(3, 10.5, 12)                              # Hz
+reference = prx.OpAmp(gbw=20e9, dc_gain=3000.0, poles=(60e9,))  # stands in for the plot
+a = reference.gain(f_pts)
+gain_fit = prx.fit_open_loop_gain(f_pts, 20 * np.log10(np.abs(a)),
+                                  np.degrees(np.angle(a)), poles=1, zeros=0)
+amp = dataclasses.replace(gain_fit.amplifier(input_capacitance=0.3e-12, output_swing=1.0,
+                                             current_noise=2e-12),
+                          voltage_noise_curve=noise_points)
+print(f"fit: A0 = {gain_fit.dc_gain:.4g}, GBW = {gain_fit.gbw:.4g} Hz, "
+      f"poles = {gain_fit.poles}, worst misfit {gain_fit.worst_magnitude_error:.2g} dB")
+rx_sheet = dataclasses.replace(rx, tia=dataclasses.replace(rx.tia, amp=amp))
+import pandas as pd
+
+figures = ("bandwidth", "phase_margin", "input_noise_rms", "sensitivity_dbm")
+pd.DataFrame({name: {fig: float(getattr(r, fig)) for fig in figures}
+              for name, r in (("modelled amplifier", rx.evaluate()),
+                              ("data-sheet amplifier", rx_sheet.evaluate()))})"""),
     ],
 }
 
