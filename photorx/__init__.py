@@ -45,7 +45,7 @@ _EXPORTS = {
     "TiaMetrics": "photorx.circuit.metrics",
     "design_feedback_capacitor": "photorx.circuit.feedback_design",
     "PostFilter": "photorx.circuit.filters",
-    "NoiseSpectrum": "photorx.analysis.noise_spectrum",
+    "NoiseSpectrum": "photorx.circuit.noise_spectrum",
     "Receiver": "photorx.analysis.receiver",
     "ReceiverResult": "photorx.analysis.receiver",
     "Budget": "photorx.views.tables",

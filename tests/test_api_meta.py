@@ -172,7 +172,7 @@ def _call_with_parameters(tmp_path, extra):
 
 
 def _call_integrated_output_noise(tmp_path, extra):
-    from photorx.analysis.noise import integrated_output_noise
+    from photorx.circuit.noise import integrated_output_noise
 
     # an invented but complete design (every required keyword of output_noise_psd)
     design = {"gbw": 100e6, "dc_gain": 3e4, "rf": 47e3, "cf": 0.2e-12, "cd": 2e-12,
@@ -194,7 +194,7 @@ def _call_panel_set(tmp_path, extra):
 
 # public callables that forward **kwargs: each is called with an unknown keyword
 _FORWARDS_KEYWORDS = {
-    "photorx.analysis.noise.integrated_output_noise": _call_integrated_output_noise,
+    "photorx.circuit.noise.integrated_output_noise": _call_integrated_output_noise,
     "photorx.analysis.parameters.with_parameters": _call_with_parameters,
     "photorx.analysis.sweep.sweep": _call_sweep,
     "photorx.circuit.tia.Tia.analyze": _call_tia_analyze,

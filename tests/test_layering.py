@@ -37,8 +37,6 @@ _PRESENTATION_HOOKS = {"plot", "_repr_html_", "__repr__", "_repr_latex_"}
 # code is mended (the test fails when one disappears, so the list cannot go stale), and no
 # entry may be added.
 _PENDING = {
-    # Tia.noise builds a NoiseSpectrum, which lives in analysis
-    ("photorx.circuit.tia", "photorx.analysis.noise_spectrum"),
     # budget() assembles the views layer's Budget table object
     ("photorx.analysis.budget", "photorx.views.tables"),
 }

@@ -6,7 +6,7 @@ import numpy as np
 
 from ..errors import DesignError
 from .checks import receiver_checks
-from .noise import SOURCE_LABELS
+from ..circuit.noise import SOURCE_LABELS
 from .result import _TABLE_ORDER, APD_FIGURES, BER_FIGURES, FIGURES
 
 __all__ = ["receiver_budget", "checks_table"]

@@ -2,7 +2,7 @@
 
 No physics lives here. The photodiode gives capacitance, responsivity, dark current and
 its intrinsic response; :func:`~photorx.circuit.metrics.tia_figures` gives the loop
-figures; :mod:`photorx.analysis.noise` integrates every noise source;
+figures; :mod:`photorx.circuit.noise` integrates every noise source;
 :mod:`photorx.analysis.sensitivity` turns noise into NEP, SNR and sensitivity. This module
 only routes arrays between them and finds -3 dB points of the composed response.
 
@@ -21,7 +21,7 @@ from ..circuit.loop_rational import loop_polynomials
 from ..circuit.metrics import tia_figures
 from ..errors import DesignError
 from ..device.optics import qe_from_responsivity
-from .noise import input_noise_psd, with_frequency_axis
+from ..circuit.noise import input_noise_psd, with_frequency_axis
 from .digital_figures import digital_figures
 from .multiplication import multiplied_currents
 from .noise_integrals import chain_noise

@@ -13,8 +13,8 @@ must be below ``rtol`` of the total, and the part left out above the top of the 
 density falling at least as 1/f^2) below ``rtol / 10``. The designs are integrated in
 blocks of a few hundred (bounded memory). A design that misses either check is integrated
 again, alone, on a grid four times denser, and if it misses again by the adaptive integrals
-of :mod:`photorx.analysis.noise` (:func:`~photorx.analysis.noise.integrated_output_noise`,
-:func:`~photorx.analysis.noise.chain_enbw`): they stay the reference.
+of :mod:`photorx.circuit.noise` (:func:`~photorx.circuit.noise.integrated_output_noise`,
+:func:`~photorx.circuit.noise.chain_enbw`): they stay the reference.
 """
 
 from __future__ import annotations
@@ -23,9 +23,9 @@ import numpy as np
 
 from ..circuit.filters import filter_response
 from ..circuit.loop_rational import loop_polynomials
-from .integration import DEFAULT_RTOL, romberg_weights
-from .noise import (_unfiltered_psd, chain_enbw, integrated_output_noise, noise_transfer_functions,
-                    with_frequency_axis)
+from ..circuit.integration import DEFAULT_RTOL, romberg_weights
+from ..circuit.noise import (_unfiltered_psd, chain_enbw, integrated_output_noise,
+                             noise_transfer_functions, with_frequency_axis)
 
 __all__ = ["chain_noise"]
 
@@ -53,19 +53,19 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4
         The grid ends at this multiple of the highest amplifier frequency (gain-bandwidth
         product, extra poles) or of the filter cutoff if that is lower.
     filter_kind, filter_order, filter_cutoff
-        Optional post filter, as in :func:`photorx.analysis.noise.output_noise_psd`.
+        Optional post filter, as in :func:`photorx.circuit.noise.output_noise_psd`.
     **params
-        Keywords of :func:`photorx.analysis.noise.output_noise_psd` shaped like the designs
+        Keywords of :func:`photorx.circuit.noise.output_noise_psd` shaped like the designs
         (no frequency axis).
 
     Returns
     -------
     mean_square : dict of numpy.ndarray
         Source key -> mean-square output noise [V^2], as
-        :func:`~photorx.analysis.noise.integrated_output_noise` (``f_lo`` to inf).
+        :func:`~photorx.circuit.noise.integrated_output_noise` (``f_lo`` to inf).
     enbw : numpy.ndarray
         integral_0^inf |Zt H|^2 df / |Zt(0)|^2 [Hz], as
-        :func:`~photorx.analysis.noise.chain_enbw`.
+        :func:`~photorx.circuit.noise.chain_enbw`.
 
     Notes
     -----

@@ -169,7 +169,7 @@ class Receiver:
                                       background_power=self.background_power)
 
     def noise(self):
-        """The :class:`~photorx.analysis.noise_spectrum.NoiseSpectrum` of this design (scalar designs)."""
+        """The :class:`~photorx.circuit.noise_spectrum.NoiseSpectrum` of this design (scalar designs)."""
         pd_ = self.photodiode_at_temperature()
         net = self._circuit_of(pd_)
         r = pd_.responsivity(self.wavelength, self.reverse_bias)

@@ -178,7 +178,7 @@ class ReceiverResult:
     def noise_table(self, f_lo: float, drop_zero: bool = True):
         """Noise budget of a single design, one row per source (pandas DataFrame).
 
-        The same table as :meth:`photorx.analysis.noise_spectrum.NoiseSpectrum.budget`
+        The same table as :meth:`photorx.circuit.noise_spectrum.NoiseSpectrum.budget`
         (spot density at ENBW/10, band ``f_lo`` to infinity), read from this result instead
         of integrating the noise again.
 
@@ -196,7 +196,7 @@ class ReceiverResult:
         ValueError
             If the result holds more than one design point or no noise breakdown.
         """
-        from .noise_spectrum import source_table
+        from ..circuit.noise_spectrum import source_table
 
         if self.size != 1 or not self.noise_mean_square:
             raise ValueError("noise_table() needs the result of a single design point")
@@ -223,7 +223,7 @@ class ReceiverResult:
     def __repr__(self) -> str:
         # text, one figure a line: description, value with engineering prefix and unit
         from ..units import figure_text
-        from .noise import SOURCE_LABELS
+        from ..circuit.noise import SOURCE_LABELS
 
         if self.size != 1:
             return f"ReceiverResult({self.size} design points; figures: {', '.join(self.values)})"

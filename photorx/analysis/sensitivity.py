@@ -2,7 +2,7 @@
 
 Every function is a pure, vectorised function of numpy arrays (all arguments broadcast).
 Currents are photocurrents at the input of the transimpedance stage, noise values are
-referred to that input (see :class:`photorx.analysis.noise_spectrum.NoiseSpectrum`).
+referred to that input (see :class:`photorx.circuit.noise_spectrum.NoiseSpectrum`).
 """
 
 from __future__ import annotations
@@ -12,6 +12,7 @@ import numpy as np
 from .._validate import require_finite, require_in_range, require_nonnegative, require_positive
 from ..constants import q as _Q
 from ..errors import DesignError
+from ..circuit.noise import noise_equivalent_power
 from ..units import watt_to_dbm
 
 __all__ = [
@@ -26,30 +27,6 @@ __all__ = [
     "required_average_power",
     "sensitivity_dbm",
 ]
-
-
-def noise_equivalent_power(input_noise_density, responsivity):
-    """Noise-equivalent power NEP = i_n / R [W/rtHz].
-
-    Parameters
-    ----------
-    input_noise_density : array_like
-        Input-referred noise current density [A/rtHz], >= 0 (spectral or at a frequency).
-    responsivity : array_like
-        Photodiode responsivity [A/W], > 0.
-
-    Notes
-    -----
-    The optical power (modulated at the frequency considered) whose photocurrent equals the
-    noise in a 1 Hz band.
-
-    References
-    ----------
-    .. [1] P. C. D. Hobbs, *Building Electro-Optical Systems*, 2nd ed., Wiley, 2009, sec. 3.4.
-    """
-    i_n = require_nonnegative("input_noise_density", input_noise_density, "A/rtHz")
-    r = require_positive("responsivity", responsivity, "A/W")
-    return i_n / r
 
 
 def minimum_detectable_power(input_noise_rms, responsivity):

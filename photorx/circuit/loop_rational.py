@@ -41,7 +41,7 @@ from .loop_poles import _den_parts, _denominator, _polymul, _prepare
 __all__ = ["LoopPolynomials", "loop_polynomials"]
 
 _TWO_PI = 2.0 * np.pi
-#: The transfer-function paths, as in :func:`photorx.analysis.noise.noise_transfer_functions`.
+#: The transfer-function paths, as in :func:`photorx.circuit.noise.noise_transfer_functions`.
 PATHS = ("summing", "junction", "series", "voltage")
 
 
@@ -194,7 +194,7 @@ def loop_polynomials(gbw, dc_gain, poles, rf, cf, cd, rsh, rs, cin, zeros=(), *,
     Notes
     -----
     Same values as :func:`photorx.circuit.tia.transimpedance` and
-    :func:`photorx.analysis.noise.noise_transfer_functions` up to rounding (the algebra
+    :func:`photorx.circuit.noise.noise_transfer_functions` up to rounding (the algebra
     is in the module notes); valid wherever those are, including unstable loops (the
     frequency response of an unstable loop is still the ratio, it just does not describe
     a steady state).

@@ -353,7 +353,7 @@ class Tia:
         return t, step_response(t, **self._args(net))
 
     def noise(self, net, temperature=300.0, **options):
-        """Noise spectrum of every source at the output; see :mod:`photorx.analysis.noise`.
+        """Noise spectrum of every source at the output; see :mod:`photorx.circuit.noise`.
 
         Parameters
         ----------
@@ -362,10 +362,10 @@ class Tia:
         temperature : float
             Temperature of the resistors [K], > 0; default 300 K.
         **options
-            Passed to :func:`photorx.analysis.noise_spectrum.tia_noise` (post filter, current
+            Passed to :func:`photorx.circuit.noise_spectrum.tia_noise` (post filter, current
             split, second-stage noise, integration band).
         """
-        from ..analysis.noise_spectrum import tia_noise
+        from .noise_spectrum import tia_noise
 
         return tia_noise(self, net, temperature=temperature, **options)
 

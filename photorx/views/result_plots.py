@@ -2,7 +2,7 @@
 
 :class:`~photorx.analysis.result.ReceiverResult`,
 :class:`~photorx.circuit.metrics.TiaMetrics` and
-:class:`~photorx.analysis.noise_spectrum.NoiseSpectrum` hand themselves to the functions
+:class:`~photorx.circuit.noise_spectrum.NoiseSpectrum` hand themselves to the functions
 here (lazily, inside their ``plot`` method). The functions draw numbers the result already
 holds or that its own stage returns (loop gain, transimpedance, noise densities); none
 computes physics. Each returns the matplotlib Figure; with ``ax=None`` a new Figure is made
@@ -82,7 +82,7 @@ def plot_receiver_result(result, ax=None):
     photorx.DesignError
         If ``result`` holds more than one design point.
     """
-    from ..analysis.noise import SOURCE_LABELS
+    from ..circuit.noise import SOURCE_LABELS
 
     _single(result, "ReceiverResult")
     fig, (a_speed, a_noise, a_power) = _new_axes(ax, 3, figsize=(9.0, 7.6), sharex=False)
@@ -177,7 +177,7 @@ def plot_noise_spectrum(spectrum, f=None, ax=None, referred="output"):
 
     Parameters
     ----------
-    spectrum : photorx.analysis.noise_spectrum.NoiseSpectrum
+    spectrum : photorx.circuit.noise_spectrum.NoiseSpectrum
         The noise of one design.
     f : array_like, optional
         Frequency grid [Hz]; default 400 log-spaced points from the spectrum's lower
@@ -191,7 +191,7 @@ def plot_noise_spectrum(spectrum, f=None, ax=None, referred="output"):
     -------
     matplotlib.figure.Figure
     """
-    from ..analysis.noise import SOURCE_LABELS
+    from ..circuit.noise import SOURCE_LABELS
 
     note = ""
     if f is None:

@@ -301,7 +301,7 @@ class NoisePanel(Panel):
         return self._layers[key]
 
     def _refresh(self):
-        from ..analysis.noise import SOURCE_LABELS
+        from ..circuit.noise import SOURCE_LABELS
 
         rx = self.design()
         ns = rx.noise()

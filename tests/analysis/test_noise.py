@@ -11,8 +11,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import constants as sc
 
-from photorx.analysis.integration import integrate_psd
-from photorx.analysis.noise import (
+from photorx.circuit.integration import integrate_psd
+from photorx.circuit.noise import (
     NoiseSpectrum,
     chain_enbw,
     input_noise_psd,

@@ -13,7 +13,7 @@ from scipy import constants as sc
 from scipy import integrate
 
 import photorx as prx
-from photorx.analysis.noise import integrated_output_noise
+from photorx.circuit.noise import integrated_output_noise
 from photorx.analysis.sweep import sweep
 from photorx.circuit.amplifier import OpAmp
 from photorx.circuit.amplifier_noise import NoiseCurve

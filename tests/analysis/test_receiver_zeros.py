@@ -15,7 +15,7 @@ import pytest
 from scipy.integrate import quad
 
 import photorx as prx
-from photorx.analysis.noise import output_noise_psd
+from photorx.circuit.noise import output_noise_psd
 
 
 @pytest.fixture(scope="module")

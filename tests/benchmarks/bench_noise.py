@@ -9,7 +9,7 @@ import time
 import numpy as np
 
 import photorx as prx
-from photorx.analysis.noise import chain_enbw, integrated_output_noise
+from photorx.circuit.noise import chain_enbw, integrated_output_noise
 from photorx.analysis.noise_integrals import chain_noise
 from photorx.analysis.sweep import sweep
 from photorx.circuit.amplifier_noise import NoiseCurve

@@ -25,7 +25,7 @@ from spice import run_ngspice  # noqa: E402  (tests/spice.py, the project's ngsp
 from tia_reference_models import SCALE, closed_tf, loop_tf  # noqa: E402
 
 from photorx.analysis.digital_response import rational_chain, rational_impulse  # noqa: E402
-from photorx.analysis.noise import input_noise_psd, output_noise_psd  # noqa: E402
+from photorx.circuit.noise import input_noise_psd, output_noise_psd  # noqa: E402
 from photorx.circuit.amplifier import OpAmp, open_loop_gain  # noqa: E402
 from photorx.circuit.loop_poles import closed_loop_poles  # noqa: E402
 from photorx.circuit.metrics import loop_margins, tia_figures  # noqa: E402

@@ -9,7 +9,7 @@ import scipy.signal
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from photorx.analysis.noise import noise_transfer_functions
+from photorx.circuit.noise import noise_transfer_functions
 from photorx.circuit.loop_rational import PATHS, loop_polynomials
 from photorx.circuit.tia import transimpedance
 from photorx.errors import DesignError
@@ -61,7 +61,7 @@ _designs = st.fixed_dictionaries({
 @settings(max_examples=60, deadline=None)
 @given(_designs)
 def test_every_path_matches_the_nodal_form(d):
-    # The nodal form (photorx.circuit.tia, photorx.analysis.noise.noise_transfer_functions)
+    # The nodal form (photorx.circuit.tia, photorx.circuit.noise.noise_transfer_functions)
     # is checked against ngspice in test_tia_ngspice.py and tests/analysis/test_noise.py;
     # the polynomial ratios must equal it to rounding (the algebra of the module notes).
     p = dict(gbw=d["gbw"], dc_gain=d["dc_gain"], poles=(d["pole"],), rf=d["rf"], cf=d["cf"],

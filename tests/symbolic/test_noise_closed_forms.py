@@ -1,6 +1,6 @@
 """Noise closed forms of photorx.symbolic against the numeric engine, scipy and the textbooks.
 
-Engine: photorx.analysis.noise (numeric PSDs and their integration, written independently)
+Engine: photorx.circuit.noise (numeric PSDs and their integration, written independently)
 and the NoiseSpectrum shell reached through photorx.Tia.noise. External: scipy.integrate.quad
 and scipy.constants.
 """
@@ -14,7 +14,7 @@ from scipy import constants as sc
 from scipy import integrate
 
 import photorx as prx
-from photorx.analysis import noise as eng
+from photorx.circuit import noise as eng
 from photorx.symbolic import nep, tia_input_noise, tia_output_noise, tia_second_order
 from photorx.symbolic.noise import C_T, Q, Z_0, e_nw, f, f_0
 

@@ -15,7 +15,7 @@ matplotlib = pytest.importorskip("matplotlib")
 matplotlib.use("Agg")
 
 import photorx as prx  # noqa: E402
-from photorx.analysis.noise import SOURCE_LABELS  # noqa: E402
+from photorx.circuit.noise import SOURCE_LABELS  # noqa: E402
 from photorx.views import plot_sweep, read_sweep_csv, write_sweep_csv  # noqa: E402
 from photorx.views.result_plots import GLANCE_SPEED  # noqa: E402
 
