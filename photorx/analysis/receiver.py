@@ -19,7 +19,6 @@ from .._validate import require_in_range, require_nonnegative, require_positive
 from ..circuit.filters import PostFilter
 from ..circuit.tia import Tia
 from ..errors import DesignError
-from .budget import receiver_budget
 from .evaluation import evaluate_receiver
 from .multiplication import multiplied_currents
 from .result import _TABLE_ORDER, BER_FIGURES, FIGURES, ReceiverResult  # noqa: F401  (re-exported)
@@ -205,6 +204,8 @@ class Receiver:
         title : str, optional
             Title of the budget; default None (or empty) gives ``"Receiver budget"``.
         """
+        from ..views.budget import receiver_budget  # the budget is a view of evaluate()
+
         return receiver_budget(self, title=title)
 
     def checks(self):

@@ -7,7 +7,7 @@ per design point) together with the noise of every source, so that the figures a
 budget's by-source table come from one noise integration.
 
 This module sits below :mod:`photorx.analysis.evaluation` (which fills a result),
-:mod:`photorx.analysis.budget` (which formats one) and :mod:`photorx.analysis.receiver`
+:mod:`photorx.views.budget` (which formats one) and :mod:`photorx.analysis.receiver`
 (the shell that calls both), so data flows one way between them.
 """
 

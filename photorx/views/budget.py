@@ -1,13 +1,20 @@
-"""Assemble a receiver's budget tables from its evaluated figures (no physics here)."""
+"""Assemble a receiver's budget tables from its evaluated figures (no physics here).
+
+A view of the one evaluation (:class:`~photorx.analysis.result.ReceiverResult`): the rows
+follow the :data:`~photorx.analysis.result.FIGURES` table, the checks come from
+:func:`~photorx.analysis.checks.receiver_checks` and the noise by source from the same
+result (the noise is integrated once). :meth:`photorx.Receiver.budget` hands its design
+here.
+"""
 
 from __future__ import annotations
 
 import numpy as np
 
 from ..errors import DesignError
-from .checks import receiver_checks
+from ..analysis.checks import receiver_checks
+from ..analysis.result import _TABLE_ORDER, APD_FIGURES, BER_FIGURES, FIGURES
 from ..circuit.noise import SOURCE_LABELS
-from .result import _TABLE_ORDER, APD_FIGURES, BER_FIGURES, FIGURES
 
 __all__ = ["receiver_budget", "checks_table"]
 
@@ -46,7 +53,7 @@ def receiver_budget(rx, title: str | None = None):
     """
     import pandas as pd
 
-    from ..views.tables import Budget
+    from .tables import Budget
 
     result = rx.evaluate()
     if result.size != 1:
