@@ -272,10 +272,12 @@ def _cmd_budget(args) -> int:
 
 def _warn_failed_checks(rx) -> None:
     """One line on stderr for every check of ``rx.checks()`` that fails."""
-    from .analysis.checks import check_warning, failed_checks
+    from .analysis.checks import check_rows, check_warning
 
-    for _, row in failed_checks(rx.checks()).iterrows():
-        print(f"photorx: warning: {check_warning(row)}", file=sys.stderr)
+    rows, _ = check_rows(rx)  # the rows of rx.checks(), without building its frame
+    for row in rows:
+        if not row["ok"]:
+            print(f"photorx: warning: {check_warning(row)}", file=sys.stderr)
 
 
 def _cmd_sweep(args) -> int:
