@@ -41,7 +41,7 @@ def _checks_table_rows(rows) -> list:
     return out
 
 
-def receiver_budget(rx, title: str | None = None):
+def receiver_budget(rx, title: str | None = None, result=None):
     """Budget of one receiver design: operating point, speed, stability, noise, sensitivity, checks.
 
     Parameters
@@ -50,6 +50,8 @@ def receiver_budget(rx, title: str | None = None):
         A design whose fields are scalars (use :func:`photorx.sweep` for many points).
     title : str, optional
         Title of the budget.
+    result : ReceiverResult, optional
+        ``rx.evaluate()``, when the caller has it already (computed when not given).
 
     Returns
     -------
@@ -58,7 +60,7 @@ def receiver_budget(rx, title: str | None = None):
     from ..views.tables import Budget, RowTable
     from .noise_spectrum import source_rows, source_table
 
-    result = rx.evaluate()
+    result = rx.evaluate() if result is None else result
     if result.size != 1:
         raise DesignError("budget() needs a single design point; use photorx.sweep() for arrays",
                           parameter="receiver")

@@ -11,7 +11,8 @@ Prints, for the machine it runs on (with its load from ``os.getloadavg``):
   ratio of that time to photorx's time per design point (if ngspice is installed);
 - the peak resident memory of a 10^5-point sweep (a fresh subprocess, ``VmHWM``), split into
   the imports, the result table and the rest (one chunk's working set);
-- the wall time of ``photorx budget`` on the embedded demo (a fresh subprocess);
+- the wall and CPU time of ``photorx budget`` on the embedded demo (a fresh subprocess),
+  with the bytecode cache as a user has it and without (``PYTHONDONTWRITEBYTECODE=1``);
 - the cost of a bias sweep from 10^3 to 10^6 points (``--max-points``), per point, in time
   and in peak memory (a fresh subprocess each), to show that both are linear.
 
@@ -23,6 +24,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import resource
 import shutil
 import subprocess
 import sys
@@ -198,14 +200,35 @@ def bench_memory(n):
     return peak
 
 
+def _run_cpu(cmd, env):
+    """(wall s, CPU s of the child: user + system) of one run of ``cmd``."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    t0 = time.perf_counter()
+    subprocess.run(cmd, capture_output=True, check=True, env=env)
+    wall = time.perf_counter() - t0
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+
+
 def bench_cli(repeat):
-    print("\n== `photorx budget` on the embedded demo (fresh process, wall time) ==")
+    print("\n== `photorx budget` on the embedded demo (fresh process; best of "
+          f"{repeat} wall and CPU) ==")
     exe = shutil.which("photorx")
     cmd = [exe, "budget"] if exe else [sys.executable, "-m", "photorx.cli", "budget"]
-    subprocess.run(cmd, capture_output=True, check=True)  # warm the file cache
-    t = _best_of(lambda: subprocess.run(cmd, capture_output=True, check=True), repeat)
-    print(f"photorx budget: {t:6.2f} s wall")
-    return t
+    with tempfile.TemporaryDirectory() as cache:
+        # as a user runs it: modules read from their bytecode cache (kept out of the source
+        # tree); and with PYTHONDONTWRITEBYTECODE=1 (every module compiled on every run)
+        envs = {"bytecode cached": {**os.environ, "PYTHONPYCACHEPREFIX": cache},
+                "no bytecode cache": {**os.environ, "PYTHONDONTWRITEBYTECODE": "1"}}
+        envs["bytecode cached"].pop("PYTHONDONTWRITEBYTECODE", None)
+        best = {}
+        for label, env in envs.items():
+            subprocess.run(cmd, capture_output=True, check=True, env=env)  # warm file cache
+            runs = [_run_cpu(cmd, env) for _ in range(repeat)]
+            best[label] = (min(w for w, _ in runs), min(c for _, c in runs))
+            print(f"photorx budget, {label:17s}: {best[label][0]:6.2f} s wall, "
+                  f"{best[label][1]:6.2f} s CPU")
+    return best["bytecode cached"][0]
 
 
 def bench_linearity(max_points):
@@ -241,7 +264,7 @@ def main(argv=None):
     if "memory" in parts:
         bench_memory(100_000 if not args.quick else 10_000)
     if "cli" in parts:
-        bench_cli(3)
+        bench_cli(5)
     if "linearity" in parts:
         bench_linearity(args.max_points if not args.quick else 10_000)
     print(f"\nend: {_load()}")
