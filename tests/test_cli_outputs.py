@@ -18,7 +18,6 @@ import sys
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 import pytest
 
 from photorx.cli import EXIT_BROKEN_PIPE, main

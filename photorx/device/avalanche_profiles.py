@@ -28,7 +28,7 @@ def _segments(lengths, n_points):
     """Grid over consecutive segments (last axis), ``n_points`` nodes per segment."""
     s = np.linspace(0.0, 1.0, n_points)
     edges = np.concatenate([np.zeros_like(lengths[0])[..., None]]
-                           + [np.asarray(l)[..., None] for l in lengths], axis=-1)
+                           + [np.asarray(seg)[..., None] for seg in lengths], axis=-1)
     edges = np.cumsum(edges, axis=-1)
     parts = [edges[..., i:i + 1] + (edges[..., i + 1:i + 2] - edges[..., i:i + 1]) * s
              for i in range(len(lengths))]

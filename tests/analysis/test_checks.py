@@ -24,7 +24,7 @@ from photorx.analysis.checks import CHECK_COLUMNS, CHECKS, failed_checks
 from photorx.designfile import dumps_design, load_design
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "circuit"))
-from tia_reference_models import SCALE, loop_tf  # noqa: E402  (python-control loop model)
+from tia_reference_models import loop_tf  # noqa: E402  (python-control loop model)
 
 
 @pytest.fixture(scope="module")
