@@ -39,7 +39,6 @@ _WRITE_SCALE = {"A/W": 0, "um^2": -12, "mm^2": -6, "cm^-3": 6, "cm^-4": 8, "nm":
 
 def _value_text(key, value) -> tuple[str, str]:
     """(number text, unit text) of one parameter value, in its design-file display unit."""
-
     if key.kind == "text" or key.unit is None or isinstance(value, str):
         return str(value), ""
     if key.kind == "table" and isinstance(value, tuple) and len(value) == 2 \
