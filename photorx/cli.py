@@ -260,22 +260,28 @@ def _cmd_budget(args) -> int:
     fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
     from .designfile import design_name
 
+    from .analysis.budget import receiver_budget
+
     rx = _load(args.design)
-    budget = rx.budget(title=design_name(args.design) or None)
+    result = rx.evaluate()  # once, for the budget and its warnings
+    budget = receiver_budget(rx, title=design_name(args.design) or None, result=result)
     text = str(budget) if fmt == "text" else {
         "csv": budget.to_csv, "md": budget.to_markdown, "latex": budget.to_latex,
         "html": budget.to_html, "json": budget.to_json}[fmt]()
     _write_or_print(text, args.output)
-    _warn_failed_checks(rx)
+    _warn_failed_checks(rx, result)
     return EXIT_OK
 
 
-def _warn_failed_checks(rx) -> None:
-    """One line on stderr for every check of ``rx.checks()`` that fails."""
-    from .analysis.checks import check_warning, failed_checks
+def _warn_failed_checks(rx, result=None) -> None:
+    """One line on stderr for every check of ``rx.checks()`` that fails (``result``: its
+    evaluation, computed when not given)."""
+    from .analysis.checks import check_rows, check_warning
 
-    for _, row in failed_checks(rx.checks()).iterrows():
-        print(f"photorx: warning: {check_warning(row)}", file=sys.stderr)
+    rows, _ = check_rows(rx, result)  # the rows of rx.checks(), without building its frame
+    for row in rows:
+        if not row["ok"]:
+            print(f"photorx: warning: {check_warning(row)}", file=sys.stderr)
 
 
 def _cmd_sweep(args) -> int:

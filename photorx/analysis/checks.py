@@ -17,8 +17,8 @@ import numpy as np
 
 from ..errors import DesignError
 
-__all__ = ["Check", "CHECKS", "CHECK_COLUMNS", "receiver_checks", "design_constraints",
-           "failed_checks", "check_warning"]
+__all__ = ["Check", "CHECKS", "CHECK_COLUMNS", "receiver_checks", "check_rows", "checks_frame",
+           "design_constraints", "failed_checks", "check_warning"]
 
 #: Columns of the checks table.
 CHECK_COLUMNS = ["check", "value", "limit", "unit", "ok"]
@@ -139,6 +139,25 @@ def receiver_checks(rx, result=None):
     A loop without a gain crossover has no phase margin to fail; an unstable loop fails
     the phase-margin, peaking and overshoot checks whatever its numbers.
     """
+    rows, names = check_rows(rx, result)
+    return checks_frame(rows, names)
+
+
+def check_rows(rx, result=None) -> tuple:
+    """The rows of :func:`receiver_checks` as plain dicts, and the checks' identifiers.
+
+    Parameters
+    ----------
+    rx : Receiver
+        A design with scalar fields.
+    result : ReceiverResult, optional
+        Its evaluation (computed when not given).
+
+    Returns
+    -------
+    tuple of (list of dict, list of str)
+        One dict per check (keys :data:`CHECK_COLUMNS`) and the names of the checks.
+    """
     result = rx.evaluate() if result is None else result
     if result.size != 1:
         raise DesignError("checks() needs a single design point; use photorx.sweep() for arrays",
@@ -167,12 +186,27 @@ def receiver_checks(rx, result=None):
             ok = _passes(check.relation, value, limit)
         rows.append(dict(check=check.words, value=value, limit=limit, unit=check.unit, ok=ok))
         names.append(check.name)
+    return rows, names
+
+
+def checks_frame(rows, names):
+    """The table of :func:`receiver_checks` from its rows and names (:func:`check_rows`).
+
+    Parameters
+    ----------
+    rows : list of dict
+        One dict per check (keys :data:`CHECK_COLUMNS`).
+    names : list of str
+        The checks' identifiers (``attrs["names"]``).
+    """
     import pandas as pd  # imported where used: the command line starts faster
 
     frame = pd.DataFrame(rows, columns=CHECK_COLUMNS)
     frame["ok"] = frame["ok"].astype(bool)
     frame.attrs["names"] = names
     return frame
+
+
 
 
 def failed_checks(frame):
@@ -191,8 +225,8 @@ def check_warning(row) -> str:
 
     Parameters
     ----------
-    row : pandas.Series
-        A row of a :func:`receiver_checks` table.
+    row : pandas.Series or dict
+        A row of a :func:`receiver_checks` table (or of :func:`check_rows`).
     """
     from ..units import display_value
 

@@ -17,10 +17,13 @@ References
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
 from ..circuit.filters import filter_response
 from ..errors import DesignError
+from .design_blocks import design_blocks, design_rows, rows_memo, rows_shape
 from .digital_eye import statistical_sensitivity, vertical_opening, worst_case_opening
 from .digital_patterns import pattern_symbols
 from .digital_response import periodic_response
@@ -135,6 +138,16 @@ def _thinned(photodiode, f, transit_bandwidth):
     return np.concatenate([exact, regular, last], axis=-1)
 
 
+def _eye_figures(response, symbols, levels, rate):
+    """Best-phase vertical opening, worst-case opening and the samples at the best phase."""
+    traces, cursors, _, _ = _eye_arrays(response, symbols, levels, 2, 1.0 / rate, _EVAL_SAMPLES)
+    opening_phase = vertical_opening(traces, levels, 2)
+    best = np.argmax(opening_phase, axis=-1)
+    samples = np.take_along_axis(traces, best[..., None, None], axis=-1)[..., 0]
+    return (np.max(opening_phase, axis=-1), np.max(worst_case_opening(cursors, 2), axis=-1),
+            samples)
+
+
 def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
     """The ISI figures of :data:`DIGITAL_FIGURES` for every design point of an evaluation.
 
@@ -168,18 +181,22 @@ def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
     pf = rx.post_filter
     transit_bw = np.asarray(sensitivity.get("transit_bandwidth", np.inf), dtype=float)
 
-    def response(f):
-        h = p.polynomials.transimpedance(f)
+    blocks = design_blocks(p.shape)  # rows of a sweep chunk at a time: memory, same values
+    photodiode_at = photodiode if len(blocks) == 1 else rows_memo(photodiode)
+
+    def response(f, rows=None):
+        loop = p.polynomials if rows is None else p.polynomials.rows(rows)
+        h = loop.transimpedance(f)
         if pf is not None:
             h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
         if photodiode is not None:
-            h = h * _thinned(photodiode, f, transit_bw)
-        return np.broadcast_to(h, p.shape + np.shape(f))
+            h = h * _thinned(lambda g: design_rows(photodiode_at(g), p.shape, rows), f, transit_bw)
+        return np.broadcast_to(h, rows_shape(p.shape, rows) + np.shape(f))
 
-    traces, cursors, _, _ = _eye_arrays(response, symbols, levels, 2, 1.0 / rate, _EVAL_SAMPLES)
-    opening_phase = vertical_opening(traces, levels, 2)
-    best = np.argmax(opening_phase, axis=-1)
-    samples = np.take_along_axis(traces, best[..., None, None], axis=-1)[..., 0]
+    parts = [_eye_figures(functools.partial(response, rows=rows), symbols, levels, rate)
+             for rows in blocks]
+    eye_max, worst_max, samples = (np.concatenate(x) if len(parts) > 1 else x[0]
+                                   for x in zip(*parts))
     stable = p.b(p.loop["stable"], bool)
     with np.errstate(invalid="ignore", over="ignore"):
         # an APD: signal M R P, its shot noise M F times, the dark current's shot-noise
@@ -195,8 +212,7 @@ def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
     def mask(x):
         return np.where(stable, np.broadcast_to(x, p.shape), np.nan)
     return {
-        "eye_opening": mask(np.max(opening_phase, axis=-1)),
-        "worst_case_eye_opening": mask(np.max(worst_case_opening(cursors, 2), axis=-1)),
+        "eye_opening": mask(eye_max), "worst_case_eye_opening": mask(worst_max),
         "sensitivity_isi": mask(sens), "sensitivity_isi_dbm": mask(sens_dbm),
         "isi_penalty_db": mask(penalty),
     }

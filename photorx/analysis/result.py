@@ -198,11 +198,15 @@ class ReceiverResult:
         """
         from ..circuit.noise_spectrum import source_table
 
+        return source_table(**self._noise_table_arguments(f_lo, drop_zero))
+
+    def _noise_table_arguments(self, f_lo=0.0, drop_zero=True) -> dict:
+        """Keywords of :func:`~photorx.analysis.noise_spectrum.source_table` for this result."""
         if self.size != 1 or not self.noise_mean_square:
             raise ValueError("noise_table() needs the result of a single design point")
-        return source_table(
-            {k: float(v) for k, v in self.noise_mean_square.items()},
-            {k: float(v) for k, v in self.noise_spot_density.items()},
+        return dict(
+            mean_square={k: float(v) for k, v in self.noise_mean_square.items()},
+            density={k: float(v) for k, v in self.noise_spot_density.items()},
             zt0=float(self.values["dc_transimpedance"]), enbw=float(self.values["noise_bandwidth"]),
             f_spot=float(self.values["noise_bandwidth"]) / 10.0, f_lo=float(f_lo), f_hi=np.inf,
             drop_zero=drop_zero)

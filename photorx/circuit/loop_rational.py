@@ -86,6 +86,18 @@ class LoopPolynomials:
     den: np.ndarray
     numerators: dict
 
+    def rows(self, rows):
+        """The designs ``rows`` (a slice of a 1-D design shape) as their own LoopPolynomials.
+
+        Parameters
+        ----------
+        rows : slice
+            Rows of the flattened designs.
+        """
+        den = self.den[rows]
+        return LoopPolynomials(shape=(den.shape[0],), den=den,
+                               numerators={k: v[rows] for k, v in self.numerators.items()})
+
     def _axis(self, f):
         f = np.asarray(f, dtype=float)
         n = self.den.shape[0]

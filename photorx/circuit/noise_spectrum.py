@@ -27,7 +27,7 @@ from .noise import (
     output_noise_psd,
 )
 
-__all__ = ["NoiseSpectrum", "source_table", "tia_noise"]
+__all__ = ["NoiseSpectrum", "source_table", "source_rows", "tia_noise"]
 
 _CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin", "zeros")
 
@@ -56,6 +56,35 @@ def source_table(mean_square, density, *, zt0, enbw, f_spot, f_lo, f_hi, drop_ze
     """
     import pandas as pd
 
+    rows, attrs = source_rows(mean_square, density, zt0=zt0, enbw=enbw, f_spot=f_spot, f_lo=f_lo,
+                              f_hi=f_hi, drop_zero=drop_zero)
+    for row in rows.values():
+        del row["dominant"]
+    df = pd.DataFrame.from_dict(rows, orient="index")
+    df.index.name = "key"
+    df["dominant"] = df["share [%]"] == df["share [%]"].max()
+    df.attrs.update(attrs)
+    return df
+
+
+def source_rows(mean_square, density, *, zt0, enbw, f_spot, f_lo, f_hi, drop_zero=True):
+    """The rows and attrs of :func:`source_table` as plain dicts (no pandas).
+
+    Parameters
+    ----------
+    mean_square, density : dict of float
+        As :func:`source_table`.
+    zt0, enbw, f_spot, f_lo, f_hi : float
+        As :func:`source_table`.
+    drop_zero : bool
+        As :func:`source_table`.
+
+    Returns
+    -------
+    tuple of (dict, dict)
+        Source key -> row (``source``, the four figures, ``dominant``), and the table's
+        attrs.
+    """
     total = sum(mean_square.values())
     rows = {}
     for name, value in mean_square.items():
@@ -68,22 +97,21 @@ def source_table(mean_square, density, *, zt0, enbw, f_spot, f_lo, f_hi, drop_ze
             "input rms [A]": math.sqrt(value) / zt0,
             "share [%]": 100.0 * value / total if total > 0 else 0.0,
         }
-    df = pd.DataFrame.from_dict(rows, orient="index")
-    df.index.name = "key"
-    df["dominant"] = df["share [%]"] == df["share [%]"].max()
-    df.attrs.update(
-        {
-            "f [Hz]": f_spot,
-            "f_lo [Hz]": f_lo,
-            "f_hi [Hz]": f_hi,
-            "output rms [V]": math.sqrt(total),
-            "input rms [A]": math.sqrt(total) / zt0,
-            "input density [A/rtHz]": float(np.sqrt(sum(v**2 for v in density.values()))),
-            "enbw [Hz]": enbw,
-            "transimpedance [ohm]": zt0,
-        }
-    )
-    return df
+    if rows:
+        top = max(row["share [%]"] for row in rows.values())
+        for row in rows.values():
+            row["dominant"] = row["share [%]"] == top
+    attrs = {
+        "f [Hz]": f_spot,
+        "f_lo [Hz]": f_lo,
+        "f_hi [Hz]": f_hi,
+        "output rms [V]": math.sqrt(total),
+        "input rms [A]": math.sqrt(total) / zt0,
+        "input density [A/rtHz]": float(np.sqrt(sum(v**2 for v in density.values()))),
+        "enbw [Hz]": enbw,
+        "transimpedance [ohm]": zt0,
+    }
+    return rows, attrs
 
 
 @dataclass(frozen=True, eq=False)

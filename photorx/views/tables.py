@@ -32,16 +32,77 @@ import json
 import math
 import re
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
-import pandas as pd
 
 from ..errors import DesignError
 from ..units import NONE, _is_number, _wavelength_text, display_value, figure_text, format_eng  # noqa: F401
 from .._files import atomic_write_text
 from .cautions import CAUTIONS, cautions_html, cautions_markdown, cautions_short, cautions_text
 
+if TYPE_CHECKING:
+    import pandas as pd
+
 __all__ = ["Budget", "EXPORT_FORMATS", "NONE", "display_value", "figure_text"]
+
+# pandas is imported where a frame is built: the text of ``photorx budget`` reads the
+# receiver's rows directly (RowTable) and the command line starts without pandas
+
+
+class RowTable:
+    """A budget table as the receiver hands it over: rows of plain values, its frame made
+    on first use.
+
+    The text rendering reads the rows; everything else (the ``tables`` of a
+    :class:`Budget`, its exports) works on the :class:`pandas.DataFrame` that ``frame``
+    builds, the same frame the receiver would have handed over.
+
+    Parameters
+    ----------
+    columns : sequence of str
+        Column names, in order.
+    rows : sequence of dict
+        One dict per row, column -> value (every column present).
+    frame : callable
+        ``frame()`` -> the table as a pandas.DataFrame (same columns, rows and attrs).
+    attrs : dict, optional
+        What the frame carries in ``attrs`` (``"units"``, ``"f [Hz]"``...).
+    """
+
+    def __init__(self, columns, rows, frame, attrs=None):
+        self.columns = list(columns)
+        self._rows = list(rows)
+        self._frame = frame
+        self.attrs = dict(attrs or {})
+
+    def __len__(self) -> int:
+        return len(self._rows)
+
+    def column(self, name) -> list:
+        """Values of column ``name`` as the frame's ``tolist()`` reads them: a missing value
+        (None) among numbers or among text is NaN there.
+
+        Parameters
+        ----------
+        name : str
+            Column name.
+        """
+        values = [row[name] for row in self._rows]
+        given = [v for v in values if v is not None]
+        if given and len(given) < len(values) and (all(_is_number(v) for v in given)
+                                                    or all(isinstance(v, str) for v in given)):
+            return [math.nan if v is None else v for v in values]
+        return values
+
+    def frame(self):
+        """The table as a pandas.DataFrame."""
+        return self._frame()
+
+
+def _column(table, name) -> list:
+    """Values of one column of a DataFrame or a RowTable."""
+    return table.column(name) if isinstance(table, RowTable) else table[name].tolist()
 
 #: export format -> file suffix
 EXPORT_FORMATS = {"csv": ".csv", "md": ".md", "latex": ".tex", "html": ".html", "json": ".json"}
@@ -94,12 +155,25 @@ class Budget:
             raise DesignError("tables must be a non-empty dict of name -> pandas.DataFrame",
                               parameter="tables")
         for name, table in tables.items():
+            if isinstance(table, RowTable):
+                continue
+            import pandas as pd
+
             if not isinstance(table, pd.DataFrame):
                 raise DesignError(f"tables[{name!r}] must be a pandas.DataFrame, got "
                                   f"{type(table).__name__}", parameter="tables")
-        self._tables = {str(k): v.copy() for k, v in tables.items()}
+        self._given = {str(k): v if isinstance(v, RowTable) else v.copy()
+                       for k, v in tables.items()}
         self.title = str(title)
         self.notes = (notes,) if isinstance(notes, str) else tuple(str(n) for n in notes)
+
+    @property
+    def _tables(self) -> dict:
+        """The tables as DataFrames (a RowTable builds its frame here, once)."""
+        for name, table in self._given.items():
+            if isinstance(table, RowTable):
+                self._given[name] = table.frame()
+        return self._given
 
     # -- access ------------------------------------------------------------------------------
     @property
@@ -110,22 +184,24 @@ class Budget:
     @property
     def names(self) -> list:
         """Table names in display order."""
-        return list(self._tables)
+        return list(self._given)
 
     def __getitem__(self, name) -> pd.DataFrame:
         return self._tables[name].copy()
 
     def __iter__(self):
-        return iter(self._tables)
+        return iter(self._given)
 
     def __len__(self) -> int:
-        return len(self._tables)
+        return len(self._given)
 
     def __repr__(self) -> str:
         return f"Budget(title={self.title!r}, tables={self.names})"
 
     def to_frame(self) -> pd.DataFrame:
         """All tables in one tidy frame with a leading ``table`` column (SI values)."""
+        import pandas as pd
+
         frames = [t.assign(table=name)[["table"] + list(t.columns)]
                   for name, t in self._tables.items()]
         return pd.concat(frames, ignore_index=True, sort=False)
@@ -145,11 +221,12 @@ class Budget:
         from tabulate import tabulate
 
         out = [self.title, "=" * len(self.title), ""]
-        for name in self._tables:
-            shown = self.display_table(name)
+        for name, table in self._given.items():  # the rows themselves: no frames needed
+            shown = _display_columns(table)
+            rows = [list(row) for row in zip(*shown.values())]
             out += [name, "-" * len(name),
-                    tabulate(shown.values.tolist(), headers=list(shown.columns),
-                             tablefmt="simple", disable_numparse=True), ""]
+                    tabulate(rows, headers=list(shown), tablefmt="simple",
+                             disable_numparse=True), ""]
         import textwrap
 
         for n in self.notes:  # wrapped for an ordinary terminal
@@ -189,6 +266,8 @@ class Budget:
         path : str, os.PathLike or None
             Destination file, written atomically; default None returns the text instead.
         """
+        import pandas as pd
+
         # figures that do not exist read "none" here too (pandas: na_values=["none"]); a
         # column that a table does not have stays empty
         frames = []
@@ -343,19 +422,19 @@ def _emit(text: str, path):
     return atomic_write_text(path, text)
 
 
-def _display_cells(table: pd.DataFrame) -> list:
+def _display_cells(table) -> list:
     """The formatted value of each row of a long-form table ("" when there is no value)."""
     n = len(table)
     if "value" not in table.columns:
         return [""] * n
-    units = table["unit"] if "unit" in table.columns else [""] * n
-    names = table["quantity"].tolist() if "quantity" in table.columns else [""] * n
+    units = _column(table, "unit") if "unit" in table.columns else [""] * n
+    names = _column(table, "quantity") if "quantity" in table.columns else [""] * n
     cells = [_wavelength_text(v) if u == "m" and "wavelength" in str(q) and _is_number(v)
              else display_value(v, u)
-             for v, u, q in zip(table["value"].tolist(), list(units), names)]
+             for v, u, q in zip(_column(table, "value"), list(units), names)]
     if "display" in table.columns:
         cells = [d if isinstance(d, str) and d else c
-                 for d, c in zip(table["display"].tolist(), cells)]
+                 for d, c in zip(_column(table, "display"), cells)]
     return cells
 
 
@@ -364,9 +443,19 @@ def _missing(value) -> bool:
     return value is None or (_is_number(value) and math.isnan(float(value)))
 
 
-def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
-    units = dict(table.attrs.get("units", {}))
+def _display_frame(table) -> pd.DataFrame:
+    import pandas as pd
+
     shown = pd.DataFrame(index=range(len(table)))
+    for name, cells in _display_columns(table).items():
+        shown[name] = cells
+    return shown
+
+
+def _display_columns(table) -> dict:
+    """Shown column name -> its cells (text), in order, of a DataFrame or a RowTable."""
+    units = dict(table.attrs.get("units", {}))
+    shown = {}
     for col in table.columns:
         if col in ("unit", "display"):
             continue
@@ -374,7 +463,7 @@ def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
             shown["value"] = _display_cells(table)
         elif col == "limit" and "unit" in table.columns:  # a limit has the row's unit
             shown["limit"] = [NONE if _missing(v) else display_value(v, u)
-                              for v, u in zip(table["limit"].tolist(), table["unit"].tolist())]
+                              for v, u in zip(_column(table, "limit"), _column(table, "unit"))]
         else:
             name, unit = str(col), units.get(col)
             match = _HEADER_UNIT.fullmatch(name)
@@ -383,7 +472,7 @@ def _display_frame(table: pd.DataFrame) -> pd.DataFrame:
             spot = table.attrs.get("f [Hz]")
             if name == "input density" and _is_number(spot):  # a spot density: say where
                 name = f"input density at {format_eng(float(spot), 'Hz')}"
-            shown[name] = [display_value(v, unit or "") for v in table[col].tolist()]
+            shown[name] = [display_value(v, unit or "") for v in _column(table, col)]
     return shown
 
 
@@ -394,7 +483,7 @@ _HEADER_UNIT = re.compile(r"(.*\S)\s*\[([^\[\]]+)\]")
 _NUMERIC_CELL = re.compile(r"^([<>] )?[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?( [^\s\d][^\s]*)?$")
 
 
-def _html_table(shown: pd.DataFrame) -> str:
+def _html_table(shown) -> str:
     # a header sits over its cells: right-aligned over a column of numbers
     numeric = [sum(bool(_NUMERIC_CELL.match(c)) for c in shown[col]) * 2 > len(shown)
                for col in shown.columns]

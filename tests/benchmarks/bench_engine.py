@@ -1,6 +1,6 @@
 """Speed and memory of the receiver engine, measured in one run (prints figures; asserts nothing).
 
-Run: python tests/benchmarks/bench_engine.py [--quick] [--max-points N]
+Run: python tests/benchmarks/bench_engine.py [--quick] [--max-points N] [--only PART ...]
 
 Prints, for the machine it runs on (with its load from ``os.getloadavg``):
 
@@ -9,10 +9,12 @@ Prints, for the machine it runs on (with its load from ``os.getloadavg``):
 - the time of one ``Receiver.evaluate()`` and one ``Receiver.budget()`` (demo design);
 - one ngspice process running AC plus .noise of the demo's equivalent circuit, and the
   ratio of that time to photorx's time per design point (if ngspice is installed);
-- the peak resident memory of a 10^5-point sweep (a fresh subprocess, ``VmHWM``);
-- the wall time of ``photorx budget`` on the embedded demo (a fresh subprocess);
-- the cost of a bias sweep from 10^3 to 10^6 points (``--max-points``), per point, to show
-  that it is linear.
+- the peak resident memory of a 10^5-point sweep (a fresh subprocess, ``VmHWM``), split into
+  the imports, the result table and the rest (one chunk's working set);
+- the wall and CPU time of ``photorx budget`` on the embedded demo (a fresh subprocess),
+  with the bytecode cache as a user has it and without (``PYTHONDONTWRITEBYTECODE=1``);
+- the cost of a bias sweep from 10^3 to 10^6 points (``--max-points``), per point, in time
+  and in peak memory (a fresh subprocess each), to show that both are linear.
 
 Each time is the best of a few repeats (``time.perf_counter``), one core (numpy's own
 threads are left as configured; the core paths are single-threaded numpy ufuncs).
@@ -22,6 +24,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import resource
 import shutil
 import subprocess
 import sys
@@ -156,49 +159,87 @@ def bench_ngspice(per_point, repeat):
 
 
 # VmHWM (the process's own resident high-water mark, reset by exec) rather than ru_maxrss,
-# which Linux carries over from the forking parent
+# which Linux carries over from the forking parent. The fresh process reports the mark after
+# import + one evaluation, after the sweep module (pandas) is imported, and after the sweep,
+# with the sweep's wall time and the size of its table: the peak is their sum plus one
+# chunk's working set.
 _MEMORY_SCRIPT = """
-import sys, numpy as np, photorx as prx
+import sys, time, numpy as np, photorx as prx
 def hwm():
     for line in open('/proc/self/status'):
         if line.startswith('VmHWM'):
             return float(line.split()[1]) / 1024
 rx = prx.demo_receiver(); rx.evaluate()
 base = hwm()
-df = prx.sweep(rx, reverse_bias=np.linspace(0.0, 20.0, int(sys.argv[1])))
-print(base, hwm(), len(df))
+import photorx.analysis.sweep
+with_pandas = hwm()
+biases = np.linspace(0.0, 20.0, int(sys.argv[1]))
+t0 = time.perf_counter()
+df = prx.sweep(rx, reverse_bias=biases)
+t = time.perf_counter() - t0
+print(base, with_pandas, hwm(), t, df.memory_usage(deep=True).sum() / 2**20, len(df))
 """
+
+
+def _sweep_in_fresh_process(n):
+    """(MB after import + evaluation, MB with pandas, peak MB, sweep s, table MB) of an n-point
+    bias sweep of the demo in a fresh process."""
+    out = subprocess.run([sys.executable, "-c", _MEMORY_SCRIPT, str(n)], capture_output=True,
+                         text=True, check=True).stdout.split()
+    assert int(out[5]) == n, out
+    return tuple(float(x) for x in out[:5])
 
 
 def bench_memory(n):
     print(f"\n== peak memory of a {n}-point sweep (fresh process, VmHWM) ==")
-    out = subprocess.run([sys.executable, "-c", _MEMORY_SCRIPT, str(n)], capture_output=True,
-                         text=True, check=True).stdout.split()
-    base, peak = float(out[0]), float(out[1])
-    print(f"after import + one evaluation: {base:7.1f} MB; peak during the sweep: {peak:7.1f} MB "
-          f"(sweep adds {peak - base:7.1f} MB)")
+    base, with_pandas, peak, t, table = _sweep_in_fresh_process(n)
+    print(f"after import + one evaluation: {base:7.1f} MB; with the sweep module (pandas): "
+          f"{with_pandas:7.1f} MB; peak during the sweep: {peak:7.1f} MB (sweep adds "
+          f"{peak - with_pandas:7.1f} MB, of which the result table {table:6.1f} MB; "
+          f"{t:.1f} s)")
     return peak
 
 
+def _run_cpu(cmd, env):
+    """(wall s, CPU s of the child: user + system) of one run of ``cmd``."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    t0 = time.perf_counter()
+    subprocess.run(cmd, capture_output=True, check=True, env=env)
+    wall = time.perf_counter() - t0
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+
+
 def bench_cli(repeat):
-    print("\n== `photorx budget` on the embedded demo (fresh process, wall time) ==")
+    print("\n== `photorx budget` on the embedded demo (fresh process; best of "
+          f"{repeat} wall and CPU) ==")
     exe = shutil.which("photorx")
     cmd = [exe, "budget"] if exe else [sys.executable, "-m", "photorx.cli", "budget"]
-    subprocess.run(cmd, capture_output=True, check=True)  # warm the file cache
-    t = _best_of(lambda: subprocess.run(cmd, capture_output=True, check=True), repeat)
-    print(f"photorx budget: {t:6.2f} s wall")
-    return t
+    with tempfile.TemporaryDirectory() as cache:
+        # as a user runs it: modules read from their bytecode cache (kept out of the source
+        # tree); and with PYTHONDONTWRITEBYTECODE=1 (every module compiled on every run)
+        envs = {"bytecode cached": {**os.environ, "PYTHONPYCACHEPREFIX": cache},
+                "no bytecode cache": {**os.environ, "PYTHONDONTWRITEBYTECODE": "1"}}
+        envs["bytecode cached"].pop("PYTHONDONTWRITEBYTECODE", None)
+        best = {}
+        for label, env in envs.items():
+            subprocess.run(cmd, capture_output=True, check=True, env=env)  # warm file cache
+            runs = [_run_cpu(cmd, env) for _ in range(repeat)]
+            best[label] = (min(w for w, _ in runs), min(c for _, c in runs))
+            print(f"photorx budget, {label:17s}: {best[label][0]:6.2f} s wall, "
+                  f"{best[label][1]:6.2f} s CPU")
+    return best["bytecode cached"][0]
 
 
 def bench_linearity(max_points):
-    print("\n== cost against the number of points (demo design, bias sweep) ==")
-    rx = prx.demo_receiver()
-    rx.evaluate()
+    print("\n== cost against the number of points (demo design, bias sweep, one fresh process "
+          "each: wall time and peak memory) ==")
     n = 1000
     while n <= max_points:
-        biases = np.linspace(0.0, 20.0, n)
-        t = _best_of(lambda: prx.sweep(rx, reverse_bias=biases), 2 if n <= 10_000 else 1)
-        print(f"{n:8d} points: {t:8.2f} s  {t / n * 1e6:7.1f} us/point  {n / t:9.0f} designs/s")
+        _, with_pandas, peak, t, table = _sweep_in_fresh_process(n)
+        print(f"{n:8d} points: {t:8.2f} s  {t / n * 1e6:7.1f} us/point  {n / t:9.0f} designs/s;"
+              f"  peak {peak:7.1f} MB, {(peak - with_pandas) * 2**20 / n:7.0f} B/point over the "
+              f"imports (table {table * 2**20 / n:4.0f} B/point)")
         n *= 10
 
 
@@ -207,16 +248,25 @@ def main(argv=None):
     parser.add_argument("--quick", action="store_true", help="fewer points and repeats")
     parser.add_argument("--max-points", type=int, default=1_000_000,
                         help="largest sweep of the linearity run (default 10^6)")
+    parser.add_argument("--only", choices=("designs", "single", "ngspice", "memory", "cli",
+                                           "linearity"), action="append",
+                        help="run only these parts (repeatable; default all)")
     args = parser.parse_args(argv)
     n, repeat = (2000, 1) if args.quick else (10_000, 3)
     print(f"photorx {prx.__version__}, numpy {np.__version__}, python {sys.version.split()[0]}, "
           f"{os.cpu_count()} cores, {_load()}")
-    per_point = bench_designs(n, repeat)
-    bench_single(5 if not args.quick else 2)
-    bench_ngspice(per_point, 3)
-    bench_memory(100_000 if not args.quick else 10_000)
-    bench_cli(3)
-    bench_linearity(args.max_points if not args.quick else 10_000)
+    parts = set(args.only or ("designs", "single", "ngspice", "memory", "cli", "linearity"))
+    per_point = bench_designs(n, repeat) if parts & {"designs", "ngspice"} else None
+    if "single" in parts:
+        bench_single(5 if not args.quick else 2)
+    if "ngspice" in parts:
+        bench_ngspice(per_point, 3)
+    if "memory" in parts:
+        bench_memory(100_000 if not args.quick else 10_000)
+    if "cli" in parts:
+        bench_cli(5)
+    if "linearity" in parts:
+        bench_linearity(args.max_points if not args.quick else 10_000)
     print(f"\nend: {_load()}")
 
 
