@@ -260,7 +260,7 @@ def _cmd_budget(args) -> int:
     fmt = "text" if fmt in (None, "text") else normalize_format(fmt)
     from .designfile import design_name
 
-    from .analysis.budget import receiver_budget
+    from .views.budget import receiver_budget
 
     rx = _load(args.design)
     result = rx.evaluate()  # once, for the budget and its warnings
