@@ -105,37 +105,71 @@ DIGITAL_FIGURES = ("eye_opening", "worst_case_eye_opening", "sensitivity_isi", "
 _EXACT_HARMONICS = 32  # the lowest harmonics (diffusion tail) always get the model itself
 
 
+_MAX_STEP = 16  # largest thinning step (harmonics per knot)
+
+
+def _thinning_steps(transit_bandwidth, df):
+    """Each design's thinning step: s f_1 <= transit_bandwidth / 10, 1 to 16 (int array)."""
+    tb = np.asarray(transit_bandwidth, dtype=float)
+    with np.errstate(invalid="ignore", over="ignore"):
+        raw = np.floor(0.1 * tb / df)
+    return np.where(np.isfinite(raw), np.clip(raw, 1, _MAX_STEP), _MAX_STEP).astype(int)
+
+
+def _knots(n, step):
+    """Harmonic indices the model is evaluated at for a step: the exact ones, then every
+    ``step``-th and the last."""
+    knots = np.arange(_EXACT_HARMONICS, n, step)
+    if knots[-1] != n - 1:
+        knots = np.append(knots, n - 1)
+    return np.concatenate([np.arange(_EXACT_HARMONICS), knots])
+
+
+def _interpolated(h, n, step):
+    """Every harmonic 0 .. n - 1 from the model ``h`` at :func:`_knots` ``(n, step)``: the
+    segments between knots are filled by slices (no gather over the harmonic axis)."""
+    exact, hk = h[..., :_EXACT_HARMONICS], h[..., _EXACT_HARMONICS:]
+    n_reg = hk.shape[-1] - 2  # regular segments of `step` harmonics, then the last (shorter)
+    frac = np.arange(step) / step
+    lo, hi = hk[..., :n_reg, None], hk[..., 1:n_reg + 1, None]
+    regular = (lo + (hi - lo) * frac).reshape(h.shape[:-1] + (n_reg * step,))
+    tail = n - 1 - (_EXACT_HARMONICS + n_reg * step)  # harmonics from the last regular knot
+    frac_t = np.arange(tail + 1) / tail
+    last = hk[..., -2:-1] + (hk[..., -1:] - hk[..., -2:-1]) * frac_t
+    return np.concatenate([exact, regular, last], axis=-1)
+
+
 def _thinned(photodiode, f, transit_bandwidth):
     """The photodiode model at every harmonic ``f`` (1-D, uniform from 0), computed at few.
 
     The lowest harmonics are evaluated exactly; above them every s-th, with s up to 16 and
-    s f_1 <= transit_bandwidth / 10, and the rest linearly interpolated (real and imaginary
-    parts): the drift response varies on the scale of the transit bandwidth and the
-    diffusion tail like a power of f, so the interpolation error is below 1e-3 of the
-    response. A sweep evaluates the costly diffusion model at a tenth of the points.
+    s f_1 <= transit_bandwidth / 10 for each design, and the rest linearly interpolated
+    (real and imaginary parts): the drift response varies on the scale of the transit
+    bandwidth and the diffusion tail like a power of f, so the interpolation error is below
+    1e-3 of the response. A sweep evaluates the costly diffusion model at a tenth of the
+    points. Each design's step is its own (designs with different steps share the union of
+    their knots), so a design's figures do not depend on the other designs of its chunk.
     """
     n = f.size
     df = f[1] - f[0] if n > 1 else 1.0
-    lowest = float(np.min(transit_bandwidth)) if np.size(transit_bandwidth) else np.inf
-    step = int(np.clip(np.floor(0.1 * lowest / df), 1, 16)) if np.isfinite(lowest) else 16
-    if step == 1 or n <= _EXACT_HARMONICS + 2:
+    steps = _thinning_steps(transit_bandwidth, df)
+    distinct = np.unique(steps)
+    if n <= _EXACT_HARMONICS + 2 or np.all(distinct == 1):
         return photodiode(f)
-    # exact below _EXACT_HARMONICS, then knots every `step` harmonics and the last one; the
-    # segments between knots are filled by slices (no gather over the harmonic axis)
-    knots = np.arange(_EXACT_HARMONICS, n, step)
-    if knots[-1] != n - 1:
-        knots = np.append(knots, n - 1)
-    idx = np.concatenate([np.arange(_EXACT_HARMONICS), knots])
+    if distinct.size == 1:
+        step = int(distinct[0])
+        return _interpolated(np.asarray(photodiode(f[_knots(n, step)])), n, step)
+    idx = np.unique(np.concatenate([_knots(n, int(s)) for s in distinct]))
     h = np.asarray(photodiode(f[idx]))
-    exact, hk = h[..., :_EXACT_HARMONICS], h[..., _EXACT_HARMONICS:]
-    n_reg = knots.size - 2  # regular segments of `step` harmonics, then the last (shorter) one
-    frac = np.arange(step) / step
-    lo, hi = hk[..., :n_reg, None], hk[..., 1:n_reg + 1, None]
-    regular = (lo + (hi - lo) * frac).reshape(h.shape[:-1] + (n_reg * step,))
-    tail = n - 1 - knots[-2]  # harmonics knots[-2] .. n - 1 (inclusive)
-    frac_t = np.arange(tail + 1) / tail
-    last = hk[..., -2:-1] + (hk[..., -1:] - hk[..., -2:-1]) * frac_t
-    return np.concatenate([exact, regular, last], axis=-1)
+    shape = np.broadcast_shapes(h.shape[:-1], steps.shape)
+    rows = np.broadcast_to(h, shape + h.shape[-1:]).reshape(-1, idx.size)
+    row_steps = np.broadcast_to(steps, shape).reshape(-1)
+    out = np.empty((rows.shape[0], n), dtype=np.result_type(h, complex))
+    for s in distinct:
+        sel = row_steps == s
+        pos = np.searchsorted(idx, _knots(n, int(s)))
+        out[sel] = _interpolated(rows[sel][:, pos], n, int(s))
+    return out.reshape(shape + (n,))
 
 
 def _eye_figures(response, symbols, levels, rate):
@@ -190,7 +224,9 @@ def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
         if pf is not None:
             h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
         if photodiode is not None:
-            h = h * _thinned(lambda g: design_rows(photodiode_at(g), p.shape, rows), f, transit_bw)
+            h = h * _thinned(lambda g: design_rows(photodiode_at(g), p.shape, rows), f,
+                             transit_bw if rows is None else
+                             np.broadcast_to(transit_bw, p.shape)[rows])
         return np.broadcast_to(h, rows_shape(p.shape, rows) + np.shape(f))
 
     parts = [_eye_figures(functools.partial(response, rows=rows), symbols, levels, rate)

@@ -465,3 +465,22 @@ def test_receiver_eye_invariants(link, cf, rate):
     assert eye.worst_case_opening <= 1.0 + 1e-9
     assert eye.worst_case_penalty_db >= -1e-9 or not np.isfinite(eye.worst_case_penalty_db)
     assert eye.height >= 0 and 0 <= eye.width <= 1.0 / rate
+
+
+def test_isi_figures_of_a_design_do_not_depend_on_its_sweep_companions(link):
+    """common practice (a sweep is many independent evaluations): each design thins the
+    photodiode harmonics with its own step, so a design's ISI figures in a sweep equal its
+    own evaluate(). At 10 Gbit/s the demo's steps differ with the bias (8, 9, 16 harmonics
+    per knot here), which once made them depend on the chunk's slowest design."""
+    from photorx.analysis.digital_figures import _thinning_steps
+
+    fast = dataclasses.replace(link, bit_rate=10e9)
+    biases = [0.05, 0.3, 5.0]
+    table = prx.sweep(fast, reverse_bias=biases)
+    steps = _thinning_steps(table["transit_bandwidth"].to_numpy(), 10e9 / 127)
+    assert len(set(steps.tolist())) > 1  # the case this test is about
+    for i, v in enumerate(biases):
+        alone = dataclasses.replace(fast, reverse_bias=v).evaluate()
+        assert table["eye_opening"][i] == pytest.approx(float(alone.eye_opening), rel=1e-12)
+        assert table["worst_case_eye_opening"][i] == pytest.approx(
+            float(alone.worst_case_eye_opening), rel=1e-12)
