@@ -33,7 +33,7 @@ from .digital_response import (_require_stable, periodic_response, rational_chai
                                rational_pulse)
 from .digital_figures import (DIGITAL_FIGURES, _eye_arrays, _thinned, check_bit_rate,
                               digital_figures)
-from .evaluation import _has_intrinsic_speed, _Point, evaluate_receiver
+from .evaluation import _evaluate, _has_intrinsic_speed, _Point
 from .sensitivity import q_from_ber
 
 __all__ = ["check_bit_rate", "chain_response", "pulse_response", "impulse_response", "receiver_eye",
@@ -223,12 +223,12 @@ def receiver_eye(rx, bit_rate=None, pattern="prbs7", modulation="nrz", samples_p
     _require_stable(poles)
     traces, cursors, shift, zt0 = _eye_arrays(response, symbols, levels, n_levels, period, int(m))
     zt0 = float(zt0)
-    r = evaluate_receiver(rx)
+    point = _Point(rx)
+    r = _evaluate(point)
     circuit_rms, enbw = float(r.circuit_noise_rms), float(r.noise_bandwidth)
     # as the sensitivities of evaluate(): signal M R P with its shot noise M F times
     # (Personick 1973), the dark current as its shot-noise equivalent I_ds + M^2 F I_dm
     # (1, 1 and |I_dark| for a PIN)
-    point = _Point(rx)
     resp_a = float(point.mult["gain"] * point.responsivity)
     noise_factor = float(point.mult["noise_factor"])
     dark = float(point.dark_shot)

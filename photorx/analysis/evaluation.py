@@ -505,7 +505,12 @@ def evaluate_receiver(rx):
     -------
     ReceiverResult
     """
-    p = _Point(rx)
+    return _evaluate(_Point(rx))
+
+
+def _evaluate(p: _Point):
+    """:func:`evaluate_receiver` from an operating point already built (the eye reuses its
+    point for the level currents)."""
     op = _operating_point(p)
     speed = _speed(p)
     noise, by_source, mean_square, spot = _noise(p)

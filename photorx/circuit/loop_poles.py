@@ -108,16 +108,31 @@ def _deriv(c):
     return c[:, 1:] * np.arange(1, c.shape[-1])
 
 
+def _even_odd(c, w2):
+    """Even and odd parts of sum_k c[:, k] (j w)^k: (c0 - c2 w^2 + ..., c1 - c3 w^2 + ...).
+
+    The odd part still needs its factor w. ``c`` is (N, m), ``w2`` = w^2 is (N, M). Horner
+    in -w^2, in place (the sweep path's grids are large: no temporaries per degree).
+    """
+    m = c.shape[-1]
+    minus_w2 = -w2
+    parts = []
+    for top in (((m - 1) // 2) * 2, ((m - 2) // 2) * 2 + 1):
+        acc = np.empty(w2.shape)
+        if top < 0:
+            acc.fill(0.0)
+        else:
+            acc[...] = c[:, top:top + 1]
+            for k in range(top - 2, -1, -2):
+                np.multiply(acc, minus_w2, out=acc)
+                np.add(acc, c[:, k:k + 1], out=acc)
+        parts.append(acc)
+    return parts[0], parts[1]
+
+
 def _on_axis(c, w):
     """sum_k c[..., k] (j w)^k for real c (N, m) and w (N, M), in real arithmetic."""
-    w2 = w * w
-    m = c.shape[-1]
-    even = np.zeros(w.shape)
-    odd = np.zeros(w.shape)
-    for k in range(((m - 1) // 2) * 2, -1, -2):   # c0 - c2 w^2 + c4 w^4 ...
-        even = c[:, k:k + 1] - even * w2
-    for k in range(((m - 2) // 2) * 2 + 1, 0, -2):  # (c1 - c3 w^2 + ...) w
-        odd = c[:, k:k + 1] - odd * w2
+    even, odd = _even_odd(c, w * w)
     return even + 1j * odd * w
 
 

@@ -36,35 +36,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .loop_poles import _den_parts, _denominator, _polymul, _prepare
+from .loop_poles import _den_parts, _denominator, _even_odd, _polymul, _prepare
 
 __all__ = ["LoopPolynomials", "loop_polynomials"]
 
 _TWO_PI = 2.0 * np.pi
 #: The transfer-function paths, as in :func:`photorx.circuit.noise.noise_transfer_functions`.
 PATHS = ("summing", "junction", "series", "voltage")
-
-
-def _even_odd(c, w2):
-    """Even and odd parts of sum_k c[:, k] (j w)^k: (c0 - c2 w^2 + ..., c1 - c3 w^2 + ...).
-
-    The odd part still needs its factor w. ``c`` is (N, m), ``w2`` = w^2 is (N, M). Horner
-    in -w^2, in place (the grids are large: no temporaries per degree).
-    """
-    m = c.shape[-1]
-    minus_w2 = -w2
-    parts = []
-    for top in (((m - 1) // 2) * 2, ((m - 2) // 2) * 2 + 1):
-        acc = np.empty(w2.shape)
-        if top < 0:
-            acc.fill(0.0)
-        else:
-            acc[...] = c[:, top:top + 1]
-            for k in range(top - 2, -1, -2):
-                np.multiply(acc, minus_w2, out=acc)
-                np.add(acc, c[:, k:k + 1], out=acc)
-        parts.append(acc)
-    return parts[0], parts[1]
 
 
 @dataclass(frozen=True)
