@@ -81,7 +81,8 @@ class RowTable:
 
     def column(self, name) -> list:
         """Values of column ``name`` as the frame's ``tolist()`` reads them: a missing value
-        (None) among numbers or among text is NaN there.
+        (None) among numbers, or among text and NaN (pandas counts NaN as missing when it
+        infers a text column), is NaN there.
 
         Parameters
         ----------
@@ -90,9 +91,11 @@ class RowTable:
         """
         values = [row[name] for row in self._rows]
         given = [v for v in values if v is not None]
-        if given and len(given) < len(values) and (all(_is_number(v) for v in given)
-                                                    or all(isinstance(v, str) for v in given)):
-            return [math.nan if v is None else v for v in values]
+        if given and len(given) < len(values):
+            present = [v for v in given if not (isinstance(v, float) and math.isnan(v))]
+            if all(_is_number(v) for v in given) or (
+                    present and all(isinstance(v, str) for v in present)):
+                return [math.nan if v is None else v for v in values]
         return values
 
     def frame(self):
