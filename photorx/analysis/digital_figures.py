@@ -217,12 +217,15 @@ def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
 
     blocks = design_blocks(p.shape)  # rows of a sweep chunk at a time: memory, same values
     photodiode_at = photodiode if len(blocks) == 1 else rows_memo(photodiode)
+    # the post filter is the same for every design: once per harmonic grid, not per block
+    filter_at = None if pf is None else rows_memo(
+        lambda f: filter_response(f, pf.kind, pf.order, pf.cutoff))
 
     def response(f, rows=None):
         loop = p.polynomials if rows is None else p.polynomials.rows(rows)
         h = loop.transimpedance(f)
         if pf is not None:
-            h = h * filter_response(f, pf.kind, pf.order, pf.cutoff)
+            h = h * filter_at(f)
         if photodiode is not None:
             h = h * _thinned(lambda g: design_rows(photodiode_at(g), p.shape, rows), f,
                              transit_bw if rows is None else

@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..circuit.filters import filter_response
+from ..circuit.filters import filter_power_response
 from ..circuit.loop_rational import loop_polynomials
 from ..circuit.integration import DEFAULT_RTOL, romberg_weights
 from ..circuit.noise import (_unfiltered_psd, chain_enbw, integrated_output_noise,
@@ -205,7 +205,7 @@ def _on_grid(f_lo, rtol, per_decade, top_factor, params, filt):
                                squared_magnitudes=loop.squared_magnitudes(f))
     if filt["filter_kind"] is not None:
         cutoff = np.asarray(filt["filter_cutoff"], dtype=float)[..., None]
-        h2 = np.abs(filter_response(f, filt["filter_kind"], filt["filter_order"], cutoff)) ** 2
+        h2 = filter_power_response(f, filt["filter_kind"], filt["filter_order"], cutoff)
     else:
         h2 = 1.0
     names = list(out)

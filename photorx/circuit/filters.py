@@ -1,7 +1,8 @@
 """Post filters after the transimpedance stage: Butterworth, Bessel and brick-wall low-pass.
 
 Functional core: :func:`filter_response` (complex response, broadcasting over frequency
-and cutoff) and :func:`filter_enbw_factor` (noise bandwidth over cutoff).
+and cutoff), :func:`filter_power_response` (its squared magnitude) and
+:func:`filter_enbw_factor` (noise bandwidth over cutoff).
 Shell: :class:`PostFilter`, a frozen dataclass that validates and routes calls.
 
 All filters have unity gain at DC. Butterworth and Bessel filters are normalised so that
@@ -25,6 +26,7 @@ __all__ = [
     "FILTER_KINDS",
     "PostFilter",
     "filter_enbw_factor",
+    "filter_power_response",
     "filter_response",
     "normalized_poles",
 ]
@@ -144,6 +146,43 @@ def filter_response(f, kind, order, cutoff):
     for p in normalized_poles(kind, order):
         h = h * (-p / (x - p))
     return h
+
+
+def filter_power_response(f, kind, order, cutoff):
+    """Squared magnitude |H(jf)|^2 of :func:`filter_response`, in real arithmetic [-].
+
+    Parameters
+    ----------
+    f, kind, order, cutoff
+        As in :func:`filter_response`.
+
+    Returns
+    -------
+    numpy.ndarray
+        |H(jf)|^2, real, 1 at DC.
+
+    Notes
+    -----
+    |H(jx)|^2 = prod_k |p_k|^2 / (Re(p_k)^2 + (x - Im(p_k))^2), x = f / cutoff, with the
+    prototype poles of :func:`normalized_poles`: the same value as ``abs(filter_response)**2``
+    without complex division (the noise integrals evaluate it on every design's grid).
+    Brick wall: 1 for f <= cutoff, 0 above.
+    """
+    f = np.asarray(f, dtype=float)
+    cutoff = np.asarray(cutoff, dtype=float)
+    kind, order = _check_kind_order(kind, order)
+    if kind == "brickwall":
+        return np.where(f <= cutoff, 1.0, 0.0)
+    x = f / cutoff
+    h2 = np.ones(x.shape)
+    d = np.empty(x.shape)
+    for p in normalized_poles(kind, order):
+        np.subtract(x, p.imag, out=d)
+        np.multiply(d, d, out=d)
+        np.add(d, p.real**2, out=d)
+        np.divide(h2, d, out=h2)
+        h2 *= abs(p) ** 2
+    return h2
 
 
 @cache

@@ -321,7 +321,7 @@ def photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
     w = np.asarray(require_nonnegative("depletion_width", depletion_width, "m"))
     vf = np.asarray(require_positive("v_far", v_far, "m/s"))
     vn = np.asarray(require_positive("v_near", v_near, "m/s"))
-    return {
+    stack = {
         "a": a, "d": np.asarray(require_nonnegative("top_thickness", top_thickness, "m")), "w": w,
         "h": np.asarray(require_thickness_or_inf("bottom_thickness", bottom_thickness)),
         "lt": np.asarray(require_positive("top_diffusion_length", top_diffusion_length, "m")),
@@ -331,6 +331,50 @@ def photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
         "tb": np.asarray(require_positive("bottom_lifetime", bottom_lifetime, "s")),
         "tau_f": w / vf, "tau_n": w / vn,
     }
+    stack["distinct"] = _distinct_stacks(stack)
+    return stack
+
+
+_STACK_KEYS = ("a", "d", "w", "h", "lt", "lb", "tt", "tb", "tau_f", "tau_n")
+
+
+def _distinct_stacks(stack):
+    """The designs' distinct layer stacks, when a grid repeats them (None otherwise).
+
+    A grid of bias x Rf x Cf holds a few stacks, one per bias, each repeated for every
+    amplifier; the spectrum of a stack is computed once and copied to the designs that share
+    it. Returns ``(inverse, u, stacks)``: the distinct stack of each design (n,), their number
+    and the layer arrays of the distinct stacks, each (u, 1) (or as given if shared); only for a stack of shape (n, 1) (a design
+    axis in front of the frequency axis) with u <= n / 2.
+    """
+    shape = np.broadcast_shapes(*(np.shape(stack[k]) for k in _STACK_KEYS))
+    if len(shape) != 2 or shape[1] != 1 or shape[0] < 4:
+        return None
+    table = np.column_stack([np.broadcast_to(stack[k], shape)[:, 0] for k in _STACK_KEYS])
+    _, first, inverse = np.unique(table, axis=0, return_index=True, return_inverse=True)
+    if first.size > shape[0] // 2:
+        return None
+    stacks = {k: (stack[k][first] if np.shape(stack[k])[:1] == shape[:1] else stack[k])
+              for k in _STACK_KEYS}
+    return inverse.reshape(-1), first.size, stacks
+
+
+def _spectrum_of_distinct(fr, inverse, u, stacks):
+    """:func:`photocurrent_spectrum_of` computed once per distinct (stack, frequency) pair.
+
+    ``fr`` is shared by all designs (a leading axis of 1 or none) or per design (n, m);
+    per-design grids on one log lattice share most of their frequencies, so the distinct
+    (frequency, stack) pairs are found by one sort of ``f + j * stack index``.
+    """
+    if fr.ndim == 1 or fr.shape[0] == 1:
+        h = sum(_photocurrent_parts(fr.reshape(1, -1), stacks))  # (u, m) or (1, m)
+        return np.broadcast_to(h, (u, fr.shape[-1]))[inverse]
+    pairs, at = np.unique((fr + 1j * inverse[:, None]).reshape(-1), return_inverse=True)
+    ids = pairs.imag.astype(int)
+    one = {k: (v[ids, 0] if np.ndim(v) == 2 and v.shape[0] == u else v)
+           for k, v in stacks.items()}
+    h = np.broadcast_to(sum(_photocurrent_parts(pairs.real, one)), (1, pairs.size))
+    return h[0][at].reshape(fr.shape)
 
 
 def photocurrent_spectrum_of(f, layers):
@@ -348,7 +392,11 @@ def photocurrent_spectrum_of(f, layers):
     numpy.ndarray
         top + drift + bottom, complex.
     """
-    top, drift, bottom = _photocurrent_parts(np.asarray(f, dtype=float), layers)
+    fr = np.asarray(f, dtype=float)
+    distinct = layers.get("distinct")
+    if distinct is not None and fr.ndim >= 1 and fr.shape[:-1] in ((), (1,), (distinct[0].size,)):
+        return _spectrum_of_distinct(fr, *distinct)
+    top, drift, bottom = _photocurrent_parts(fr, layers)
     return top + drift + bottom
 
 

@@ -11,6 +11,7 @@ from scipy import integrate
 from photorx.circuit.filters import (
     PostFilter,
     filter_enbw_factor,
+    filter_power_response,
     filter_response,
     normalized_poles,
 )
@@ -123,3 +124,25 @@ def test_order_message_names_range():
         PostFilter("butterworth", 9, 1e6)
     with pytest.raises(DesignError, match="Hz"):
         PostFilter("butterworth", 2, 0.0)
+
+
+@pytest.mark.parametrize("kind", ["butterworth", "bessel"])
+@pytest.mark.parametrize("order", range(1, 7))
+def test_power_response_matches_scipy_squared_magnitude(kind, order):
+    # Source: scipy.signal.butter / bessel(norm='mag', analog=True) + freqs, |H|^2; rtol 1e-9
+    fc = 1.7e6
+    design = ss.butter if kind == "butterworth" else (
+        lambda n, w, analog: ss.bessel(n, w, analog=analog, norm="mag"))
+    b, a = design(order, 2 * np.pi * fc, analog=True)
+    _, h_ref = ss.freqs(b, a, 2 * np.pi * F * fc)
+    cut = np.array([fc, 2 * fc])[:, None]  # broadcasts over cutoff as filter_response does
+    got = filter_power_response(F * fc, kind, order, cut)
+    np.testing.assert_allclose(got[0], np.abs(h_ref) ** 2, rtol=1e-9)
+    np.testing.assert_allclose(got[1], np.abs(filter_response(F * fc, kind, order, 2 * fc)) ** 2,
+                               rtol=1e-12)
+
+
+def test_power_response_brickwall():
+    # Definition: pass band 1, stop band 0 (common practice)
+    np.testing.assert_array_equal(filter_power_response([1.0, 2.0, 3.0], "brickwall", 1, 2.0),
+                                  [1.0, 1.0, 0.0])
