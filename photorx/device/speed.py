@@ -99,16 +99,18 @@ def transit_time(width, velocity):
     return _out(np.asarray(w) / np.asarray(v))
 
 
-def _drift_spectrum(omega, aw, tau_far, tau_near):
+def _drift_spectrum(omega, aw, tau_far, tau_near, g_far=None, g_near=None):
     """Drift current per photon entering the depletion layer, complex; (1 - e^{-aW}) at DC.
 
     aw = alpha W; generation ~ e^{-alpha x}, x from the illuminated edge. Far carriers
-    from x travel W - x, near carriers travel x (Ramo-Shockley).
+    from x travel W - x, near carriers travel x (Ramo-Shockley). ``g_far``, ``g_near``:
+    g(j omega tau) of the two carriers if the caller has them (the diffusion parts cross
+    with the same factors).
     """
     yf = 1j * omega * tau_far
     yn = 1j * omega * tau_near
-    far = _g(yf) - _divdiff(yf, aw, 1.0)
-    near = _divdiff(0.0, aw + yn, 1.0) - np.exp(-aw) * _g(yn)
+    far = (_g(yf) if g_far is None else g_far) - _divdiff(yf, aw, 1.0)
+    near = _divdiff(0.0, aw + yn, 1.0) - np.exp(-aw) * (_g(yn) if g_near is None else g_near)
     return far + near
 
 
@@ -406,9 +408,10 @@ def _photocurrent_parts(fr, st):
     tau_f, tau_n = st["tau_f"], st["tau_n"]
     b_top = np.sqrt(1.0 + 1j * omega * st["tt"]) / st["lt"]
     b_bot = np.sqrt(1.0 + 1j * omega * st["tb"]) / st["lb"]
-    top = _top_collection(a, d, b_top) * _g(1j * omega * tau_f)
-    drift = np.exp(-a * d) * _drift_spectrum(omega, a * w, tau_f, tau_n)
-    bottom = np.exp(-a * (d + w)) * _bottom_collection(a, st["h"], b_bot) * _g(1j * omega * tau_n)
+    g_far, g_near = _g(1j * omega * tau_f), _g(1j * omega * tau_n)  # each crossing once
+    top = _top_collection(a, d, b_top) * g_far
+    drift = np.exp(-a * d) * _drift_spectrum(omega, a * w, tau_f, tau_n, g_far, g_near)
+    bottom = np.exp(-a * (d + w)) * _bottom_collection(a, st["h"], b_bot) * g_near
     return top, drift, bottom
 
 
