@@ -24,7 +24,7 @@ from ..device.optics import qe_from_responsivity
 from ..circuit.noise import input_noise_psd, with_frequency_axis
 from .digital_figures import digital_figures
 from .multiplication import multiplied_currents
-from .noise_integrals import chain_noise
+from .noise_integrals import chain_noise, density_for_q
 from .parameters import with_trailing_axis
 from .result import ReceiverResult
 from .sensitivity import (_levels, analog_snr, dynamic_range, minimum_detectable_power,
@@ -399,7 +399,9 @@ def _noise(p: _Point):
         en_shape=amp.voltage_noise_curve, in_shape=amp.current_noise_curve,
         i_shot={k: p.b(p.mult[f"shot_{k}"]) for k in ("dark", "signal", "background")})
     # one grid for both integrals: the loop's transfer functions are built once
-    mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources)
+    # a peaked loop's resonance needs a denser grid from the start (density_for_q)
+    mean_square, enbw = chain_noise(rx.noise_band_low, **circuit, **filt, **sources,
+                                    points_per_decade=density_for_q(p.b(p.loop["q"])))
     enbw = p.b(enbw)
     # input-referred spot density of every source at ENBW/10 (in the flat part of the
     # response), the column of the budget's by-source table

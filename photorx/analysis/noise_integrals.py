@@ -12,8 +12,8 @@ is smaller than the half grid's by about 2^8 for a smooth integrand; 4 is the ma
 must be below ``rtol`` of the total, and the part left out above the top of the grid (for a
 density falling at least as 1/f^2) below ``rtol / 10``. The designs are integrated in
 blocks of a few hundred (bounded memory). A design that misses either check is integrated
-again, alone, on a grid four times denser, and if it misses again by the adaptive integrals
-of :mod:`photorx.circuit.noise` (:func:`~photorx.circuit.noise.integrated_output_noise`,
+again on grids two and then four times denser that end a hundred times higher, and if it
+misses those too by the adaptive integrals of :mod:`photorx.circuit.noise` (:func:`~photorx.circuit.noise.integrated_output_noise`,
 :func:`~photorx.circuit.noise.chain_enbw`): they stay the reference.
 """
 
@@ -27,7 +27,7 @@ from ..circuit.integration import DEFAULT_RTOL, romberg_weights
 from ..circuit.noise import (_unfiltered_psd, chain_enbw, integrated_output_noise,
                              noise_transfer_functions, with_frequency_axis)
 
-__all__ = ["chain_noise"]
+__all__ = ["chain_noise", "density_for_q"]
 
 _CIRCUIT = ("gbw", "dc_gain", "poles", "rf", "cf", "cd", "rsh", "rs", "cin", "zeros")
 _DEFAULTS = dict(poles=(), zeros=(), rsh=np.inf, rs=0.0, cin=0.0, en=0.0, en_corner=0.0,
@@ -46,9 +46,11 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4
         Lower edge of the noise integral [Hz], > 0; the upper edge is infinite.
     rtol : float
         Relative tolerance of each design's total noise and of its ENBW (default 1e-4).
-    points_per_decade : int
-        Density of the shared grid (rounded up so that the number of intervals is a
-        multiple of 8).
+    points_per_decade : int or array_like of int
+        Density of the first grid (rounded up so that the number of intervals is a
+        multiple of 16); an array gives each design its own (shaped like the designs, e.g.
+        denser for a peaked loop: :func:`density_for_q`). Designs of equal density share
+        their grids.
     top_factor : float
         The grid ends at this multiple of the highest amplifier frequency (gain-bandwidth
         product, extra poles) or of the filter cutoff if that is lower.
@@ -93,10 +95,38 @@ def chain_noise(f_lo, *, rtol=DEFAULT_RTOL, points_per_decade=24, top_factor=1e4
     return ms, enbw
 
 
+def density_for_q(q, base=24):
+    """Points per decade of the first noise grid for a loop of quality factor Q [1/decade].
+
+    Parameters
+    ----------
+    q : array_like
+        Q of the loop's dominant pole pair (NaN for an unstable or first-order loop).
+    base : int
+        Density for a loop with Q <= 1.
+
+    Returns
+    -------
+    numpy.ndarray of int
+        ``base`` for Q <= 1 (or NaN), 2 ``base`` for Q <= 2.5, 4 ``base`` above.
+
+    Notes
+    -----
+    The loop's resonance spans about 1/Q of a decade in ln f; measured on the shipped demos
+    (bias x Rf x Cf grids against a 192-per-decade reference), 24 points per decade keep the
+    total within 5e-5 up to Q = 1.1 but miss by up to 1e-3 at Q = 2, and a peaked design
+    can pass the half-grid check there by coincidence: such loops start denser.
+    """
+    qq = np.asarray(q, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return np.where(qq > 2.5, 4 * base, np.where(qq > 1.0, 2 * base, base)).astype(int)
+
+
 _KNOWN = frozenset(_CIRCUIT) | frozenset(_DEFAULTS)
 _BLOCK = 256  # designs per pass over the noise grid: about 11 MB of transfer functions
 _HALF_GRID_GAIN = 4.0  # assumed error ratio of the half grid to the full grid (2^8 in theory)
-_DENSER = 4  # density factor of the second try for designs the first grid misses
+_DENSER = (2, 4)  # density factors of the further tries for designs the first grid misses
+_WIDER = 100.0  # and the factor by which their top is higher (two decades more)
 
 
 def _leaves(params, filt):
@@ -118,15 +148,17 @@ def _on_grid_in_blocks(f_lo, rtol, per_decade, top_factor, params, filt):
     The sources' densities on the grid are (designs x grid) arrays, about a dozen of them:
     a block of a few hundred designs keeps them within a few megabytes, where a chunk of
     thousands would hold tens of megabytes at once. A design whose grid integral misses the
-    tolerance tries a grid ``_DENSER`` times denser; one that misses again (or whose grid
+    tolerance tries grids ``_DENSER`` times denser (each design its own density times the
+    factor; designs of equal density share a grid); one that misses them all (or whose grid
     cannot be built) is integrated by the adaptive reference, alone: one such design no
     longer sends its whole chunk down the slow path.
     """
     leaves = list(_leaves(params, filt))
-    shape = np.broadcast_shapes(*(np.shape(v) for _, _, v in leaves))
+    shape = np.broadcast_shapes(np.shape(per_decade), *(np.shape(v) for _, _, v in leaves))
     size = int(np.prod(shape))
     flat = [(k, i, np.broadcast_to(np.asarray(v, dtype=float), shape).reshape(-1))
             for k, i, v in leaves]
+    density = np.broadcast_to(np.asarray(per_decade, dtype=int), shape).reshape(-1)
     mean_square, enbw, ok = {}, np.empty(size), np.zeros(size, dtype=bool)
 
     def store(rows, ms, en):
@@ -134,16 +166,20 @@ def _on_grid_in_blocks(f_lo, rtol, per_decade, top_factor, params, filt):
             mean_square.setdefault(k, np.empty(size))[rows] = np.broadcast_to(v, rows.shape)
         enbw[rows] = en
 
-    # a sharply peaked loop (low phase margin) needs a denser grid than a flat one: the
-    # designs that miss the tolerance try once more at four times the density
-    for density in (per_decade, _DENSER * per_decade):
-        todo = np.nonzero(~ok)[0]
-        for start in range(0, todo.size, _BLOCK):
-            rows = todo[start:start + _BLOCK]
-            part = _on_grid(f_lo, rtol, density, top_factor, *_subset(params, filt, flat, rows))
-            if part is not None:
-                store(rows, *part[:2])
-                ok[rows] = part[2]
+    # a sharply peaked loop (low phase margin) needs a denser grid than a flat one, and a
+    # source that falls only as 1/f^2 above the loop (the amplifier's voltage noise on the
+    # input capacitance) a grid that reaches higher: the designs that miss the tolerance try
+    # again on denser grids (_DENSER) that end _WIDER times higher
+    for factor, top in ((1, top_factor), *((k, _WIDER * top_factor) for k in _DENSER)):
+        for d in np.unique(density[~ok]):
+            todo = np.nonzero(~ok & (density == d))[0]
+            for start in range(0, todo.size, _BLOCK):
+                rows = todo[start:start + _BLOCK]
+                part = _on_grid(f_lo, rtol, factor * int(d), top,
+                                *_subset(params, filt, flat, rows))
+                if part is not None:
+                    store(rows, *part[:2])
+                    ok[rows] = part[2]
         if ok.all():
             break
     if not ok.all():  # the adaptive reference, for the designs no grid served
