@@ -88,10 +88,21 @@ def _eye_arrays(response, symbols, levels, n_levels, period, m):
     # align: the pulse peak mid-symbol, so the eye window is centred on the decision
     peak = np.argmax(p, axis=-1)
     shift = peak - m // 2
-    idx = (np.arange(n_sym * m) + shift[..., None]) % (n_sym * m)
-    y = np.take_along_axis(y, idx, axis=-1)
-    p = np.take_along_axis(p, idx, axis=-1)
-    return _fold(y, n_sym, m), _fold(p, n_sym, m), shift, zt0
+    return _fold(_rolled(y, shift), n_sym, m), _fold(_rolled(p, shift), n_sym, m), shift, zt0
+
+
+def _rolled(x, shift):
+    """Each row of ``x`` (..., n) rolled left by its own ``shift`` (...): x[(i + shift) % n].
+
+    Row slices of the doubled period (a window view) instead of a gather with a computed
+    index array: the same values, several times faster on the eye's (designs x N M) arrays.
+    """
+    n = x.shape[-1]
+    rows = x.reshape(-1, n)
+    start = (np.broadcast_to(shift, x.shape[:-1]).reshape(-1)) % n
+    doubled = np.concatenate([rows, rows], axis=-1)
+    windows = np.lib.stride_tricks.sliding_window_view(doubled, n, axis=-1)
+    return windows[np.arange(rows.shape[0]), start].reshape(x.shape)
 
 
 

@@ -484,3 +484,16 @@ def test_isi_figures_of_a_design_do_not_depend_on_its_sweep_companions(link):
         assert table["eye_opening"][i] == pytest.approx(float(alone.eye_opening), rel=1e-12)
         assert table["worst_case_eye_opening"][i] == pytest.approx(
             float(alone.worst_case_eye_opening), rel=1e-12)
+
+
+@settings(max_examples=40, deadline=None)
+@given(rows=st.integers(1, 6), n=st.integers(1, 40), seed=st.integers(0, 2**32 - 1))
+def test_eye_alignment_roll_matches_numpy_roll(rows, n, seed):
+    # Source: numpy.roll of each row by its own shift (any sign, beyond one period); exact
+    from photorx.analysis.digital_figures import _rolled
+    rng = np.random.default_rng(seed)
+    x = rng.normal(size=(rows, 2, n))
+    shift = rng.integers(-3 * n, 3 * n + 1, size=(rows, 2))
+    got = _rolled(x, shift)
+    for i in np.ndindex(shift.shape):
+        np.testing.assert_array_equal(got[i], np.roll(x[i], -shift[i]))
