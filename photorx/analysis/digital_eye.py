@@ -308,7 +308,7 @@ def ber_of_eye(samples, levels, n_levels, currents, sigmas):
 
 def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity, circuit_rms,
                             noise_bandwidth, extinction_ratio=np.inf, dark_current=0.0,
-                            noise_factor=1.0, dark_shot_current=None):
+                            noise_factor=1.0, dark_shot_current=None, guess=None):
     """Average optical power for the target BER with ISI and noise together [W]: (...).
 
     Parameters
@@ -338,6 +338,10 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
     dark_shot_current : array_like, optional
         Shot-noise equivalent of the dark current [A] (I_ds + I_dm M^2 F for an APD);
         default ``dark_current``.
+    guess : array_like, optional
+        A power near the answer [W] (the noise-only sensitivity: ISI moves it by a few dB):
+        the search brackets the root between half and twice it before it walks by decades.
+        Only the number of steps depends on it, not the answer (within the tolerance).
 
     Returns
     -------
@@ -346,8 +350,9 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
 
     Notes
     -----
-    :func:`ber_of_eye` falls with the power; ln BER is bracketed by decades of P and the
-    root refined by false position (Illinois) to |ln BER - ln target| < 1e-9.
+    :func:`ber_of_eye` falls with the power; ln BER is bracketed by decades of P (from
+    ``guess`` if given, from 1 nW otherwise; closed above 100 kW) and the root refined by
+    false position (Illinois) to |ln BER - ln target| < 1e-9.
     """
     r = np.asarray(responsivity, dtype=float)
     shape = np.broadcast_shapes(np.shape(samples)[:-1], r.shape, np.shape(circuit_rms),
@@ -367,18 +372,32 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
     def g(ln_p):  # ln BER - ln target: smooth and falling in ln P
         return np.log(np.maximum(ber(np.exp(ln_p)), 1e-300)) - ln_target
 
-    ln_lo = np.full(shape, np.log(1e-30))
+    ln_floor = np.log(1e-30)  # far below any root: BER -> 1/2 there
+    ln_lo = np.full(shape, ln_floor)
+    g_lo = np.full(shape, np.nan)  # NaN: not evaluated yet
     ln_hi = np.full(shape, np.log(1e-9))
+    if guess is not None:  # a narrow bracket first: [guess / 2, 2 guess], where it holds
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ln_g = np.log(np.broadcast_to(np.asarray(guess, dtype=float), shape))
+        usable = np.isfinite(ln_g) & (ln_g > ln_floor + 1.0) & (ln_g < np.log(1e-9 * 1e14))
+        ln_start = np.where(usable, ln_g - np.log(2.0), ln_floor)
+        g_start = g(ln_start)
+        usable &= g_start > 0  # its lower end must lie below the root (BER above target)
+        ln_lo = np.where(usable, ln_start, ln_floor)
+        g_lo = np.where(usable, g_start, np.nan)
+        ln_hi = np.where(usable, ln_start + np.log(4.0), ln_hi)
     g_hi = g(ln_hi)
-    for _ in range(14):  # decades up to 1e-9 x 10^14 = 100 kW: beyond that the eye is closed
-        short = g_hi > 0
+    ln_cap = np.log(1e-9 * 1e14)  # 100 kW: an eye that needs more is closed
+    for _ in range(36):  # by decades up to the cap (1e-30 W to 100 kW at most)
+        short = (g_hi > 0) & (ln_hi < ln_cap)
         if not np.any(short):
             break
-        ln_lo = np.where(short, ln_hi, ln_lo)
-        ln_hi = np.where(short, ln_hi + np.log(10.0), ln_hi)
+        ln_lo, g_lo = np.where(short, ln_hi, ln_lo), np.where(short, g_hi, g_lo)
+        ln_hi = np.where(short, np.minimum(ln_hi + np.log(10.0), ln_cap), ln_hi)
         g_hi = np.where(short, g(ln_hi), g_hi)
     closed = g_hi > 0
-    g_lo = g(ln_lo)
+    if np.isnan(g_lo).any():
+        g_lo = np.where(np.isnan(g_lo), g(ln_lo), g_lo)
     # Illinois false position on the bracket (Dowell and Jarratt 1971), then bisection
     # steps until the bracket is below 1e-10 in ln P
     x = ln_hi

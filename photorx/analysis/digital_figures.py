@@ -255,7 +255,8 @@ def digital_figures(p, noise: dict, sensitivity: dict) -> dict:
                                        p.b(p.mult["gain"] * p.responsivity),
                                        noise["circuit_noise_rms"], noise["noise_bandwidth"],
                                        rx.extinction_ratio, p.b(p.dark_shot),
-                                       noise_factor=p.b(p.mult["noise_factor"]))
+                                       noise_factor=p.b(p.mult["noise_factor"]),
+                                       guess=sensitivity["sensitivity"])
         penalty = 10.0 * np.log10(sens / sensitivity["sensitivity"])
         sens_dbm = 10.0 * np.log10(sens / 1e-3)
 

@@ -497,3 +497,23 @@ def test_eye_alignment_roll_matches_numpy_roll(rows, n, seed):
     got = _rolled(x, shift)
     for i in np.ndindex(shift.shape):
         np.testing.assert_array_equal(got[i], np.roll(x[i], -shift[i]))
+
+
+@settings(max_examples=30, deadline=None)
+@given(log_factor=st.floats(-12.0, 12.0), opening=st.floats(0.3, 1.0))
+def test_statistical_sensitivity_guess_changes_steps_not_the_answer(log_factor, opening):
+    # Source: the closed form of required_average_power (Q from scipy's erfc inverse) for an
+    # ideal eye; an eye with ISI against the same search without a guess. A guess anywhere
+    # from 1e-12 to 1e12 times the answer (also above it, where the bracket falls back).
+    levels = np.array([0, 1, 1, 0, 1, 0, 0, 1])
+    args = dict(responsivity=0.9, circuit_rms=3e-7, noise_bandwidth=1e9, extinction_ratio=10.0,
+                dark_current=1e-9)
+    ref = required_average_power(q_from_ber(1e-12), 0.9, 3e-7, 1e9, 10.0, 1e-9)
+    ideal = statistical_sensitivity(levels.astype(float), levels, 2, 1e-12, **args,
+                                    guess=ref * np.exp(log_factor))
+    assert ideal == pytest.approx(ref, rel=1e-8)
+    samples = np.where(levels == 1, opening, 0.15 * (1 - opening))
+    plain = statistical_sensitivity(samples, levels, 2, 1e-12, **args)
+    guessed = statistical_sensitivity(samples, levels, 2, 1e-12, **args,
+                                      guess=ref * np.exp(log_factor))
+    assert guessed == pytest.approx(plain, rel=1e-8)
