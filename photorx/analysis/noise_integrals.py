@@ -13,8 +13,10 @@ must be below ``rtol`` of the total, and the part left out above the top of the 
 density falling at least as 1/f^2) below ``rtol / 10``. The designs are integrated in
 blocks of a few hundred (bounded memory). A design that misses either check is integrated
 again on grids two and then four times denser that end a hundred times higher, and if it
-misses those too by the adaptive integrals of :mod:`photorx.circuit.noise` (:func:`~photorx.circuit.noise.integrated_output_noise`,
-:func:`~photorx.circuit.noise.chain_enbw`): they stay the reference.
+misses those too by the adaptive integrals of :mod:`photorx.circuit.noise`
+(:func:`~photorx.circuit.noise.integrated_output_noise`,
+:func:`~photorx.circuit.noise.chain_enbw`): they stay the reference. The first grid's
+density follows the loop's Q (:func:`density_for_q`, passed by the receiver evaluation).
 """
 
 from __future__ import annotations

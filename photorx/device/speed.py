@@ -316,8 +316,10 @@ def photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
 
     Returns
     -------
-    dict of numpy.ndarray
-        The stack as arrays, with the transit times W / v_far and W / v_near.
+    dict
+        The stack as arrays, with the transit times W / v_far and W / v_near, and under
+        ``"distinct"`` the designs' distinct stacks (or None), which
+        :func:`photocurrent_spectrum_of` evaluates once each.
     """
     a = np.asarray(require_nonnegative("alpha", alpha, "m^-1"))
     w = np.asarray(require_nonnegative("depletion_width", depletion_width, "m"))
@@ -345,9 +347,10 @@ def _distinct_stacks(stack):
 
     A grid of bias x Rf x Cf holds a few stacks, one per bias, each repeated for every
     amplifier; the spectrum of a stack is computed once and copied to the designs that share
-    it. Returns ``(inverse, u, stacks)``: the distinct stack of each design (n,), their number
-    and the layer arrays of the distinct stacks, each (u, 1) (or as given if shared); only for a stack of shape (n, 1) (a design
-    axis in front of the frequency axis) with u <= n / 2.
+    it. Returns ``(inverse, u, stacks)``: the distinct stack of each design (n,), their
+    number and the layer arrays of the distinct stacks, each (u, 1) (or as given if
+    shared); only for a stack of shape (n, 1) (a design axis in front of the frequency
+    axis) with u <= n / 2.
     """
     shape = np.broadcast_shapes(*(np.shape(stack[k]) for k in _STACK_KEYS))
     if len(shape) != 2 or shape[1] != 1 or shape[0] < 4:

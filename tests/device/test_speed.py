@@ -177,3 +177,27 @@ def test_bad_inputs_name_parameter(call, name):
         call()
     assert err.value.parameter == name
     assert name in str(err.value)
+
+
+@settings(max_examples=25, deadline=None)
+@given(seed=st.integers(0, 2**32 - 1), n_stacks=st.integers(1, 4), n=st.integers(8, 40))
+def test_repeated_stacks_evaluate_once_with_the_same_values(seed, n_stacks, n):
+    # A grid repeats each bias's stack for every amplifier: photocurrent_spectrum_of then
+    # computes each distinct (stack, f) once. Reference: photocurrent_spectrum (the three
+    # parts summed), which never takes that path; shared, per-design lattice and random
+    # per-design grids; exact up to the summation order (rtol 1e-13).
+    rng = np.random.default_rng(seed)
+    pick = rng.integers(0, n_stacks, n)
+    width = rng.uniform(0.5e-6, 5e-6, n_stacks)[pick][:, None]
+    v_far = rng.uniform(3e4, 1e5, n_stacks)[pick][:, None]
+    kw = dict(alpha=np.full((1, 1), 3e5), top_thickness=0.2e-6, depletion_width=width,
+              bottom_thickness=np.inf, top_diffusion_length=1e-6, bottom_diffusion_length=8e-6,
+              top_lifetime=1e-9, bottom_lifetime=5e-9, v_far=v_far, v_near=6e4)
+    layers = speed.photocurrent_layers(**kw)
+    assert (layers["distinct"] is not None) == (len(np.unique(pick)) <= n // 2)
+    grids = [np.geomspace(1e3, 1e11, 30),
+             10.0 ** ((rng.integers(15, 25, n)[:, None] + np.arange(20)) / 5),
+             rng.uniform(0.0, 3e10, (n, 3))]
+    for f in grids:
+        ref = sum(speed.photocurrent_spectrum(f, **kw))
+        np.testing.assert_allclose(speed.photocurrent_spectrum_of(f, layers), ref, rtol=1e-13)
