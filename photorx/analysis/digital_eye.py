@@ -373,13 +373,14 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
         return np.log(np.maximum(ber(np.exp(ln_p)), 1e-300)) - ln_target
 
     ln_floor = np.log(1e-30)  # far below any root: BER -> 1/2 there
+    ln_cap = np.log(1e-9 * 1e14)  # 100 kW: an eye that needs more is closed
     ln_lo = np.full(shape, ln_floor)
     g_lo = np.full(shape, np.nan)  # NaN: not evaluated yet
     ln_hi = np.full(shape, np.log(1e-9))
     if guess is not None:  # a narrow bracket first: [guess / 2, 2 guess], where it holds
         with np.errstate(divide="ignore", invalid="ignore"):
             ln_g = np.log(np.broadcast_to(np.asarray(guess, dtype=float), shape))
-        usable = np.isfinite(ln_g) & (ln_g > ln_floor + 1.0) & (ln_g < np.log(1e-9 * 1e14))
+        usable = np.isfinite(ln_g) & (ln_g > ln_floor + 1.0) & (ln_g < ln_cap)
         ln_start = np.where(usable, ln_g - np.log(2.0), ln_floor)
         g_start = g(ln_start)
         usable &= g_start > 0  # its lower end must lie below the root (BER above target)
@@ -387,7 +388,6 @@ def statistical_sensitivity(samples, levels, n_levels, target_ber, responsivity,
         g_lo = np.where(usable, g_start, np.nan)
         ln_hi = np.where(usable, ln_start + np.log(4.0), ln_hi)
     g_hi = g(ln_hi)
-    ln_cap = np.log(1e-9 * 1e14)  # 100 kW: an eye that needs more is closed
     for _ in range(36):  # by decades up to the cap (1e-30 W to 100 kW at most)
         short = (g_hi > 0) & (ln_hi < ln_cap)
         if not np.any(short):

@@ -317,15 +317,15 @@ def photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
     Returns
     -------
     dict
-        The stack as arrays, with the transit times W / v_far and W / v_near, and under
-        ``"distinct"`` the designs' distinct stacks (or None), which
-        :func:`photocurrent_spectrum_of` evaluates once each.
+        The stack as arrays, with the transit times W / v_far and W / v_near.
+        :func:`photocurrent_spectrum_of` adds ``"distinct"`` on its first frequency grid:
+        the designs' distinct stacks (or None), which it then evaluates once each.
     """
     a = np.asarray(require_nonnegative("alpha", alpha, "m^-1"))
     w = np.asarray(require_nonnegative("depletion_width", depletion_width, "m"))
     vf = np.asarray(require_positive("v_far", v_far, "m/s"))
     vn = np.asarray(require_positive("v_near", v_near, "m/s"))
-    stack = {
+    return {
         "a": a, "d": np.asarray(require_nonnegative("top_thickness", top_thickness, "m")), "w": w,
         "h": np.asarray(require_thickness_or_inf("bottom_thickness", bottom_thickness)),
         "lt": np.asarray(require_positive("top_diffusion_length", top_diffusion_length, "m")),
@@ -335,8 +335,6 @@ def photocurrent_layers(alpha, top_thickness, depletion_width, bottom_thickness,
         "tb": np.asarray(require_positive("bottom_lifetime", bottom_lifetime, "s")),
         "tau_f": w / vf, "tau_n": w / vn,
     }
-    stack["distinct"] = _distinct_stacks(stack)
-    return stack
 
 
 _STACK_KEYS = ("a", "d", "w", "h", "lt", "lb", "tt", "tb", "tau_f", "tau_n")
@@ -398,9 +396,12 @@ def photocurrent_spectrum_of(f, layers):
         top + drift + bottom, complex.
     """
     fr = np.asarray(f, dtype=float)
-    distinct = layers.get("distinct")
-    if distinct is not None and fr.ndim >= 1 and fr.shape[:-1] in ((), (1,), (distinct[0].size,)):
-        return _spectrum_of_distinct(fr, *distinct)
+    if fr.ndim >= 1:
+        if "distinct" not in layers:  # once per stack, on its first grid (not for one f)
+            layers["distinct"] = _distinct_stacks(layers)
+        distinct = layers["distinct"]
+        if distinct is not None and fr.shape[:-1] in ((), (1,), (distinct[0].size,)):
+            return _spectrum_of_distinct(fr, *distinct)
     top, drift, bottom = _photocurrent_parts(fr, layers)
     return top + drift + bottom
 

@@ -194,10 +194,11 @@ def test_repeated_stacks_evaluate_once_with_the_same_values(seed, n_stacks, n):
               bottom_thickness=np.inf, top_diffusion_length=1e-6, bottom_diffusion_length=8e-6,
               top_lifetime=1e-9, bottom_lifetime=5e-9, v_far=v_far, v_near=6e4)
     layers = speed.photocurrent_layers(**kw)
-    assert (layers["distinct"] is not None) == (len(np.unique(pick)) <= n // 2)
     grids = [np.geomspace(1e3, 1e11, 30),
              10.0 ** ((rng.integers(15, 25, n)[:, None] + np.arange(20)) / 5),
              rng.uniform(0.0, 3e10, (n, 3))]
     for f in grids:
         ref = sum(speed.photocurrent_spectrum(f, **kw))
         np.testing.assert_allclose(speed.photocurrent_spectrum_of(f, layers), ref, rtol=1e-13)
+    # the first grid found the distinct stacks (a few, so the shared path was taken)
+    assert (layers["distinct"] is not None) == (len(np.unique(pick)) <= n // 2)
